@@ -1,0 +1,121 @@
+//! The command line: clap arguments, then one function per subcommand.
+//! Each returns the process exit code: 0 all fine, 1 a check failed,
+//! 2 the sheet or the command line has an error.
+
+mod run;
+
+use std::ffi::OsString;
+use std::path::{Path, PathBuf};
+
+use clap::{Args, Parser, Subcommand, ValueEnum};
+
+use crate::diag::{Diagnostic, SourceMap};
+use crate::engine::{compile, Model};
+use crate::sheet::Sheet;
+
+pub const EXIT_OK: i32 = 0;
+pub const EXIT_CHECK_FAILED: i32 = 1;
+pub const EXIT_ERROR: i32 = 2;
+
+#[derive(Parser, Debug)]
+#[command(
+    name = "ohmsheet",
+    version,
+    about = "Worksheets of named AC quantities: phasors, units, parallel and series networks",
+    long_about = None
+)]
+pub struct Cli {
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+#[derive(Subcommand, Debug)]
+pub enum Command {
+    /// Evaluate a sheet and print every cell and check
+    Run(RunArgs),
+    /// List the built-in functions with their units
+    Functions,
+    /// List the units and prefixes the sheet language knows
+    Units,
+}
+
+#[derive(Args, Debug)]
+pub struct RunArgs {
+    /// The sheet to evaluate (a .ohm file)
+    pub sheet: PathBuf,
+    /// Give a cell a new formula for this run, e.g. --set "Vs=480 V" (repeatable)
+    #[arg(long = "set", value_name = "NAME=EXPR")]
+    pub set: Vec<String>,
+    /// Significant digits shown
+    #[arg(long, default_value_t = 4, value_parser = clap::value_parser!(u8).range(1..=15))]
+    pub digits: u8,
+    /// Output format
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    Table,
+    Json,
+    Csv,
+}
+
+/// Run the program with these arguments (the first is the program name).
+pub fn main_with(args: Vec<OsString>) -> i32 {
+    let cli = match Cli::try_parse_from(args) {
+        Ok(c) => c,
+        Err(e) => {
+            let _ = e.print();
+            return if e.use_stderr() { EXIT_ERROR } else { EXIT_OK };
+        }
+    };
+    match cli.command {
+        Command::Run(a) => run::run(&a),
+        Command::Functions => {
+            print!("{}", run::functions_listing());
+            EXIT_OK
+        }
+        Command::Units => {
+            print!("{}", run::units_listing());
+            EXIT_OK
+        }
+    }
+}
+
+/// Print diagnostics to stderr, in source order.
+pub fn report(sources: &SourceMap, diags: &[Diagnostic]) {
+    let mut sorted: Vec<&Diagnostic> = diags.iter().collect();
+    sorted.sort_by_key(|d| d.span.map(|s| (s.file, s.start)));
+    for d in sorted {
+        d.eprint(sources);
+    }
+}
+
+/// An error whose diagnostics have already been printed.
+#[derive(Debug)]
+pub struct Reported;
+
+/// Load a sheet, apply `--set` overrides and compile it. On any error the
+/// diagnostics are printed and `Err(Reported)` returned.
+pub fn load_model(path: &Path, sets: &[String]) -> Result<Model, Reported> {
+    let mut sheet = match Sheet::load(path) {
+        Ok(s) => s,
+        Err(e) => {
+            report(&e.sources, &[e.diagnostic]);
+            return Err(Reported);
+        }
+    };
+    for s in sets {
+        if let Err(d) = sheet.set_override(s) {
+            report(&sheet.sources, &[d]);
+            return Err(Reported);
+        }
+    }
+    let model = compile(&sheet);
+    if model.has_errors() {
+        report(&model.sources, &model.diagnostics);
+        return Err(Reported);
+    }
+    Ok(model)
+}

@@ -1,0 +1,95 @@
+//! `ohmsheet run`, `ohmsheet functions`, `ohmsheet units`.
+
+use super::{load_model, Format, RunArgs, EXIT_CHECK_FAILED, EXIT_ERROR, EXIT_OK};
+use crate::diag::{Diagnostic, ErrorCode};
+use crate::engine::model::signature;
+use crate::engine::Engine;
+use crate::output::{self, table};
+use crate::units::format::Style;
+
+pub fn run(a: &RunArgs) -> i32 {
+    let Ok(model) = load_model(&a.sheet, &a.set) else {
+        return EXIT_ERROR;
+    };
+    let style = Style {
+        digits: a.digits as usize,
+    };
+    let engine = Engine::new(model);
+    let cells = output::cell_rows(&engine, style);
+    let checks = output::check_rows(&engine, style);
+    let name = a.sheet.display().to_string();
+    match a.format {
+        Format::Table => {
+            print!("{}", table::cells_table(&engine.model, &cells));
+            print!("{}", table::checks_table(&checks));
+        }
+        Format::Json => println!("{}", output::to_json(&name, &engine.model, &cells, &checks)),
+        Format::Csv => print!("{}", output::to_csv(&cells)),
+    }
+    // A NaN is reported where it was born.
+    let m = &engine.model;
+    let origins = engine.nan_origins();
+    for &id in &origins {
+        let c = &m.cells[id as usize];
+        let what = if c.is_check() {
+            "this check".to_string()
+        } else {
+            format!("`{}`", c.name)
+        };
+        let d = Diagnostic::error(
+            ErrorCode::NotANumber,
+            c.stmt_span,
+            format!("{what} evaluated to NaN (not a number)"),
+        )
+        .with_label("undefined result produced here")
+        .with_hint("look for 0/0, ∞ − ∞, 0·∞ or an input set to NaN; cells using this one are NaN too");
+        d.eprint(&m.sources);
+    }
+    if !origins.is_empty() {
+        return EXIT_ERROR;
+    }
+    if checks.iter().any(|c| !c.passed) {
+        return EXIT_CHECK_FAILED;
+    }
+    EXIT_OK
+}
+
+/// Every function with its parameters, units and a one-line description.
+pub fn functions_listing() -> String {
+    let lib = crate::funcs::library();
+    let sigs: Vec<String> = lib.iter().map(signature).collect();
+    let w = sigs
+        .iter()
+        .map(|s| unicode_width::UnicodeWidthStr::width(s.as_str()))
+        .max()
+        .unwrap_or(0);
+    let mut out = String::new();
+    for (f, sig) in lib.iter().zip(&sigs) {
+        let pad = w - unicode_width::UnicodeWidthStr::width(sig.as_str());
+        out.push_str(&format!(
+            "{sig}{}  → {:<10} {}\n",
+            " ".repeat(pad),
+            f.returns,
+            f.summary
+        ));
+    }
+    out
+}
+
+/// The unit symbols and prefixes.
+pub fn units_listing() -> String {
+    let mut out = String::from("units:    ");
+    out.push_str(&crate::units::table::all_symbols().collect::<Vec<_>>().join("  "));
+    out.push_str("\nprefixes: ");
+    let p: Vec<String> = crate::units::table::PREFIXES
+        .iter()
+        .map(|(p, f)| format!("{p}={f:e}"))
+        .collect();
+    out.push_str(&p.join("  "));
+    out.push_str(
+        "\n\nA prefix glued to a number scales it (4.7k, 10u, 5m = 0.005); a unit follows a number\n\
+         or a bracket (20 Ω, 4.7 µF, (6 + j10) Ω). Compound units: Ω/km, rad/s, m^2.\n\
+         `m` alone after a space is refused as ambiguous: write `metre` for metres.\n",
+    );
+    out
+}

@@ -1,0 +1,359 @@
+//! Diagnostics: every error the user sees is one `Diagnostic` with a span
+//! and an optional hint, rendered in one place (`render`).
+//!
+//! The wording of each message lives next to the code that detects it, but
+//! each has a stable `ErrorCode` so the error catalogue (docs/errors.md) and
+//! the tests can name it.
+
+use std::fmt;
+use std::ops::Range;
+use std::path::PathBuf;
+
+use codespan_reporting::diagnostic::{Diagnostic as CsDiagnostic, Label};
+use codespan_reporting::files::SimpleFiles;
+use codespan_reporting::term;
+use codespan_reporting::term::termcolor::{ColorChoice, StandardStream, WriteColor};
+
+/// Index of a source file in a `SourceMap`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Default)]
+pub struct FileId(pub u32);
+
+/// A byte range in one source file.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Default)]
+pub struct Span {
+    pub file: FileId,
+    pub start: u32,
+    pub end: u32,
+}
+
+impl Span {
+    pub fn new(file: FileId, start: usize, end: usize) -> Span {
+        Span {
+            file,
+            start: start as u32,
+            end: end as u32,
+        }
+    }
+    pub fn range(self) -> Range<usize> {
+        self.start as usize..self.end as usize
+    }
+    /// The smallest span covering both.
+    pub fn to(self, other: Span) -> Span {
+        Span {
+            file: self.file,
+            start: self.start.min(other.start),
+            end: self.end.max(other.end),
+        }
+    }
+}
+
+/// One loaded source text.
+#[derive(Clone, Debug)]
+pub struct SourceFile {
+    /// The name shown in messages (the path as the user gave it).
+    pub name: String,
+    pub path: Option<PathBuf>,
+    pub text: String,
+    /// Byte offset of the start of each line.
+    line_starts: Vec<usize>,
+}
+
+impl SourceFile {
+    pub fn new(name: impl Into<String>, path: Option<PathBuf>, text: String) -> SourceFile {
+        let mut line_starts = vec![0];
+        for (i, b) in text.bytes().enumerate() {
+            if b == b'\n' {
+                line_starts.push(i + 1);
+            }
+        }
+        SourceFile {
+            name: name.into(),
+            path,
+            text,
+            line_starts,
+        }
+    }
+
+    /// 1-based line and column (in characters) of a byte offset.
+    pub fn line_col(&self, offset: usize) -> (usize, usize) {
+        let line = match self.line_starts.binary_search(&offset) {
+            Ok(i) => i,
+            Err(i) => i - 1,
+        };
+        let start = self.line_starts[line];
+        let end = offset.min(self.text.len());
+        let col = self.text.get(start..end).map_or(1, |s| s.chars().count() + 1);
+        (line + 1, col)
+    }
+
+    /// The text of a span.
+    pub fn slice(&self, span: Span) -> &str {
+        self.text.get(span.range()).unwrap_or("")
+    }
+}
+
+/// All source texts of one evaluation: the sheet and whatever it includes,
+/// plus pseudo-files for command-line overrides and session input.
+#[derive(Clone, Debug, Default)]
+pub struct SourceMap {
+    files: Vec<SourceFile>,
+}
+
+impl SourceMap {
+    pub fn new() -> SourceMap {
+        SourceMap::default()
+    }
+    pub fn add(&mut self, file: SourceFile) -> FileId {
+        self.files.push(file);
+        FileId((self.files.len() - 1) as u32)
+    }
+    pub fn get(&self, id: FileId) -> &SourceFile {
+        &self.files[id.0 as usize]
+    }
+    pub fn files(&self) -> &[SourceFile] {
+        &self.files
+    }
+    pub fn slice(&self, span: Span) -> &str {
+        self.get(span.file).slice(span)
+    }
+    /// `name:line:col` of the start of a span.
+    pub fn location(&self, span: Span) -> String {
+        let f = self.get(span.file);
+        let (l, c) = f.line_col(span.start as usize);
+        format!("{}:{}:{}", f.name, l, c)
+    }
+    pub fn line_of(&self, span: Span) -> usize {
+        self.get(span.file).line_col(span.start as usize).0
+    }
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Severity {
+    Error,
+    Warning,
+}
+
+/// Stable names for every error a user can meet. `docs/errors.md` has an
+/// example of each; keep the two in step.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum ErrorCode {
+    // reading a sheet
+    NotUtf8,
+    LineTooLong,
+    NestingTooDeep,
+    Syntax,
+    EmptySheet,
+    BareExpression,
+    // literals and units
+    BadNumber,
+    UnknownUnit,
+    AmbiguousUnit,
+    UnitNotAllowed,
+    // names and the graph
+    ReservedName,
+    DuplicateCell,
+    UnknownName,
+    UnknownFunction,
+    UnknownField,
+    Cycle,
+    TooManyCells,
+    // dimensions and types
+    DimensionMismatch,
+    NetworkOperand,
+    BadExponent,
+    FunctionArgs,
+    AngleAmbiguous,
+    NotARecord,
+    RecordAsValue,
+    BadTolerance,
+    // directives
+    UnknownDirective,
+    BadDirective,
+    // evaluation
+    NotANumber,
+    // command line
+    BadOverride,
+    Io,
+}
+
+impl ErrorCode {
+    /// The kebab-case name shown in brackets after `error`.
+    pub fn name(self) -> &'static str {
+        use ErrorCode::*;
+        match self {
+            NotUtf8 => "not-utf8",
+            LineTooLong => "line-too-long",
+            NestingTooDeep => "nesting-too-deep",
+            Syntax => "syntax",
+            EmptySheet => "empty-sheet",
+            BareExpression => "bare-expression",
+            BadNumber => "bad-number",
+            UnknownUnit => "unknown-unit",
+            AmbiguousUnit => "ambiguous-unit",
+            UnitNotAllowed => "unit-not-allowed",
+            ReservedName => "reserved-name",
+            DuplicateCell => "duplicate-cell",
+            UnknownName => "unknown-name",
+            UnknownFunction => "unknown-function",
+            UnknownField => "unknown-field",
+            Cycle => "cycle",
+            TooManyCells => "too-many-cells",
+            DimensionMismatch => "dimension-mismatch",
+            NetworkOperand => "network-operand",
+            BadExponent => "bad-exponent",
+            FunctionArgs => "function-args",
+            AngleAmbiguous => "angle-ambiguous",
+            NotARecord => "not-a-record",
+            RecordAsValue => "record-as-value",
+            BadTolerance => "bad-tolerance",
+            UnknownDirective => "unknown-directive",
+            BadDirective => "bad-directive",
+            NotANumber => "not-a-number",
+            BadOverride => "bad-override",
+            Io => "io",
+        }
+    }
+}
+
+/// A message about a place in the source.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Diagnostic {
+    pub severity: Severity,
+    pub code: ErrorCode,
+    pub message: String,
+    /// The spot the caret points at; `None` for errors with no source place
+    /// (a missing file, a bad command-line flag).
+    pub span: Option<Span>,
+    /// Short text printed under the caret.
+    pub label: String,
+    /// Further places, each with its own short text.
+    pub secondary: Vec<(Span, String)>,
+    pub hint: Option<String>,
+}
+
+impl Diagnostic {
+    pub fn error(code: ErrorCode, span: Span, message: impl Into<String>) -> Diagnostic {
+        Diagnostic {
+            severity: Severity::Error,
+            code,
+            message: message.into(),
+            span: Some(span),
+            label: String::new(),
+            secondary: Vec::new(),
+            hint: None,
+        }
+    }
+    pub fn unplaced(code: ErrorCode, message: impl Into<String>) -> Diagnostic {
+        Diagnostic {
+            severity: Severity::Error,
+            code,
+            message: message.into(),
+            span: None,
+            label: String::new(),
+            secondary: Vec::new(),
+            hint: None,
+        }
+    }
+    pub fn warning(mut self) -> Diagnostic {
+        self.severity = Severity::Warning;
+        self
+    }
+    pub fn with_label(mut self, label: impl Into<String>) -> Diagnostic {
+        self.label = label.into();
+        self
+    }
+    pub fn with_hint(mut self, hint: impl Into<String>) -> Diagnostic {
+        self.hint = Some(hint.into());
+        self
+    }
+    pub fn with_secondary(mut self, span: Span, text: impl Into<String>) -> Diagnostic {
+        self.secondary.push((span, text.into()));
+        self
+    }
+    pub fn is_error(&self) -> bool {
+        self.severity == Severity::Error
+    }
+
+    /// Render to a plain string (no colour): the form tests compare.
+    pub fn render_plain(&self, sources: &SourceMap) -> String {
+        let mut buf = codespan_reporting::term::termcolor::NoColor::new(Vec::new());
+        self.emit(sources, &mut buf);
+        String::from_utf8_lossy(&buf.into_inner()).into_owned()
+    }
+
+    fn emit(&self, sources: &SourceMap, out: &mut dyn WriteColor) {
+        let mut files = SimpleFiles::new();
+        let mut ids = Vec::new();
+        for f in sources.files() {
+            ids.push(files.add(f.name.clone(), f.text.clone()));
+        }
+        let mut d = match self.severity {
+            Severity::Error => CsDiagnostic::error(),
+            Severity::Warning => CsDiagnostic::warning(),
+        }
+        .with_code(self.code.name())
+        .with_message(&self.message);
+        let mut labels = Vec::new();
+        if let Some(sp) = self.span {
+            labels.push(Label::primary(ids[sp.file.0 as usize], sp.range()).with_message(&self.label));
+        }
+        for (sp, text) in &self.secondary {
+            labels.push(Label::secondary(ids[sp.file.0 as usize], sp.range()).with_message(text));
+        }
+        d = d.with_labels(labels);
+        if let Some(h) = &self.hint {
+            d = d.with_notes(vec![format!("hint: {h}")]);
+        }
+        let config = term::Config::default();
+        let _ = term::emit_to_write_style(out, &config, &files, &d);
+    }
+
+    /// Render to stderr, in colour when stderr is a terminal.
+    pub fn eprint(&self, sources: &SourceMap) {
+        let choice = if std::io::IsTerminal::is_terminal(&std::io::stderr()) {
+            ColorChoice::Auto
+        } else {
+            ColorChoice::Never
+        };
+        let stream = StandardStream::stderr(choice);
+        let mut lock = stream.lock();
+        self.emit(sources, &mut lock);
+    }
+}
+
+impl fmt::Display for Diagnostic {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "{}", self.message)
+    }
+}
+
+/// The closest of `candidates` to `word`, if it is close enough to be a
+/// likely typo: a small edit distance (one edit per three characters, at
+/// least one), or a high Jaro–Winkler similarity for longer words.
+pub fn did_you_mean<'a>(word: &str, candidates: impl IntoIterator<Item = &'a str>) -> Option<&'a str> {
+    let mut best: Option<(&str, usize, f64)> = None;
+    let n = word.chars().count();
+    let limit = if n <= 1 { 0 } else { (n / 3).max(1) };
+    for c in candidates {
+        if c == word {
+            continue;
+        }
+        let dist = if c.to_lowercase() == word.to_lowercase() {
+            0
+        } else {
+            strsim::levenshtein(word, c)
+        };
+        let jw = strsim::jaro_winkler(word, c);
+        if dist > limit && jw <= 0.88 {
+            continue;
+        }
+        let better = match best {
+            None => true,
+            Some((_, bd, bj)) => dist < bd || (dist == bd && jw > bj),
+        };
+        if better {
+            best = Some((c, dist, jw));
+        }
+    }
+    best.map(|(c, _, _)| c)
+}

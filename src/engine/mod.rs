@@ -1,0 +1,10 @@
+//! Compiling and evaluating sheets. No I/O here.
+
+pub mod block;
+pub mod eval;
+pub mod model;
+pub mod ops;
+pub mod program;
+
+pub use eval::{check_result, Change, CheckResult, Engine};
+pub use model::{compile, Cell, CellError, CellId, Model, Role};

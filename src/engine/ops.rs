@@ -1,0 +1,414 @@
+//! The instruction set of a compiled sheet and the numeric meaning of each
+//! instruction. Both evaluators (one case at a time in `eval.rs`, blocks of
+//! cases in `block.rs`) call these functions, so they agree to the bit.
+//!
+//! Semantics worth knowing:
+//! - Division by an exact zero gives an infinite value (each non-zero part
+//!   becomes ±∞), and 0/0 gives NaN, as IEEE 754 does for reals.
+//! - `par(a, b)` is a·b/(a+b) with a short (0) giving 0 and an open (∞)
+//!   giving the other operand.
+//! - Functions of a real argument take a real-only path, so `sqrt(4)` is
+//!   exactly 2 and `asin(0.5)` has no stray imaginary part.
+
+use num_complex::Complex64 as C64;
+
+/// One instruction: `dst = op(a, b)`. Unary ops ignore `b`. For `Call`,
+/// `a` is the first index into the program's argument table and `b` the
+/// number of arguments; the results go to `dst`, `dst + 1`, ….
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Instr {
+    pub op: Op,
+    pub dst: u32,
+    pub a: u32,
+    pub b: u32,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Op {
+    Copy,
+    Neg,
+    Conj,
+    Re,
+    Im,
+    Abs,
+    Arg,
+    Recip,
+    Sqrt,
+    Exp,
+    Ln,
+    Log10,
+    Sin,
+    Cos,
+    Tan,
+    Asin,
+    Acos,
+    Atan,
+    Add,
+    Sub,
+    Mul,
+    Div,
+    /// General power `a^b`.
+    Pow,
+    /// Integer power; the exponent is `b` read as an `i32`.
+    PowI,
+    /// Reciprocal-sum combination: impedances in parallel, admittances in
+    /// series.
+    Par,
+    /// `a · e^{jb}`: the polar literal, b in radians.
+    Polar,
+    /// `atan2(re a, re b)`
+    Atan2,
+    /// The operand with the smaller real part.
+    Min,
+    /// The operand with the larger real part.
+    Max,
+    /// A library function (index into `funcs::LIBRARY`).
+    Call(u16),
+}
+
+impl Op {
+    pub fn is_unary(self) -> bool {
+        use Op::*;
+        matches!(
+            self,
+            Copy | Neg
+                | Conj
+                | Re
+                | Im
+                | Abs
+                | Arg
+                | Recip
+                | Sqrt
+                | Exp
+                | Ln
+                | Log10
+                | Sin
+                | Cos
+                | Tan
+                | Asin
+                | Acos
+                | Atan
+                | PowI
+        )
+    }
+}
+
+#[inline]
+fn inf_or_zero(x: f64) -> f64 {
+    if x == 0.0 {
+        0.0
+    } else if x.is_nan() {
+        f64::NAN
+    } else {
+        f64::INFINITY.copysign(x)
+    }
+}
+
+/// `a / 0`: infinite where `a` is not zero, NaN for `0 / 0`.
+#[inline]
+pub fn div_by_zero(a: C64) -> C64 {
+    if a.re == 0.0 && a.im == 0.0 {
+        C64::new(f64::NAN, f64::NAN)
+    } else {
+        C64::new(inf_or_zero(a.re), inf_or_zero(a.im))
+    }
+}
+
+/// Complex division. The plain formula is used where |b|² is a normal
+/// number; otherwise Smith's scaled form, so neither tiny nor huge divisors
+/// overflow or underflow.
+#[inline]
+pub fn div(a: C64, b: C64) -> C64 {
+    let d = b.re * b.re + b.im * b.im;
+    if d.is_normal() && d < 1e300 {
+        C64::new((a.re * b.re + a.im * b.im) / d, (a.im * b.re - a.re * b.im) / d)
+    } else {
+        div_careful(a, b)
+    }
+}
+
+#[cold]
+pub fn div_careful(a: C64, b: C64) -> C64 {
+    if b.re == 0.0 && b.im == 0.0 {
+        return div_by_zero(a);
+    }
+    if b.re.is_nan() || b.im.is_nan() {
+        return C64::new(f64::NAN, f64::NAN);
+    }
+    if b.re.is_infinite() || b.im.is_infinite() {
+        if a.re.is_finite() && a.im.is_finite() {
+            return C64::new(0.0, 0.0);
+        }
+        return C64::new(f64::NAN, f64::NAN);
+    }
+    // Smith (1962).
+    if b.re.abs() >= b.im.abs() {
+        let r = b.im / b.re;
+        let den = b.re + b.im * r;
+        C64::new((a.re + a.im * r) / den, (a.im - a.re * r) / den)
+    } else {
+        let r = b.re / b.im;
+        let den = b.re * r + b.im;
+        C64::new((a.re * r + a.im) / den, (a.im * r - a.re) / den)
+    }
+}
+
+/// |z|, without overflow for huge parts or underflow for tiny ones.
+#[inline]
+pub fn abs(z: C64) -> f64 {
+    let s = z.re * z.re + z.im * z.im;
+    if s.is_normal() && s < 1e300 {
+        s.sqrt()
+    } else {
+        z.re.hypot(z.im)
+    }
+}
+
+#[inline]
+fn is_inf(z: C64) -> bool {
+    z.re.is_infinite() || z.im.is_infinite()
+}
+
+/// Reciprocal-sum combination `a·b/(a+b)`.
+#[inline]
+pub fn par(a: C64, b: C64) -> C64 {
+    let zero = |z: C64| z.re == 0.0 && z.im == 0.0;
+    if zero(a) || zero(b) {
+        if a.re.is_nan() || a.im.is_nan() || b.re.is_nan() || b.im.is_nan() {
+            return C64::new(f64::NAN, f64::NAN);
+        }
+        return C64::new(0.0, 0.0);
+    }
+    if is_inf(a) {
+        return if is_inf(b) { a } else { b };
+    }
+    if is_inf(b) {
+        return a;
+    }
+    div(a * b, a + b)
+}
+
+#[inline]
+fn real(x: f64) -> C64 {
+    C64::new(x, 0.0)
+}
+
+pub fn sqrt(z: C64) -> C64 {
+    if z.im == 0.0 {
+        if z.re >= 0.0 {
+            real(z.re.sqrt())
+        } else {
+            C64::new(0.0, (-z.re).sqrt())
+        }
+    } else {
+        z.sqrt()
+    }
+}
+
+pub fn exp(z: C64) -> C64 {
+    if z.im == 0.0 {
+        real(z.re.exp())
+    } else {
+        z.exp()
+    }
+}
+
+pub fn ln(z: C64) -> C64 {
+    if z.im == 0.0 && z.re > 0.0 {
+        real(z.re.ln())
+    } else if z.re == 0.0 && z.im == 0.0 {
+        real(f64::NEG_INFINITY)
+    } else {
+        z.ln()
+    }
+}
+
+pub fn log10(z: C64) -> C64 {
+    if z.im == 0.0 && z.re > 0.0 {
+        real(z.re.log10())
+    } else {
+        ln(z) / std::f64::consts::LN_10
+    }
+}
+
+pub fn sin(z: C64) -> C64 {
+    if z.im == 0.0 {
+        real(z.re.sin())
+    } else {
+        z.sin()
+    }
+}
+pub fn cos(z: C64) -> C64 {
+    if z.im == 0.0 {
+        real(z.re.cos())
+    } else {
+        z.cos()
+    }
+}
+pub fn tan(z: C64) -> C64 {
+    if z.im == 0.0 {
+        real(z.re.tan())
+    } else {
+        z.tan()
+    }
+}
+pub fn asin(z: C64) -> C64 {
+    if z.im == 0.0 && z.re.abs() <= 1.0 {
+        real(z.re.asin())
+    } else {
+        z.asin()
+    }
+}
+pub fn acos(z: C64) -> C64 {
+    if z.im == 0.0 && z.re.abs() <= 1.0 {
+        real(z.re.acos())
+    } else {
+        z.acos()
+    }
+}
+pub fn atan(z: C64) -> C64 {
+    if z.im == 0.0 {
+        real(z.re.atan())
+    } else {
+        z.atan()
+    }
+}
+
+pub fn powi(z: C64, n: i32) -> C64 {
+    if z.im == 0.0 {
+        return real(z.re.powi(n));
+    }
+    if n >= 0 {
+        z.powu(n as u32)
+    } else {
+        div(C64::new(1.0, 0.0), z.powu(n.unsigned_abs()))
+    }
+}
+
+pub fn pow(a: C64, b: C64) -> C64 {
+    if b.im == 0.0 && b.re.fract() == 0.0 && b.re.abs() <= i32::MAX as f64 {
+        return powi(a, b.re as i32);
+    }
+    if a.re == 0.0 && a.im == 0.0 {
+        return if b.re > 0.0 { real(0.0) } else { real(f64::INFINITY) };
+    }
+    if a.im == 0.0 && a.re > 0.0 && b.im == 0.0 {
+        return real(a.re.powf(b.re));
+    }
+    a.powc(b)
+}
+
+pub fn polar(m: C64, theta: C64) -> C64 {
+    if theta.im == 0.0 {
+        let (s, c) = theta.re.sin_cos();
+        m * C64::new(c, s)
+    } else {
+        m * (C64::new(0.0, 1.0) * theta).exp()
+    }
+}
+
+fn pick(a: C64, b: C64, smaller: bool) -> C64 {
+    if a.re.is_nan() || b.re.is_nan() {
+        return C64::new(f64::NAN, f64::NAN);
+    }
+    if (a.re <= b.re) == smaller {
+        a
+    } else {
+        b
+    }
+}
+
+/// Apply a unary op.
+#[inline]
+pub fn apply1(op: Op, a: C64, b_bits: u32) -> C64 {
+    use Op::*;
+    match op {
+        Copy => a,
+        Neg => -a,
+        Conj => a.conj(),
+        Re => real(a.re),
+        Im => real(a.im),
+        Abs => real(abs(a)),
+        Arg => real(a.im.atan2(a.re)),
+        Recip => div(C64::new(1.0, 0.0), a),
+        Sqrt => sqrt(a),
+        Exp => exp(a),
+        Ln => ln(a),
+        Log10 => log10(a),
+        Sin => sin(a),
+        Cos => cos(a),
+        Tan => tan(a),
+        Asin => asin(a),
+        Acos => acos(a),
+        Atan => atan(a),
+        PowI => powi(a, b_bits as i32),
+        _ => unreachable!("not a unary op: {op:?}"),
+    }
+}
+
+/// Apply a binary op.
+#[inline]
+pub fn apply2(op: Op, a: C64, b: C64) -> C64 {
+    use Op::*;
+    match op {
+        Add => a + b,
+        Sub => a - b,
+        Mul => a * b,
+        Div => div(a, b),
+        Pow => pow(a, b),
+        Par => par(a, b),
+        Polar => polar(a, b),
+        Atan2 => real(a.re.atan2(b.re)),
+        Min => pick(a, b, true),
+        Max => pick(a, b, false),
+        _ => unreachable!("not a binary op: {op:?}"),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn c(re: f64, im: f64) -> C64 {
+        C64::new(re, im)
+    }
+
+    #[test]
+    fn division_by_zero_is_infinite_not_nan() {
+        let r = div(c(5.0, 0.0), c(0.0, 0.0));
+        assert_eq!(r.re, f64::INFINITY);
+        assert_eq!(r.im, 0.0);
+        assert!(div(c(0.0, 0.0), c(0.0, 0.0)).re.is_nan());
+    }
+
+    #[test]
+    fn division_of_tiny_and_huge_values() {
+        // (1e-170 + 1e-170j) / (1e-170) = 1 + j: the plain formula would
+        // underflow |b|² to zero.
+        let r = div(c(1e-170, 1e-170), c(1e-170, 0.0));
+        assert!((r.re - 1.0).abs() < 1e-15 && (r.im - 1.0).abs() < 1e-15);
+        let r = div(c(1e170, 0.0), c(1e170, 1e170));
+        assert!((r.re - 0.5).abs() < 1e-15 && (r.im + 0.5).abs() < 1e-15);
+        assert!((abs(c(3e200, 4e200)) - 5e200).abs() < 1e186);
+    }
+
+    #[test]
+    fn parallel_edge_cases() {
+        assert_eq!(par(c(0.0, 0.0), c(10.0, 0.0)), c(0.0, 0.0));
+        assert_eq!(par(c(f64::INFINITY, 0.0), c(10.0, 0.0)), c(10.0, 0.0));
+        // j10 || -j10: parallel resonance, an open circuit
+        let r = par(c(0.0, 10.0), c(0.0, -10.0));
+        assert!(r.re.is_infinite() || r.im.is_infinite());
+        let r = par(c(10.0, 0.0), c(10.0, 0.0));
+        assert_eq!(r, c(5.0, 0.0));
+    }
+
+    #[test]
+    fn real_paths_are_exact() {
+        assert_eq!(sqrt(c(4.0, 0.0)), c(2.0, 0.0));
+        assert_eq!(sqrt(c(-4.0, 0.0)), c(0.0, 2.0));
+        assert_eq!(asin(c(0.5, 0.0)).im, 0.0);
+        assert_eq!(pow(c(-2.0, 0.0), c(2.0, 0.0)), c(4.0, 0.0));
+        assert_eq!(pow(c(2.0, 0.0), c(0.5, 0.0)), c(2f64.sqrt(), 0.0));
+    }
+}

@@ -1,0 +1,12 @@
+//! ohmsheet: a plain-text worksheet engine for AC phasor calculations.
+//!
+//! See ARCHITECTURE.md for the code map and the invariants.
+
+pub mod cli;
+pub mod diag;
+pub mod engine;
+pub mod funcs;
+pub mod output;
+pub mod sheet;
+pub mod syntax;
+pub mod units;

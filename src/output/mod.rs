@@ -1,0 +1,236 @@
+//! Turning evaluated cells into rows, and rows into text: an aligned table
+//! for people, JSON and CSV for programs. Only this module and the CLI know
+//! about output formats.
+
+pub mod table;
+
+use num_complex::Complex64 as C64;
+use serde::Serialize;
+
+use crate::engine::{check_result, CellId, Engine, Model};
+use crate::funcs::Shape;
+use crate::units::format::{base_symbol, format_value, Style};
+use crate::units::Quantity;
+
+/// One shown value: a scalar cell, or one field of a record cell.
+#[derive(Clone, Debug, Serialize)]
+pub struct CellRow {
+    /// `Zth`, or `y.a` for a record field.
+    pub name: String,
+    pub formula: String,
+    /// Coherent SI unit of `re` and `im` (`Ω`, `W`, `rad`); empty for plain
+    /// numbers.
+    pub unit: String,
+    #[serde(serialize_with = "finite_or_null")]
+    pub re: f64,
+    #[serde(serialize_with = "finite_or_null")]
+    pub im: f64,
+    /// `8.97 + j3.88 Ω`
+    pub display: String,
+    /// `9.77 ∠ 23.4° Ω`
+    pub polar: String,
+    /// The cell is an input (its formula uses no other cell).
+    pub input: bool,
+    pub file: String,
+    pub line: u32,
+    #[serde(skip)]
+    pub id: CellId,
+}
+
+/// One check's verdict.
+#[derive(Clone, Debug, Serialize)]
+pub struct CheckRow {
+    /// The check as written.
+    pub expr: String,
+    pub file: String,
+    pub line: u32,
+    pub passed: bool,
+    pub lhs: Complex,
+    pub rhs: Complex,
+    /// |lhs - rhs| in coherent SI units.
+    #[serde(serialize_with = "finite_or_null")]
+    pub error: f64,
+    #[serde(serialize_with = "finite_or_null")]
+    pub tolerance: f64,
+    pub unit: String,
+    /// The difference and tolerance as shown.
+    pub error_display: String,
+    pub tolerance_display: String,
+    pub lhs_display: String,
+    pub rhs_display: String,
+}
+
+#[derive(Clone, Copy, Debug, Serialize)]
+pub struct Complex {
+    #[serde(serialize_with = "finite_or_null")]
+    pub re: f64,
+    #[serde(serialize_with = "finite_or_null")]
+    pub im: f64,
+}
+
+fn finite_or_null<S: serde::Serializer>(x: &f64, s: S) -> Result<S::Ok, S::Error> {
+    if x.is_finite() {
+        s.serialize_f64(*x)
+    } else {
+        s.serialize_none()
+    }
+}
+
+/// Rows for every defined cell, in sheet order.
+pub fn cell_rows(engine: &Engine, style: Style) -> Vec<CellRow> {
+    let m = &engine.model;
+    let mut rows = Vec::new();
+    for (id, c) in m.defs() {
+        if c.error.is_some() {
+            continue;
+        }
+        let vals = engine.values(id);
+        let file = m.sources.get(c.file).name.clone();
+        match c.shape.as_ref() {
+            Some(Shape::Scalar(q)) => {
+                rows.push(row(m, id, c.name.clone(), *q, vals[0], c.display.as_ref(), style, file))
+            }
+            Some(Shape::Record(fields)) => {
+                for (k, (fname, q)) in fields.iter().enumerate() {
+                    rows.push(row(
+                        m,
+                        id,
+                        format!("{}.{}", c.name, fname),
+                        *q,
+                        vals[k],
+                        None,
+                        style,
+                        file.clone(),
+                    ));
+                }
+            }
+            None => {}
+        }
+    }
+    rows
+}
+
+#[allow(clippy::too_many_arguments)]
+fn row(
+    m: &Model,
+    id: CellId,
+    name: String,
+    q: Quantity,
+    z: C64,
+    display: Option<&crate::units::Unit>,
+    style: Style,
+    file: String,
+) -> CellRow {
+    let c = &m.cells[id as usize];
+    let f = format_value(z, q, display, style);
+    CellRow {
+        name,
+        formula: c.formula.clone(),
+        unit: base_symbol(q),
+        re: z.re,
+        im: z.im,
+        display: f.rect,
+        polar: f.polar,
+        input: c.input,
+        file,
+        line: c.line,
+        id,
+    }
+}
+
+/// Rows for every check, in sheet order.
+pub fn check_rows(engine: &Engine, style: Style) -> Vec<CheckRow> {
+    let m = &engine.model;
+    let mut rows = Vec::new();
+    for (id, c) in m.checks() {
+        if c.error.is_some() {
+            continue;
+        }
+        let r = check_result(m, id, engine.values(id));
+        let q = match &c.shape {
+            Some(Shape::Record(f)) => f[0].1,
+            _ => Quantity::PLAIN,
+        };
+        let show = |z: C64| format_value(z, q, None, style).rect;
+        rows.push(CheckRow {
+            expr: c.formula.clone(),
+            file: m.sources.get(c.file).name.clone(),
+            line: c.line,
+            passed: r.passed,
+            lhs: Complex {
+                re: r.lhs.re,
+                im: r.lhs.im,
+            },
+            rhs: Complex {
+                re: r.rhs.re,
+                im: r.rhs.im,
+            },
+            error: r.diff,
+            tolerance: r.tol,
+            unit: base_symbol(q),
+            error_display: show(C64::new(r.diff, 0.0)),
+            tolerance_display: show(C64::new(r.tol, 0.0)),
+            lhs_display: show(r.lhs),
+            rhs_display: show(r.rhs),
+        });
+    }
+    rows
+}
+
+#[derive(Serialize)]
+struct JsonDoc<'a> {
+    sheet: &'a str,
+    amplitude: &'static str,
+    meta: serde_json::Map<String, serde_json::Value>,
+    cells: &'a [CellRow],
+    checks: &'a [CheckRow],
+}
+
+/// The JSON document `run --format json` prints.
+pub fn to_json(sheet_name: &str, model: &Model, cells: &[CellRow], checks: &[CheckRow]) -> String {
+    let mut meta = serde_json::Map::new();
+    for (k, v) in &model.meta.entries {
+        meta.insert(k.clone(), serde_json::Value::String(v.clone()));
+    }
+    let doc = JsonDoc {
+        sheet: sheet_name,
+        amplitude: if model.ctx.peak { "peak" } else { "rms" },
+        meta,
+        cells,
+        checks,
+    };
+    serde_json::to_string_pretty(&doc).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"))
+}
+
+/// CSV of the cells: name, formula, unit, re, im, display, polar.
+pub fn to_csv(cells: &[CellRow]) -> String {
+    let mut w = csv::Writer::from_writer(Vec::new());
+    let _ = w.write_record(["name", "formula", "unit", "re", "im", "display", "polar"]);
+    for c in cells {
+        let _ = w.write_record([
+            c.name.as_str(),
+            c.formula.as_str(),
+            c.unit.as_str(),
+            &num(c.re),
+            &num(c.im),
+            c.display.as_str(),
+            c.polar.as_str(),
+        ]);
+    }
+    String::from_utf8(w.into_inner().unwrap_or_default()).unwrap_or_default()
+}
+
+/// A float written so it reads back to the same bits.
+pub fn num(x: f64) -> String {
+    if x.is_nan() {
+        "NaN".into()
+    } else if x.is_infinite() {
+        if x > 0.0 {
+            "inf".into()
+        } else {
+            "-inf".into()
+        }
+    } else {
+        format!("{x:e}")
+    }
+}

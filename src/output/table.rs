@@ -1,0 +1,95 @@
+//! The aligned text table `ohmsheet run` prints.
+
+use unicode_width::UnicodeWidthStr;
+
+use super::{CellRow, CheckRow};
+use crate::engine::Model;
+
+fn pad(s: &str, w: usize) -> String {
+    let n = UnicodeWidthStr::width(s);
+    let mut out = s.to_string();
+    out.extend(std::iter::repeat_n(' ', w.saturating_sub(n)));
+    out
+}
+
+/// Cells as aligned columns: name, value, polar form, formula.
+pub fn cells_table(model: &Model, cells: &[CellRow]) -> String {
+    let mut out = String::new();
+    if let Some(t) = model.meta.get("title") {
+        out.push_str(t);
+        out.push('\n');
+        out.push('\n');
+    }
+    let headers = ["name", "value", "polar", "formula"];
+    let cols: Vec<[String; 4]> = cells
+        .iter()
+        .map(|c| {
+            let name = if c.input {
+                format!("{} ◂", c.name)
+            } else {
+                c.name.clone()
+            };
+            // The polar form of a real number says nothing new.
+            let polar = if c.im == 0.0 && c.re >= 0.0 {
+                String::new()
+            } else {
+                c.polar.clone()
+            };
+            [name, c.display.clone(), polar, c.formula.clone()]
+        })
+        .collect();
+    let mut w = headers.map(UnicodeWidthStr::width);
+    for r in &cols {
+        for k in 0..4 {
+            w[k] = w[k].max(UnicodeWidthStr::width(r[k].as_str()));
+        }
+    }
+    let line = |r: [&str; 4]| {
+        let mut s = String::from("  ");
+        for k in 0..3 {
+            s.push_str(&pad(r[k], w[k]));
+            s.push_str("   ");
+        }
+        s.push_str(r[3]);
+        s.trim_end().to_string() + "\n"
+    };
+    out.push_str(&line(headers));
+    for r in &cols {
+        out.push_str(&line([&r[0], &r[1], &r[2], &r[3]]));
+    }
+    if cells.iter().any(|c| c.input) {
+        out.push_str("  (◂ input: a value the sheet takes as given; change it with --set NAME=VALUE)\n");
+    }
+    out
+}
+
+/// Checks, one per line, with the verdict first.
+pub fn checks_table(checks: &[CheckRow]) -> String {
+    if checks.is_empty() {
+        return String::new();
+    }
+    let mut out = String::from("\nchecks\n");
+    let wexpr = checks
+        .iter()
+        .map(|c| UnicodeWidthStr::width(c.expr.as_str()))
+        .max()
+        .unwrap_or(0);
+    for c in checks {
+        let verdict = if c.passed { "pass" } else { "FAIL" };
+        out.push_str(&format!(
+            "  {verdict}  line {:<4} {}   computed {}, |difference| {} (allowed {})\n",
+            c.line,
+            pad(&c.expr, wexpr),
+            c.lhs_display,
+            c.error_display,
+            c.tolerance_display
+        ));
+    }
+    let failed = checks.iter().filter(|c| !c.passed).count();
+    out.push_str(&format!(
+        "  {} of {} checks pass\n",
+        checks.len() - failed,
+        checks.len()
+    ));
+    out
+}

@@ -1,0 +1,166 @@
+//! The syntax tree of a sheet. It knows nothing of evaluation.
+
+use crate::diag::Span;
+use crate::units::Unit;
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Ident {
+    pub name: String,
+    pub span: Span,
+}
+
+/// A unit as written in the source, already resolved.
+#[derive(Clone, Debug, PartialEq)]
+pub struct UnitRef {
+    pub unit: Unit,
+    pub span: Span,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum BinOp {
+    Add,
+    Sub,
+    Mul,
+    Div,
+    Pow,
+    /// `a || b`
+    Parallel,
+    /// `a -- b`
+    Series,
+    /// `m ∠ θ`
+    Angle,
+}
+
+impl BinOp {
+    pub fn symbol(self) -> &'static str {
+        match self {
+            BinOp::Add => "+",
+            BinOp::Sub => "-",
+            BinOp::Mul => "*",
+            BinOp::Div => "/",
+            BinOp::Pow => "^",
+            BinOp::Parallel => "||",
+            BinOp::Series => "--",
+            BinOp::Angle => "∠",
+        }
+    }
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum UnOp {
+    Neg,
+    Pos,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum ExprKind {
+    /// A number, with its glued prefix already applied; `imag` for `3j`,
+    /// `j3`. The unit, if any, is applied on top.
+    Number {
+        value: f64,
+        imag: bool,
+        unit: Option<UnitRef>,
+    },
+    /// A cell name or a constant (`pi`, `j`).
+    Name(Ident),
+    /// `y.a`: a field of a record-valued cell or call.
+    Field(Box<Expr>, Ident),
+    Call {
+        func: Ident,
+        args: Vec<Expr>,
+    },
+    Unary(UnOp, Box<Expr>),
+    Binary(BinOp, Box<Expr>, Box<Expr>),
+    /// `(expr)` with an optional unit after it.
+    Paren(Box<Expr>, Option<UnitRef>),
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Expr {
+    pub kind: ExprKind,
+    pub span: Span,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum Tolerance {
+    /// `± 1%`: a fraction of the magnitude of the right-hand side.
+    Relative(f64, Span),
+    /// `± 0.5 Ω`
+    Absolute(Expr),
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Definition {
+    pub name: Ident,
+    pub expr: Expr,
+    pub display: Option<UnitRef>,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Check {
+    pub lhs: Expr,
+    pub rhs: Expr,
+    pub tol: Tolerance,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct DirectiveArg {
+    pub text: String,
+    pub span: Span,
+    pub quoted: bool,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Directive {
+    pub name: Ident,
+    pub args: Vec<DirectiveArg>,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum StmtKind {
+    Def(Definition),
+    Check(Check),
+    Directive(Directive),
+    /// A bare expression: evaluated in a session, refused in a sheet file.
+    Expr(Expr),
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Stmt {
+    pub kind: StmtKind,
+    /// The statement without its trailing comment.
+    pub span: Span,
+    /// 1-based line number in its file.
+    pub line: u32,
+    /// The comment at the end of the line, without `#`, if any.
+    pub comment: Option<String>,
+}
+
+impl Expr {
+    /// Depth of the tree (1 for a leaf). Iterative over left spines so a
+    /// long `a + b + c + …` chain costs no stack.
+    pub fn depth(&self) -> usize {
+        match &self.kind {
+            ExprKind::Number { .. } | ExprKind::Name(_) => 1,
+            ExprKind::Field(e, _) => 1 + e.depth(),
+            ExprKind::Call { args, .. } => 1 + args.iter().map(Expr::depth).max().unwrap_or(0),
+            ExprKind::Unary(_, e) | ExprKind::Paren(e, _) => 1 + e.depth(),
+            ExprKind::Binary(_, a, b) => 1 + a.depth().max(b.depth()),
+        }
+    }
+
+    /// Visit every name this expression refers to (not function names).
+    pub fn for_each_name(&self, f: &mut dyn FnMut(&Ident)) {
+        match &self.kind {
+            ExprKind::Number { .. } => {}
+            ExprKind::Name(id) => f(id),
+            ExprKind::Field(e, _) => e.for_each_name(f),
+            ExprKind::Call { args, .. } => args.iter().for_each(|a| a.for_each_name(f)),
+            ExprKind::Unary(_, e) | ExprKind::Paren(e, _) => e.for_each_name(f),
+            ExprKind::Binary(_, a, b) => {
+                a.for_each_name(f);
+                b.for_each_name(f);
+            }
+        }
+    }
+}

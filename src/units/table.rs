@@ -1,0 +1,417 @@
+//! The unit table and the parser for unit expressions (`kV`, `Ω/km`,
+//! `rad/s`, `m^2`).
+
+use super::dim::Dim;
+use super::kind::{Kind, Quantity};
+
+/// A resolved unit: multiply a number by `factor` to get coherent SI, and
+/// the result has dimension `q.dim` and kind `q.kind`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Unit {
+    pub factor: f64,
+    pub q: Quantity,
+    /// The unit as written (for display units: shown after the number).
+    pub symbol: String,
+}
+
+/// Why a unit could not be read.
+#[derive(Clone, Debug, PartialEq)]
+pub enum UnitError {
+    Unknown {
+        word: String,
+        suggestion: Option<String>,
+        hint: Option<String>,
+    },
+    /// `m` on its own after a number: milli or metres?
+    AmbiguousMetre,
+    Exponent(String),
+}
+
+struct BaseUnit {
+    symbols: &'static [&'static str],
+    dim: Dim,
+    factor: f64,
+    kind: Kind,
+    prefixable: bool,
+}
+
+const DEG: f64 = std::f64::consts::PI / 180.0;
+
+const BASE_UNITS: &[BaseUnit] = &[
+    BaseUnit {
+        symbols: &["Ω", "Ω", "ohm"],
+        dim: Dim::IMPEDANCE,
+        factor: 1.0,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["S"],
+        dim: Dim::ADMITTANCE,
+        factor: 1.0,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["V"],
+        dim: Dim::VOLTAGE,
+        factor: 1.0,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["A"],
+        dim: Dim::CURRENT,
+        factor: 1.0,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["F"],
+        dim: Dim::CAPACITANCE,
+        factor: 1.0,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["H"],
+        dim: Dim::INDUCTANCE,
+        factor: 1.0,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["W"],
+        dim: Dim::POWER,
+        factor: 1.0,
+        kind: Kind::RealPower,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["VA"],
+        dim: Dim::POWER,
+        factor: 1.0,
+        kind: Kind::ApparentPower,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["var", "VAr", "VAR"],
+        dim: Dim::POWER,
+        factor: 1.0,
+        kind: Kind::ReactivePower,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["J"],
+        dim: Dim::ENERGY,
+        factor: 1.0,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["Wh"],
+        dim: Dim::ENERGY,
+        factor: 3600.0,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["C"],
+        dim: Dim::CHARGE,
+        factor: 1.0,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["Wb"],
+        dim: Dim::FLUX,
+        factor: 1.0,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["Hz"],
+        dim: Dim::FREQUENCY,
+        factor: 1.0,
+        kind: Kind::Hertz,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["s"],
+        dim: Dim::TIME,
+        factor: 1.0,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["min"],
+        dim: Dim::TIME,
+        factor: 60.0,
+        kind: Kind::Plain,
+        prefixable: false,
+    },
+    BaseUnit {
+        symbols: &["h"],
+        dim: Dim::TIME,
+        factor: 3600.0,
+        kind: Kind::Plain,
+        prefixable: false,
+    },
+    BaseUnit {
+        symbols: &["m", "metre", "meter"],
+        dim: Dim::LENGTH,
+        factor: 1.0,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["g"],
+        dim: Dim::MASS,
+        factor: 1e-3,
+        kind: Kind::Plain,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["rad"],
+        dim: Dim::NONE,
+        factor: 1.0,
+        kind: Kind::Angle,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["deg", "°"],
+        dim: Dim::NONE,
+        factor: DEG,
+        kind: Kind::Angle,
+        prefixable: false,
+    },
+    BaseUnit {
+        symbols: &["%"],
+        dim: Dim::NONE,
+        factor: 0.01,
+        kind: Kind::Plain,
+        prefixable: false,
+    },
+    BaseUnit {
+        symbols: &["pu"],
+        dim: Dim::NONE,
+        factor: 1.0,
+        kind: Kind::PerUnit,
+        prefixable: false,
+    },
+];
+
+/// SI prefixes accepted on units and glued to numbers.
+pub const PREFIXES: &[(&str, f64)] = &[
+    ("f", 1e-15),
+    ("p", 1e-12),
+    ("n", 1e-9),
+    ("u", 1e-6),
+    ("µ", 1e-6),
+    ("μ", 1e-6),
+    ("m", 1e-3),
+    ("k", 1e3),
+    ("M", 1e6),
+    ("G", 1e9),
+    ("T", 1e12),
+];
+
+/// The factor of a prefix written on its own (`k`, `µ`), if it is one.
+pub fn prefix_factor(s: &str) -> Option<f64> {
+    PREFIXES.iter().find(|(p, _)| *p == s).map(|&(_, f)| f)
+}
+
+/// Every unit symbol, for suggestions and completion.
+pub fn all_symbols() -> impl Iterator<Item = &'static str> {
+    BASE_UNITS.iter().flat_map(|u| u.symbols.iter().copied())
+}
+
+/// Every unit symbol with the common prefixed forms, for suggestions.
+fn suggestion_pool() -> Vec<String> {
+    let mut v = Vec::new();
+    for u in BASE_UNITS {
+        for s in u.symbols {
+            v.push(s.to_string());
+            if u.prefixable {
+                for p in ["m", "k", "M", "u", "µ", "n", "p", "G"] {
+                    v.push(format!("{p}{s}"));
+                }
+            }
+        }
+    }
+    v
+}
+
+/// Look up one unit word, with an optional SI prefix: `kV`, `µF`, `Ω`.
+pub fn lookup_unit(word: &str) -> Result<Unit, UnitError> {
+    for u in BASE_UNITS {
+        if u.symbols.contains(&word) {
+            return Ok(Unit {
+                factor: u.factor,
+                q: Quantity::new(u.dim, u.kind),
+                symbol: word.to_string(),
+            });
+        }
+    }
+    for &(p, pf) in PREFIXES {
+        if let Some(rest) = word.strip_prefix(p) {
+            for u in BASE_UNITS {
+                if u.prefixable && u.symbols.contains(&rest) {
+                    return Ok(Unit {
+                        factor: pf * u.factor,
+                        q: Quantity::new(u.dim, u.kind),
+                        symbol: word.to_string(),
+                    });
+                }
+            }
+        }
+    }
+    Err(unknown(word))
+}
+
+fn unknown(word: &str) -> UnitError {
+    let hint = match word {
+        "K" => Some("kilo is a lowercase `k` (4.7k, 4.7 kΩ); kelvin is not a unit here".to_string()),
+        "ohms" | "Ohm" | "Ohms" => Some("write `Ω` or `ohm`".to_string()),
+        "mho" | "mhos" => Some("admittance is in siemens, `S`".to_string()),
+        "VAR" | "kVAR" => None,
+        w if w.ends_with('s') && lookup_unit(&w[..w.len() - 1]).is_ok() => {
+            Some(format!("units are not plural: write `{}`", &w[..w.len() - 1]))
+        }
+        _ => None,
+    };
+    let pool = suggestion_pool();
+    let suggestion = crate::diag::did_you_mean(word, pool.iter().map(|s| s.as_str())).map(str::to_string);
+    UnitError::Unknown {
+        word: word.to_string(),
+        suggestion,
+        hint,
+    }
+}
+
+/// Parse a unit expression as written after a number or inside `[ ]`:
+/// factors joined by `*`, `·` or `/`, each with an optional integer power.
+/// Everything after the first `/` is in the denominator (`W/m/s` is W/(m·s)).
+pub fn parse_unit_expr(text: &str) -> Result<Unit, UnitError> {
+    if text == "m" {
+        return Err(UnitError::AmbiguousMetre);
+    }
+    let mut factor = 1.0;
+    let mut dim = Dim::NONE;
+    let mut kinds = Vec::new();
+    let mut denominator = false;
+    let mut rest = text;
+    loop {
+        let end = rest.find(['*', '/', '·']).unwrap_or(rest.len());
+        let item = &rest[..end];
+        let (word, power) = match item.split_once('^') {
+            Some((w, p)) => {
+                let n: i32 = p.parse().map_err(|_| UnitError::Exponent(item.to_string()))?;
+                if n == 0 || n.abs() > 9 {
+                    return Err(UnitError::Exponent(item.to_string()));
+                }
+                (w, n)
+            }
+            None => (item, 1),
+        };
+        let u = lookup_unit(word)?;
+        let p = if denominator { -power } else { power };
+        factor *= u.factor.powi(p);
+        let d = u.q.dim.powi(p).ok_or_else(|| UnitError::Exponent(item.to_string()))?;
+        dim = dim.times(d).ok_or_else(|| UnitError::Exponent(item.to_string()))?;
+        kinds.push((u.q.kind, p));
+        if end == rest.len() {
+            break;
+        }
+        let sep = rest[end..].chars().next().unwrap_or('*');
+        if sep == '/' {
+            denominator = true;
+        }
+        rest = &rest[end + sep.len_utf8()..];
+    }
+    let kind = match kinds.as_slice() {
+        [(k, 1)] => *k,
+        // rad/s is an angular frequency
+        [(Kind::Angle, 1), (Kind::Plain, -1)] if dim == Dim::FREQUENCY => Kind::RadPerSec,
+        _ => Kind::Plain,
+    };
+    Ok(Unit {
+        factor,
+        q: Quantity::new(dim, kind),
+        symbol: text.to_string(),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn close(a: f64, b: f64) -> bool {
+        (a - b).abs() <= 1e-12 * b.abs().max(1e-300)
+    }
+
+    // Prefix factors from the SI Brochure (BIPM, 9th edition, Table 7).
+    #[test]
+    fn prefixed_units() {
+        let u = parse_unit_expr("kV").unwrap();
+        assert!(close(u.factor, 1e3));
+        assert_eq!(u.q.dim, Dim::VOLTAGE);
+        let u = parse_unit_expr("µF").unwrap();
+        assert!(close(u.factor, 1e-6));
+        assert_eq!(u.q.dim, Dim::CAPACITANCE);
+        assert_eq!(
+            parse_unit_expr("uF").unwrap().factor,
+            parse_unit_expr("µF").unwrap().factor
+        );
+        let u = parse_unit_expr("kvar").unwrap();
+        assert_eq!(u.q.kind, Kind::ReactivePower);
+        let u = parse_unit_expr("MVA").unwrap();
+        assert_eq!(u.q.kind, Kind::ApparentPower);
+        assert!(close(u.factor, 1e6));
+        let u = parse_unit_expr("mS").unwrap();
+        assert_eq!(u.q.dim, Dim::ADMITTANCE);
+        let u = parse_unit_expr("ms").unwrap();
+        assert_eq!(u.q.dim, Dim::TIME);
+    }
+
+    #[test]
+    fn compound_units() {
+        let u = parse_unit_expr("rad/s").unwrap();
+        assert_eq!(u.q.dim, Dim::FREQUENCY);
+        assert_eq!(u.q.kind, Kind::RadPerSec);
+        let u = parse_unit_expr("Ω/km").unwrap();
+        assert!(close(u.factor, 1e-3));
+        assert_eq!(u.q.dim, Dim::IMPEDANCE.per(Dim::LENGTH).unwrap());
+        let u = parse_unit_expr("kWh").unwrap();
+        assert!(close(u.factor, 3.6e6));
+        let u = parse_unit_expr("mm^2").unwrap();
+        assert!(close(u.factor, 1e-6));
+        let u = parse_unit_expr("V*A").unwrap();
+        assert_eq!(u.q.dim, Dim::POWER);
+    }
+
+    #[test]
+    fn degrees_are_angles() {
+        let u = parse_unit_expr("°").unwrap();
+        assert_eq!(u.q.kind, Kind::Angle);
+        assert!(close(u.factor, std::f64::consts::PI / 180.0));
+    }
+
+    #[test]
+    fn metre_alone_is_ambiguous() {
+        assert_eq!(parse_unit_expr("m"), Err(UnitError::AmbiguousMetre));
+        assert!(parse_unit_expr("km").is_ok());
+    }
+
+    #[test]
+    fn unknown_units_get_suggestions() {
+        match parse_unit_expr("kVa") {
+            Err(UnitError::Unknown { suggestion, .. }) => assert_eq!(suggestion.as_deref(), Some("kVA")),
+            other => panic!("{other:?}"),
+        }
+        match parse_unit_expr("ohms") {
+            Err(UnitError::Unknown { hint, .. }) => assert!(hint.unwrap().contains("ohm")),
+            other => panic!("{other:?}"),
+        }
+    }
+}

@@ -1,0 +1,9 @@
+//! The one integration-test binary (`autotests = false` in Cargo.toml):
+//! every file under tests/ is a module here, so the suite links once.
+
+mod common;
+
+mod cli_run;
+mod engine_recompute;
+mod language;
+mod reference;
