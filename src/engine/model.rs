@@ -223,7 +223,7 @@ pub fn compile(sheet: &Sheet) -> Model {
                 }
                 let id = cells.len() as CellId;
                 by_name.insert(name.clone(), id);
-                cells.push(new_cell(
+                let mut cell = new_cell(
                     sheet,
                     stmt,
                     name.clone(),
@@ -231,7 +231,13 @@ pub fn compile(sheet: &Sheet) -> Model {
                     d.name.span,
                     &d.expr,
                     d.display.as_ref(),
-                ));
+                );
+                if cell.display.is_none() {
+                    // An input written as a number with a unit is shown in
+                    // the unit the user wrote (1500 kVA stays 1500 kVA).
+                    cell.display = literal_unit(&d.expr);
+                }
+                cells.push(cell);
                 pending.push(Pending {
                     expr: Some(&d.expr),
                     check: None,
@@ -437,6 +443,16 @@ fn new_cell(
         input: false,
         comment: stmt.comment.clone(),
         tol: None,
+    }
+}
+
+/// The unit of a formula that is one number (or bracket) with a unit,
+/// possibly negated.
+fn literal_unit(e: &Expr) -> Option<Unit> {
+    match &e.kind {
+        ExprKind::Number { unit: Some(u), .. } | ExprKind::Paren(_, Some(u)) => Some(u.unit.clone()),
+        ExprKind::Unary(_, inner) => literal_unit(inner),
+        _ => None,
     }
 }
 

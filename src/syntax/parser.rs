@@ -307,9 +307,17 @@ struct Cx<'a> {
 type R<T> = Result<T, Diagnostic>;
 
 impl Cx<'_> {
+    /// The span of a pair, without the whitespace or end-of-line comment
+    /// pest may have taken in after its last token.
     fn span(&self, p: &Pair<Rule>) -> Span {
         let s = p.as_span();
-        Span::new(self.file, self.offset + s.start(), self.offset + s.end())
+        let text = s.as_str();
+        let code = match find_comment_start(text) {
+            Some(i) => &text[..i],
+            None => text,
+        };
+        let len = code.trim_end().len();
+        Span::new(self.file, self.offset + s.start(), self.offset + s.start() + len)
     }
 
     fn statement(&self, p: Pair<Rule>) -> R<StmtKind> {
@@ -821,6 +829,22 @@ mod tests {
         );
         let d = err_of("x = 1e999");
         assert_eq!(d.code, ErrorCode::BadNumber);
+    }
+
+    #[test]
+    fn spans_leave_out_trailing_comments() {
+        let line = "x = atan(y)   # note";
+        let s = parse_line(line, FileId(0), 0, 1).unwrap().unwrap();
+        match s.kind {
+            StmtKind::Def(d) => assert_eq!(&line[d.expr.span.range()], "atan(y)"),
+            k => panic!("{k:?}"),
+        }
+        let line = "x = a.b # c";
+        let s = parse_line(line, FileId(0), 0, 1).unwrap().unwrap();
+        match s.kind {
+            StmtKind::Def(d) => assert_eq!(&line[d.expr.span.range()], "a.b"),
+            k => panic!("{k:?}"),
+        }
     }
 
     #[test]
