@@ -4,6 +4,8 @@
 mod common;
 
 mod cli_run;
+mod demos;
 mod engine_recompute;
 mod language;
+mod readme;
 mod reference;
