@@ -134,85 +134,60 @@ pub enum Severity {
 }
 
 /// Stable names for every error a user can meet. `docs/errors.md` has an
-/// example of each; keep the two in step.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
-pub enum ErrorCode {
-    // reading a sheet
-    NotUtf8,
-    LineTooLong,
-    NestingTooDeep,
-    Syntax,
-    EmptySheet,
-    BareExpression,
-    // literals and units
-    BadNumber,
-    UnknownUnit,
-    AmbiguousUnit,
-    UnitNotAllowed,
-    // names and the graph
-    ReservedName,
-    DuplicateCell,
-    UnknownName,
-    UnknownFunction,
-    UnknownField,
-    Cycle,
-    TooManyCells,
-    // dimensions and types
-    DimensionMismatch,
-    NetworkOperand,
-    BadExponent,
-    FunctionArgs,
-    AngleAmbiguous,
-    NotARecord,
-    RecordAsValue,
-    BadTolerance,
-    // directives
-    UnknownDirective,
-    BadDirective,
-    // evaluation
-    NotANumber,
-    // command line
-    BadOverride,
-    Io,
+/// example of each, and a test keeps the two in step: a new variant needs
+/// a catalogue entry.
+macro_rules! error_codes {
+    ($($variant:ident => $name:literal,)*) => {
+        #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+        pub enum ErrorCode {
+            $($variant,)*
+        }
+
+        impl ErrorCode {
+            /// Every code, in declaration order.
+            pub const ALL: &'static [ErrorCode] = &[$(ErrorCode::$variant,)*];
+
+            /// The kebab-case name shown in brackets after `error`.
+            pub fn name(self) -> &'static str {
+                match self {
+                    $(ErrorCode::$variant => $name,)*
+                }
+            }
+        }
+    };
 }
 
-impl ErrorCode {
-    /// The kebab-case name shown in brackets after `error`.
-    pub fn name(self) -> &'static str {
-        use ErrorCode::*;
-        match self {
-            NotUtf8 => "not-utf8",
-            LineTooLong => "line-too-long",
-            NestingTooDeep => "nesting-too-deep",
-            Syntax => "syntax",
-            EmptySheet => "empty-sheet",
-            BareExpression => "bare-expression",
-            BadNumber => "bad-number",
-            UnknownUnit => "unknown-unit",
-            AmbiguousUnit => "ambiguous-unit",
-            UnitNotAllowed => "unit-not-allowed",
-            ReservedName => "reserved-name",
-            DuplicateCell => "duplicate-cell",
-            UnknownName => "unknown-name",
-            UnknownFunction => "unknown-function",
-            UnknownField => "unknown-field",
-            Cycle => "cycle",
-            TooManyCells => "too-many-cells",
-            DimensionMismatch => "dimension-mismatch",
-            NetworkOperand => "network-operand",
-            BadExponent => "bad-exponent",
-            FunctionArgs => "function-args",
-            AngleAmbiguous => "angle-ambiguous",
-            NotARecord => "not-a-record",
-            RecordAsValue => "record-as-value",
-            BadTolerance => "bad-tolerance",
-            UnknownDirective => "unknown-directive",
-            BadDirective => "bad-directive",
-            NotANumber => "not-a-number",
-            BadOverride => "bad-override",
-            Io => "io",
-        }
-    }
+error_codes! {
+    NotUtf8 => "not-utf8",
+    LineTooLong => "line-too-long",
+    NestingTooDeep => "nesting-too-deep",
+    Syntax => "syntax",
+    EmptySheet => "empty-sheet",
+    BareExpression => "bare-expression",
+    BadNumber => "bad-number",
+    UnknownUnit => "unknown-unit",
+    AmbiguousUnit => "ambiguous-unit",
+    UnitNotAllowed => "unit-not-allowed",
+    ReservedName => "reserved-name",
+    DuplicateCell => "duplicate-cell",
+    UnknownName => "unknown-name",
+    UnknownFunction => "unknown-function",
+    UnknownField => "unknown-field",
+    Cycle => "cycle",
+    TooManyCells => "too-many-cells",
+    DimensionMismatch => "dimension-mismatch",
+    NetworkOperand => "network-operand",
+    BadExponent => "bad-exponent",
+    FunctionArgs => "function-args",
+    AngleAmbiguous => "angle-ambiguous",
+    NotARecord => "not-a-record",
+    RecordAsValue => "record-as-value",
+    BadTolerance => "bad-tolerance",
+    UnknownDirective => "unknown-directive",
+    BadDirective => "bad-directive",
+    NotANumber => "not-a-number",
+    BadOverride => "bad-override",
+    Io => "io",
 }
 
 /// A message about a place in the source.

@@ -6,6 +6,7 @@ mod common;
 mod cli_run;
 mod demos;
 mod engine_recompute;
+mod errors_catalogue;
 mod language;
 mod readme;
 mod reference;

@@ -173,6 +173,12 @@ struct Pending<'a> {
 /// Compile a sheet. Always returns a model; `model.diagnostics` holds every
 /// error, and cells with errors have `error` set.
 pub fn compile(sheet: &Sheet) -> Model {
+    compile_limited(sheet, MAX_CELLS)
+}
+
+/// `compile` with a different cap on the number of cells (for tests of the
+/// limit).
+pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     let mut diags = sheet.errors.clone();
     let mut cells: Vec<Cell> = Vec::new();
     let mut pending: Vec<Pending> = Vec::new();
@@ -213,12 +219,15 @@ pub fn compile(sheet: &Sheet) -> Model {
                     );
                     continue;
                 }
-                if cells.len() >= MAX_CELLS {
-                    diags.push(Diagnostic::error(
-                        ErrorCode::TooManyCells,
-                        d.name.span,
-                        format!("more than {MAX_CELLS} cells in one sheet"),
-                    ));
+                if cells.len() >= max_cells {
+                    diags.push(
+                        Diagnostic::error(
+                            ErrorCode::TooManyCells,
+                            d.name.span,
+                            format!("more than {max_cells} cells in one sheet"),
+                        )
+                        .with_hint("split the sheet into smaller ones"),
+                    );
                     break;
                 }
                 let id = cells.len() as CellId;

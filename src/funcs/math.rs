@@ -127,6 +127,37 @@ fn l_max(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
     fold(e, a, Op::Max)
 }
 
+fn parts_type(q: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
+    let mag = match q[0].kind {
+        Kind::ReactivePower | Kind::ApparentPower => Quantity::new(q[0].dim, Kind::ApparentPower),
+        _ if q[0].dim == Dim::POWER => Quantity::new(q[0].dim, Kind::ApparentPower),
+        k => Quantity::new(q[0].dim, k),
+    };
+    let (re_q, im_q) = if q[0].dim == Dim::POWER {
+        (
+            Quantity::new(q[0].dim, Kind::RealPower),
+            Quantity::new(q[0].dim, Kind::ReactivePower),
+        )
+    } else {
+        (q[0], q[0])
+    };
+    Ok(Shape::Record(vec![
+        ("re", re_q),
+        ("im", im_q),
+        ("mag", mag),
+        ("ang", Quantity::ANGLE),
+    ]))
+}
+
+fn l_parts(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
+    vec![
+        e.un(Op::Re, a[0]),
+        e.un(Op::Im, a[0]),
+        e.un(Op::Abs, a[0]),
+        e.un(Op::Arg, a[0]),
+    ]
+}
+
 pub fn funcs() -> Vec<Builtin> {
     let f = |name, summary, params, returns, ty: TypeFn, lower: LowerFn| Builtin {
         name,
@@ -150,6 +181,14 @@ pub fn funcs() -> Vec<Builtin> {
         ),
         f("arg", "angle of z, shown in degrees", Z, "angle", angle_type, l_arg),
         f("conj", "complex conjugate", Z, "as z", same, l_conj),
+        f(
+            "parts",
+            "a complex value taken apart: fields re, im, mag, ang",
+            Z,
+            "record",
+            parts_type,
+            l_parts,
+        ),
         f("sqrt", "principal square root", Z, "√ of z's unit", sqrt_type, l_sqrt),
         f("exp", "e to the power x", X, "1", plain_type, l_exp),
         f("ln", "natural logarithm (principal value)", X, "1", plain_type, l_ln),

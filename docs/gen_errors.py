@@ -1,0 +1,95 @@
+#!/usr/bin/env python3
+"""Writes docs/errors.md: every error code with an example and the message
+ohmsheet prints for it. Run from the repository root after `cargo build`:
+
+    python3 docs/gen_errors.py > docs/errors.md
+
+The examples are the catalogue's content; tests/errors_catalogue.rs runs
+each `ohm` example and checks it yields its code, and checks that every
+code in src/diag.rs has an entry.
+"""
+import os
+import subprocess
+import sys
+import tempfile
+
+EXE = os.environ.get("OHMSHEET", "target/debug/ohmsheet")
+
+# (code, what it means, example sheet or None, note for non-sheet cases)
+ENTRIES = [
+    ("not-utf8", "The file is not UTF-8 text.", None,
+     "A sheet file containing the byte 0xFF: `printf 'x = 1\\xff\\n' > bad.ohm`."),
+    ("line-too-long", "A line longer than 10,000 bytes.", None,
+     "A generated line of 10,001 characters."),
+    ("nesting-too-deep", "Brackets nested more than 64 deep, or a formula tree more than 500 deep.", None,
+     "`x = ((((…1…))))` with 65 pairs of brackets."),
+    ("syntax", "The line does not follow the grammar.", "x = (1 + 2\n", None),
+    ("empty-sheet", "The sheet has no definitions.", "# nothing but a comment\n", None),
+    ("bare-expression", "A sheet line is an expression without a name.", "2 * 3\n", None),
+    ("bad-number", "A number beyond the range of a double.", "x = 1e999\n", None),
+    ("unknown-unit", "A unit word the table does not know.", "R = 20 ohms\n", None),
+    ("ambiguous-unit", "`m` alone after a space: milli or metres?", "x = 5 m\n", None),
+    ("unit-not-allowed", "A unit after a bracket that already has a dimension.", "V = 5 V\nx = (V) kV\n", None),
+    ("reserved-name", "A cell named `j`, `pi` or `check`.", "pi = 3.14\n", None),
+    ("duplicate-cell", "A name defined twice.", "x = 1\nx = 2\n", None),
+    ("unknown-name", "A name that no cell defines.", "Vsource = 5 V\nI = Vsorce / 2 Ω\n", None),
+    ("unknown-function", "A call of a function that does not exist.", "x = sqr(4)\n", None),
+    ("unknown-field", "A record has no field of that name.", "p = parts(3 + j4)\nx = p.phase\n", None),
+    ("cycle", "Cells that depend on themselves.", "a = b + 1\nb = 2 * a\n", None),
+    ("too-many-cells", "More than 2,000,000 cells in one sheet.", None, "A generated sheet."),
+    ("dimension-mismatch", "Quantities of different dimensions added, compared or shown in the wrong unit.",
+     "x = 5 V + 3 Ω\n", None),
+    ("network-operand", "`||` or `--` applied to something that is not an element.", "x = 5 V || 3 V\n", None),
+    ("bad-exponent", "A power that gives no whole SI dimension, or a dimensioned exponent.",
+     "x = (2 Ω)^0.3\n", None),
+    ("function-args", "Wrong number or units of arguments.", "x = sqrt(5 V)\n", None),
+    ("angle-ambiguous", "An angle mixed with a plain number (degrees or radians?).", "x = arg(1 + j) + 10\n", None),
+    ("not-a-record", "`.field` on a single value.", "z = 3\nx = z.re\n", None),
+    ("record-as-value", "A record used where one value is needed.", "p = parts(3 + j4)\nx = p * 2\n", None),
+    ("bad-tolerance", "A check's tolerance without the unit of the values compared.",
+     "Z = 5 Ω\ncheck Z ~= 5 Ω +- 0.1\n", None),
+    ("unknown-directive", "An `@word` the language does not know.", "@titel \"Feeder 3\"\nx = 1\n", None),
+    ("bad-directive", "A directive with a wrong value.", "@amplitude average\nx = 1\n", None),
+    ("not-a-number", "A cell evaluated to NaN; the message names where it first appeared.",
+     "a = 0 V\nb = a / a\n", None),
+    ("bad-override", "`--set` names no cell, or is not `NAME=EXPR`.", None,
+     "`ohmsheet run sheet.ohm --set Vx=240V` on a sheet without `Vx`."),
+    ("io", "The file cannot be read or written.", None, "`ohmsheet run missing.ohm`."),
+]
+
+
+def message(sheet):
+    with tempfile.TemporaryDirectory() as d:
+        path = os.path.join(d, "example.ohm")
+        with open(path, "w", encoding="utf-8") as f:
+            f.write(sheet)
+        r = subprocess.run([EXE, "run", path], capture_output=True, text=True)
+        return r.stderr.replace(path, "example.ohm").rstrip()
+
+
+def main():
+    out = ["# Error catalogue", "",
+           "Every error ohmsheet reports has a stable code, shown in brackets after",
+           "`error`. Each entry gives an example and the message it produces.",
+           "Exit status is 2 for all of them.", ""]
+    for code, what, sheet, note in ENTRIES:
+        out.append(f"## {code}")
+        out.append("")
+        out.append(what)
+        out.append("")
+        if sheet is not None:
+            out.append("```ohm")
+            out.append(sheet.rstrip())
+            out.append("```")
+            out.append("")
+            out.append("```text")
+            out.append(message(sheet))
+            out.append("```")
+        else:
+            out.append(f"Example: {note}")
+        out.append("")
+    sys.stdout.write("\n".join(out))
+
+
+if __name__ == "__main__":
+    main()
