@@ -54,6 +54,10 @@ ENTRIES = [
      "a = 0 V\nb = a / a\n", None),
     ("bad-override", "`--set` names no cell, or is not `NAME=EXPR`.", None,
      "`ohmsheet run sheet.ohm --set Vx=240V` on a sheet without `Vx`."),
+    ("bad-cases", "A column of a cases table (`ohmsheet batch --cases`) names no input of the sheet, "
+     "names a computed cell, or has a unit of the wrong dimension; or `--show` names no cell.", None,
+     "`ohmsheet batch sheet.ohm --cases cases.csv --out results.csv` where cases.csv has a column `Rx` "
+     "and the sheet no input `Rx`; the message lists the sheet's inputs."),
     ("io", "The file cannot be read or written.", None, "`ohmsheet run missing.ohm`."),
 ]
 

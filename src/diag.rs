@@ -187,6 +187,7 @@ error_codes! {
     BadDirective => "bad-directive",
     NotANumber => "not-a-number",
     BadOverride => "bad-override",
+    BadCases => "bad-cases",
     Io => "io",
 }
 

@@ -2,9 +2,11 @@
 //!
 //! See ARCHITECTURE.md for the code map and the invariants.
 
+pub mod batch;
 pub mod cli;
 pub mod diag;
 pub mod engine;
+pub mod fsutil;
 pub mod funcs;
 pub mod output;
 pub mod sheet;

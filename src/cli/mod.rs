@@ -2,7 +2,10 @@
 //! Each returns the process exit code: 0 all fine, 1 a check failed,
 //! 2 the sheet or the command line has an error.
 
+mod batch;
 mod run;
+
+pub use batch::errors_path;
 
 use std::ffi::OsString;
 use std::path::{Path, PathBuf};
@@ -33,6 +36,8 @@ pub struct Cli {
 pub enum Command {
     /// Evaluate a sheet and print every cell and check
     Run(RunArgs),
+    /// Evaluate a sheet for every row of a cases table (CSV) and write the results table
+    Batch(BatchArgs),
     /// List the built-in functions with their units
     Functions,
     /// List the units and prefixes the sheet language knows
@@ -54,6 +59,45 @@ pub struct RunArgs {
     pub format: Format,
 }
 
+#[derive(Args, Debug)]
+#[command(
+    after_help = "Each column of the cases table names an input of the sheet; its header may give \
+the unit of plain numbers (`Vll [kV]`), or the values carry their own (`13.8 kV`, `6+j10 Ω`).\n\
+Rows that cannot be computed are listed in RESULTS.errors.csv and left empty in the results.\n\
+Exit status: 0 every row computed, 1 some rows bad, 2 nothing written."
+)]
+pub struct BatchArgs {
+    /// The sheet to evaluate (a .ohm file)
+    pub sheet: PathBuf,
+    /// The cases table: a CSV file whose header row names inputs of the sheet
+    #[arg(long, value_name = "CASES.csv")]
+    pub cases: PathBuf,
+    /// Where to write the results table (written whole, or not at all)
+    #[arg(long, value_name = "RESULTS.csv")]
+    pub out: PathBuf,
+    /// Cells to write, comma-separated (default: every computed cell)
+    #[arg(long, value_delimiter = ',', value_name = "CELL,…")]
+    pub show: Option<Vec<String>>,
+    /// Complex values as real/imaginary (rect) or magnitude/angle (polar) column pairs
+    #[arg(long, value_enum, default_value_t = ComplexArg::Rect)]
+    pub complex: ComplexArg,
+    /// Stop at the first bad row; no results file is written
+    #[arg(long)]
+    pub strict: bool,
+    /// No progress bar, summary or list of bad rows on stderr
+    #[arg(long, short)]
+    pub quiet: bool,
+    /// Give a cell a new formula for every case, e.g. --set "f=50 Hz" (repeatable)
+    #[arg(long = "set", value_name = "NAME=EXPR")]
+    pub set: Vec<String>,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum ComplexArg {
+    Rect,
+    Polar,
+}
+
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
 pub enum Format {
     Table,
@@ -72,6 +116,7 @@ pub fn main_with(args: Vec<OsString>) -> i32 {
     };
     match cli.command {
         Command::Run(a) => run::run(&a),
+        Command::Batch(a) => batch::batch(&a),
         Command::Functions => {
             print!("{}", run::functions_listing());
             EXIT_OK

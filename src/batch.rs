@@ -1,0 +1,1017 @@
+//! Running one sheet over a table of cases.
+//!
+//! A `Plan` ties the columns of a cases table to the sheet's inputs and
+//! chooses the shown values. Each case's values are read with the sheet
+//! language's own rules for numbers and units (a plain number takes the
+//! unit in its column header), checked against the input's dimension, and
+//! evaluated 64 cases at a time by the block evaluator. `run_stream` reads
+//! the table in chunks, evaluates chunks in parallel and writes them back in
+//! input order, with a fixed number of chunks in flight, so memory stays
+//! the same however long the table is.
+//!
+//! A bad row (a value that does not read, a wrong unit, a NaN result) is
+//! reported with its row, column and reason, and the other rows go on.
+
+use std::collections::{BTreeMap, HashMap};
+use std::io::{self, Read, Write};
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::{mpsc, Arc};
+
+use csv::ByteRecord;
+use num_complex::Complex64 as C64;
+
+use crate::diag::{did_you_mean, Diagnostic, ErrorCode};
+use crate::engine::block::{Block, LANES};
+use crate::engine::ops::{self, Op};
+use crate::engine::program::Program;
+use crate::engine::{eval, CellId, Model, Role};
+use crate::funcs::Shape;
+use crate::sheet::Sheet;
+use crate::syntax::ast::{ExprKind, StmtKind};
+use crate::units::format::base_symbol;
+use crate::units::{parse_unit_expr, Kind, Quantity, Unit, UnitError};
+
+/// How a complex value is written: two columns either way.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ComplexForm {
+    /// Real and imaginary parts.
+    Rect,
+    /// Magnitude and angle in degrees.
+    Polar,
+}
+
+/// A column of the cases table: the input it sets.
+#[derive(Clone, Debug)]
+pub struct CaseColumn {
+    /// The header as written.
+    pub header: String,
+    pub name: String,
+    pub cell: CellId,
+    pub slot: u32,
+    /// The input's dimension and kind.
+    pub want: Quantity,
+    /// The unit in the header (`Vll [kV]`), for values without one.
+    pub unit: Option<Unit>,
+}
+
+/// One shown value: a scalar cell or one field of a record cell.
+#[derive(Clone, Debug)]
+pub struct Shown {
+    /// `I`, or `y.a` for a record field.
+    pub label: String,
+    pub cell: CellId,
+    pub slot: u32,
+    /// Real by construction (its imaginary part is zero for every case):
+    /// one column instead of two.
+    pub real: bool,
+    /// Written values are divided by this (display unit, degrees).
+    pub scale: f64,
+    /// The unit written in the header; empty for plain numbers.
+    pub unit: String,
+}
+
+/// Columns in, columns out, and the compiled sheet.
+#[derive(Clone, Debug)]
+pub struct Plan {
+    pub model: Arc<Model>,
+    pub columns: Vec<CaseColumn>,
+    pub shown: Vec<Shown>,
+    pub form: ComplexForm,
+}
+
+const DEG: f64 = std::f64::consts::PI / 180.0;
+
+fn plan_error(message: impl Into<String>) -> Diagnostic {
+    Diagnostic::unplaced(ErrorCode::BadCases, message)
+}
+
+/// `Vll [kV]` → (`Vll`, `Some("kV")`).
+fn split_header(h: &str) -> Result<(&str, Option<&str>), Diagnostic> {
+    let h = h.trim_start_matches('\u{FEFF}').trim();
+    match h.find('[') {
+        None => Ok((h, None)),
+        Some(i) => {
+            let Some(inner) = h[i + 1..].trim_end().strip_suffix(']') else {
+                return Err(plan_error(format!("column header `{h}` has an unclosed `[`"))
+                    .with_hint("write the unit in brackets after the name, e.g. `Vll [kV]`"));
+            };
+            Ok((h[..i].trim(), Some(inner.trim())))
+        }
+    }
+}
+
+fn unit_error_text(text: &str, e: UnitError) -> String {
+    match e {
+        UnitError::AmbiguousMetre => "`m` on its own is ambiguous: write `metre`, `km` or `mm`".into(),
+        UnitError::Exponent(w) => format!("bad power in unit `{w}`"),
+        UnitError::Unknown { word, suggestion, hint } => {
+            let mut s = format!("unknown unit `{word}` in `{text}`");
+            if let Some(x) = suggestion {
+                s.push_str(&format!(" (did you mean `{x}`?)"));
+            }
+            if let Some(h) = hint {
+                s.push_str(&format!("; {h}"));
+            }
+            s
+        }
+    }
+}
+
+/// Why a value of quantity `got` cannot set an input of quantity `want`.
+fn quantity_mismatch(name: &str, want: Quantity, got: Quantity) -> Option<String> {
+    if want.dim != got.dim {
+        if got.is_plain_number() {
+            let u = base_symbol(want);
+            return Some(format!(
+                "a plain number, but `{name}` is {}: give the unit in the value (`… {u}`) or in the column header (`{name} [{u}]`)",
+                want.describe()
+            ));
+        }
+        return Some(format!("{}, but `{name}` is {}", got.describe(), want.describe()));
+    }
+    let angle = |q: Quantity| q.kind == Kind::Angle;
+    if angle(want) != angle(got) {
+        return Some(if angle(want) {
+            format!("a plain number, but `{name}` is an angle: write `30°` (or `0.5 rad`), or put the unit in the column header (`{name} [°]`)")
+        } else {
+            format!("an angle, but `{name}` is {}", want.describe())
+        });
+    }
+    let freq = |q: Quantity| match q.kind {
+        Kind::Hertz => 1,
+        Kind::RadPerSec => 2,
+        _ => 0,
+    };
+    if freq(want) * freq(got) == 2 {
+        return Some(format!(
+            "{}, but `{name}` is {}: convert with ω = 2πf",
+            got.describe(),
+            want.describe()
+        ));
+    }
+    None
+}
+
+impl Plan {
+    /// Match the cases table's `headers` to the sheet's inputs and choose
+    /// the shown values (`show`, or every computed cell).
+    pub fn new(
+        model: Arc<Model>,
+        headers: &[String],
+        show: Option<&[String]>,
+        form: ComplexForm,
+    ) -> Result<Plan, Diagnostic> {
+        let m = &*model;
+        let inputs: Vec<&str> = m.inputs().map(|(_, c)| c.name.as_str()).collect();
+        let list = || {
+            if inputs.is_empty() {
+                "the sheet has no inputs (every cell uses another cell)".to_string()
+            } else {
+                format!("the sheet's inputs are: {}", inputs.join(", "))
+            }
+        };
+        let mut columns: Vec<CaseColumn> = Vec::new();
+        for h in headers {
+            let (name, unit_text) = split_header(h)?;
+            if name.is_empty() {
+                return Err(
+                    plan_error(format!("a column of the cases table has no name (header `{h}`)")).with_hint(list()),
+                );
+            }
+            let Some(id) = m.id(name) else {
+                let mut d = plan_error(format!("column `{name}` names no input of the sheet"));
+                if let Some(s) = did_you_mean(name, inputs.iter().copied()) {
+                    d = d.with_hint(format!("did you mean `{s}`? {}", list()));
+                } else {
+                    d = d.with_hint(list());
+                }
+                return Err(d);
+            };
+            let c = &m.cells[id as usize];
+            if c.role != Role::Def || !c.input || c.error.is_some() {
+                return Err(plan_error(format!(
+                    "column `{name}` names a computed cell (`{name} = {}`); a case can only set inputs",
+                    c.formula
+                ))
+                .with_hint(list()));
+            }
+            let Some(want) = c.quantity() else {
+                return Err(plan_error(format!(
+                    "column `{name}` names a cell with several fields; a case sets single values"
+                ))
+                .with_hint(list()));
+            };
+            if !c.code.is_empty() {
+                return Err(plan_error(format!(
+                    "input `{name}` is computed at run time and cannot be set per case"
+                )));
+            }
+            if columns.iter().any(|k| k.name == name) {
+                return Err(plan_error(format!("the cases table has two columns for `{name}`")));
+            }
+            let unit = match unit_text {
+                None => None,
+                Some(t) => {
+                    let u = parse_unit_expr(t).map_err(|e| {
+                        plan_error(format!("column `{h}`: {}", unit_error_text(t, e)))
+                            .with_hint(format!("`{name}` is {}", want.describe()))
+                    })?;
+                    if let Some(why) = quantity_mismatch(name, want, u.q) {
+                        return Err(plan_error(format!("column `{h}`: the unit `{t}` is {why}")));
+                    }
+                    Some(u)
+                }
+            };
+            columns.push(CaseColumn {
+                header: h.clone(),
+                name: name.to_string(),
+                cell: id,
+                slot: c.slot,
+                want,
+                unit,
+            });
+        }
+
+        let set_slots: Vec<u32> = columns.iter().map(|c| c.slot).collect();
+        let real = real_slots(&m.program, &set_slots);
+        let mut shown = Vec::new();
+        let mut add = |id: CellId, field: Option<usize>| {
+            let c = &m.cells[id as usize];
+            let (label, q, slot, display) = match (&c.shape, field) {
+                (Some(Shape::Scalar(q)), _) => (c.name.clone(), *q, c.slot, c.display.as_ref()),
+                (Some(Shape::Record(f)), Some(k)) => {
+                    (format!("{}.{}", c.name, f[k].0), f[k].1, c.slot + k as u32, None)
+                }
+                _ => return,
+            };
+            let (scale, unit) = match display {
+                Some(u) => (u.factor, u.symbol.clone()),
+                None if q.kind == Kind::Angle => (DEG, "°".to_string()),
+                None => (1.0, base_symbol(q)),
+            };
+            shown.push(Shown {
+                label,
+                cell: id,
+                slot,
+                real: real[slot as usize],
+                scale,
+                unit,
+            });
+        };
+        let fields = |id: CellId| match &m.cells[id as usize].shape {
+            Some(Shape::Record(f)) => (0..f.len()).map(Some).collect(),
+            _ => vec![None],
+        };
+        match show {
+            Some(names) => {
+                for n in names {
+                    let n = n.trim();
+                    let (base, field) = match m.id(n) {
+                        Some(_) => (n, None),
+                        None => match n.split_once('.') {
+                            Some((b, f)) => (b, Some(f)),
+                            None => (n, None),
+                        },
+                    };
+                    let id = match m.id(base) {
+                        Some(id) if m.cells[id as usize].role == Role::Def => id,
+                        _ => {
+                            let names = m.defs().map(|(_, c)| c.name.as_str());
+                            let mut d = plan_error(format!("--show: the sheet has no cell `{n}`"));
+                            if let Some(s) = did_you_mean(n, names) {
+                                d = d.with_hint(format!("did you mean `{s}`?"));
+                            }
+                            return Err(d);
+                        }
+                    };
+                    match (field, &m.cells[id as usize].shape) {
+                        (None, _) => fields(id).into_iter().for_each(|f| add(id, f)),
+                        (Some(f), Some(Shape::Record(fs))) => match fs.iter().position(|x| x.0 == f) {
+                            Some(k) => add(id, Some(k)),
+                            None => {
+                                let all: Vec<&str> = fs.iter().map(|x| x.0).collect();
+                                return Err(plan_error(format!("--show: `{base}` has no field `{f}`"))
+                                    .with_hint(format!("its fields are: {}", all.join(", "))));
+                            }
+                        },
+                        (Some(f), _) => {
+                            return Err(plan_error(format!(
+                                "--show: `{base}` is a single value with no field `{f}`"
+                            )))
+                        }
+                    }
+                }
+            }
+            None => {
+                for (id, c) in m.defs() {
+                    if c.error.is_none() && !c.input {
+                        fields(id).into_iter().for_each(|f| add(id, f));
+                    }
+                }
+            }
+        }
+        Ok(Plan {
+            model,
+            columns,
+            shown,
+            form,
+        })
+    }
+
+    /// The header row of the results: the case's columns, then the shown
+    /// values with their units.
+    pub fn out_header(&self) -> Vec<String> {
+        let mut h: Vec<String> = self.columns.iter().map(|c| c.header.clone()).collect();
+        let with = |name: String, unit: &str| {
+            if unit.is_empty() {
+                name
+            } else {
+                format!("{name} [{unit}]")
+            }
+        };
+        for s in &self.shown {
+            if s.real {
+                h.push(with(s.label.clone(), &s.unit));
+                continue;
+            }
+            match self.form {
+                ComplexForm::Rect => {
+                    h.push(with(format!("{}.re", s.label), &s.unit));
+                    h.push(with(format!("{}.im", s.label), &s.unit));
+                }
+                ComplexForm::Polar => {
+                    h.push(with(format!("{}.mag", s.label), &s.unit));
+                    h.push(with(format!("{}.ang", s.label), "°"));
+                }
+            }
+        }
+        h
+    }
+
+    fn n_out_fields(&self) -> usize {
+        self.shown.iter().map(|s| if s.real { 1 } else { 2 }).sum()
+    }
+}
+
+/// Which slots hold a real value whatever the cases: constants with no
+/// imaginary part, inputs the cases do not set, and results of operations
+/// that keep reals real (any imaginary part they could get is NaN, which
+/// fails the row anyway).
+pub fn real_slots(prog: &Program, set_by_cases: &[u32]) -> Vec<bool> {
+    let mut real: Vec<bool> = prog.init.iter().map(|z| z.im == 0.0).collect();
+    for &s in set_by_cases {
+        real[s as usize] = false;
+    }
+    for ins in &prog.code {
+        let a = || real[ins.a as usize];
+        let ab = || real[ins.a as usize] && real[ins.b as usize];
+        let r = match ins.op {
+            Op::Re | Op::Im | Op::Abs | Op::Arg | Op::Atan2 => true,
+            Op::Copy | Op::Neg | Op::Conj | Op::Recip | Op::PowI | Op::Exp | Op::Sin | Op::Cos | Op::Tan | Op::Atan => {
+                a()
+            }
+            Op::Add | Op::Sub | Op::Mul | Op::Div | Op::Par | Op::Min | Op::Max => ab(),
+            Op::Sqrt | Op::Ln | Op::Log10 | Op::Asin | Op::Acos | Op::Pow | Op::Polar => false,
+            Op::Call(_) => {
+                let width = prog.call_args[ins.a as usize];
+                for k in 0..width {
+                    real[(ins.dst + k) as usize] = false;
+                }
+                continue;
+            }
+        };
+        real[ins.dst as usize] = r;
+    }
+    real
+}
+
+// ---------------------------------------------------------------- values
+
+/// Reads case values with the sheet language's rules. Plain numbers and
+/// `number unit` take a fast path; anything else (`6+j10`, `277 ∠ -30°`,
+/// `4.7k`) is compiled as a one-line sheet. Results of the slow path are
+/// remembered, so a column of repeated values costs one compile.
+#[derive(Default)]
+pub struct ValueReader {
+    units: HashMap<String, Option<Unit>>,
+    slow: HashMap<(usize, Vec<u8>), Result<C64, String>>,
+}
+
+const SLOW_CACHE_MAX: usize = 4096;
+
+/// `[+-]?(digits[.digits*] | .digits)([eE][+-]?digits)?`: the language's
+/// number literal with one optional sign. Returns (negative, digits part).
+fn plain_number(s: &str) -> Option<(bool, &str)> {
+    let (neg, rest) = match s.as_bytes().first()? {
+        b'-' => (true, &s[1..]),
+        b'+' => (false, &s[1..]),
+        _ => (false, s),
+    };
+    let b = rest.as_bytes();
+    let mut i = 0;
+    let digits = |i: &mut usize| {
+        let st = *i;
+        while *i < b.len() && b[*i].is_ascii_digit() {
+            *i += 1;
+        }
+        *i - st
+    };
+    let lead = digits(&mut i);
+    if i < b.len() && b[i] == b'.' {
+        i += 1;
+        let frac = digits(&mut i);
+        if lead == 0 && frac == 0 {
+            return None;
+        }
+    } else if lead == 0 {
+        return None;
+    }
+    if i < b.len() && (b[i] == b'e' || b[i] == b'E') {
+        i += 1;
+        if i < b.len() && (b[i] == b'+' || b[i] == b'-') {
+            i += 1;
+        }
+        if digits(&mut i) == 0 {
+            return None;
+        }
+    }
+    (i == b.len()).then_some((neg, rest))
+}
+
+impl ValueReader {
+    /// The value of `text` for column `k` of the plan, in coherent SI
+    /// units, or the reason it cannot set that input.
+    pub fn read(&mut self, plan: &Plan, k: usize, bytes: &[u8]) -> Result<C64, String> {
+        let col = &plan.columns[k];
+        let Ok(text) = std::str::from_utf8(bytes) else {
+            return Err("the value is not UTF-8 text".into());
+        };
+        let text = text.trim();
+        if text.is_empty() {
+            return Err("no value".into());
+        }
+        // A plain number: the header's unit applies, as in `13.8 kV`.
+        if let Some((neg, digits)) = plain_number(text) {
+            let v: f64 = digits.parse().map_err(|_| format!("`{text}` is not a number"))?;
+            if !v.is_finite() {
+                return Err(format!("`{text}` is beyond the range of a double (about 1.8e308)"));
+            }
+            let (z, q) = match &col.unit {
+                Some(u) => (C64::new(v, 0.0) * u.factor, u.q),
+                None => (C64::new(v, 0.0), Quantity::PLAIN),
+            };
+            return finish(col, text, if neg { -z } else { z }, q);
+        }
+        // `number unit`, with the unit read once per distinct spelling.
+        if let Some((num, unit)) = text.split_once([' ', '\t']) {
+            let unit = unit.trim();
+            if let (Some((neg, digits)), false) = (plain_number(num), unit.contains(char::is_whitespace)) {
+                if let Some(u) = self.unit(unit) {
+                    let v: f64 = digits.parse().map_err(|_| format!("`{text}` is not a number"))?;
+                    if v.is_finite() {
+                        let z = C64::new(v, 0.0) * u.factor;
+                        return finish(col, text, if neg { -z } else { z }, u.q);
+                    }
+                }
+            }
+        }
+        let key = (k, bytes.to_vec());
+        if let Some(r) = self.slow.get(&key) {
+            return r.clone();
+        }
+        let r = slow_value(col, text);
+        if self.slow.len() >= SLOW_CACHE_MAX {
+            self.slow.clear();
+        }
+        self.slow.insert(key, r.clone());
+        r
+    }
+
+    /// The unit `text` as the language reads it after a number and a space,
+    /// or `None` when `1 text` is not simply a number with a unit.
+    fn unit(&mut self, text: &str) -> Option<Unit> {
+        if let Some(u) = self.units.get(text) {
+            return u.clone();
+        }
+        let line = format!("x = 1 {text}");
+        let sheet = Sheet::from_text("value", &line);
+        let u = match sheet.stmts.as_slice() {
+            [s] if sheet.errors.is_empty() => match &s.kind {
+                StmtKind::Def(d) if d.display.is_none() => match &d.expr.kind {
+                    ExprKind::Number {
+                        value,
+                        imag: false,
+                        unit: Some(u),
+                    } if *value == 1.0 => Some(u.unit.clone()),
+                    _ => None,
+                },
+                _ => None,
+            },
+            _ => None,
+        };
+        if self.units.len() < SLOW_CACHE_MAX {
+            self.units.insert(text.to_string(), u.clone());
+        }
+        u
+    }
+}
+
+fn finish(col: &CaseColumn, text: &str, z: C64, q: Quantity) -> Result<C64, String> {
+    if let Some(why) = quantity_mismatch(&col.name, col.want, q) {
+        return Err(format!("`{text}` is {why}"));
+    }
+    if z.re.is_nan() || z.im.is_nan() {
+        return Err(format!("`{text}` is not a number (NaN)"));
+    }
+    Ok(z)
+}
+
+/// Compile `x = text` and take its value: the language's full rules.
+fn slow_value(col: &CaseColumn, text: &str) -> Result<C64, String> {
+    if text.contains(['\n', '\r', '[', '@']) {
+        return Err(format!("`{}` is not a value", text.escape_debug()));
+    }
+    let sheet = Sheet::from_text("value", &format!("x = {text}"));
+    let model = crate::engine::compile(&sheet);
+    if let Some(d) = model.diagnostics.iter().find(|d| d.is_error()) {
+        let mut s = format!("`{text}`: {}", d.message);
+        if let Some(h) = &d.hint {
+            s.push_str(&format!(" (hint: {h})"));
+        }
+        return Err(s);
+    }
+    let id = model.id("x").ok_or_else(|| format!("`{text}` is not a value"))?;
+    let cell = &model.cells[id as usize];
+    let Some(q) = cell.quantity() else {
+        return Err(format!("`{text}` has several fields; a case sets a single value"));
+    };
+    let mut slots = model.program.init.clone();
+    eval::run(&model.program.code, &model.program, &mut slots);
+    let z = slots[cell.slot as usize];
+    match (&col.unit, q.is_plain_number()) {
+        // `(6+j10)` in an `Z [Ω]` column is `(6+j10) Ω`.
+        (Some(u), true) => finish(col, text, ops::apply2(Op::Mul, z, C64::new(u.factor, 0.0)), u.q),
+        _ => finish(col, text, z, q),
+    }
+}
+
+// ---------------------------------------------------------------- rows
+
+/// A row that could not be computed.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RowError {
+    /// 1-based number of the case (the first row after the header is 1).
+    pub case: u64,
+    /// Line in the cases file where the row starts (the header is line 1).
+    pub line: u64,
+    /// The column (or shown cell) at fault; empty for the row as a whole.
+    pub column: String,
+    /// The value as written, where one is at fault.
+    pub value: String,
+    pub reason: String,
+}
+
+/// Scratch space of one worker: a block of slots and the value cache.
+pub struct Worker {
+    block: Block,
+    reader: ValueReader,
+}
+
+impl Worker {
+    pub fn new(plan: &Plan) -> Worker {
+        Worker {
+            block: Block::new(&plan.model.program),
+            reader: ValueReader::default(),
+        }
+    }
+}
+
+/// Append a CSV field, quoted when it must be.
+fn push_field(out: &mut Vec<u8>, f: &[u8]) {
+    if f.iter().any(|&b| matches!(b, b',' | b'"' | b'\n' | b'\r')) {
+        out.push(b'"');
+        for &b in f {
+            if b == b'"' {
+                out.push(b'"');
+            }
+            out.push(b);
+        }
+        out.push(b'"');
+    } else {
+        out.extend_from_slice(f);
+    }
+}
+
+/// A number written so it reads back to the same bits.
+fn push_num(out: &mut Vec<u8>, x: f64, buf: &mut ryu::Buffer) {
+    if x.is_finite() {
+        out.extend_from_slice(buf.format_finite(x).as_bytes());
+    } else if x.is_nan() {
+        out.extend_from_slice(b"NaN");
+    } else if x > 0.0 {
+        out.extend_from_slice(b"inf");
+    } else {
+        out.extend_from_slice(b"-inf");
+    }
+}
+
+/// A whole CSV record, fields quoted as needed.
+pub fn csv_line<S: AsRef<[u8]>>(fields: &[S]) -> Vec<u8> {
+    let mut out = Vec::new();
+    for (i, f) in fields.iter().enumerate() {
+        if i > 0 {
+            out.push(b',');
+        }
+        push_field(&mut out, f.as_ref());
+    }
+    out.push(b'\n');
+    out
+}
+
+impl Plan {
+    /// Evaluate `rows` (cases numbered from `first_case`), appending result
+    /// lines to `out` and bad rows to `errors`.
+    pub fn eval_rows(
+        &self,
+        w: &mut Worker,
+        rows: &[ByteRecord],
+        first_case: u64,
+        out: &mut Vec<u8>,
+        errors: &mut Vec<RowError>,
+    ) {
+        let prog = &self.model.program;
+        let ncols = self.columns.len();
+        let mut num = ryu::Buffer::new();
+        for (g, group) in rows.chunks(LANES).enumerate() {
+            let mut ok = [true; LANES];
+            for (lane, rec) in group.iter().enumerate() {
+                let case = first_case + (g * LANES + lane) as u64 + 1;
+                let line = rec.position().map_or(0, |p| p.line());
+                let mut bad = |column: &str, value: &[u8], reason: String| {
+                    errors.push(RowError {
+                        case,
+                        line,
+                        column: column.to_string(),
+                        value: String::from_utf8_lossy(value).into_owned(),
+                        reason,
+                    })
+                };
+                if rec.len() != ncols {
+                    ok[lane] = false;
+                    bad(
+                        "",
+                        b"",
+                        format!("the row has {} fields; the header has {ncols}", rec.len()),
+                    );
+                    continue;
+                }
+                for (k, col) in self.columns.iter().enumerate() {
+                    match w.reader.read(self, k, &rec[k]) {
+                        Ok(z) => w.block.set(col.slot, lane, z),
+                        Err(reason) => {
+                            ok[lane] = false;
+                            bad(&col.header, &rec[k], reason);
+                        }
+                    }
+                }
+            }
+            w.block.run(&prog.code, prog);
+            for (lane, rec) in group.iter().enumerate() {
+                if ok[lane] {
+                    if let Some(e) = self.nan_in_lane(&w.block, lane) {
+                        ok[lane] = false;
+                        let case = first_case + (g * LANES + lane) as u64 + 1;
+                        let line = rec.position().map_or(0, |p| p.line());
+                        errors.push(RowError {
+                            case,
+                            line,
+                            column: e.0,
+                            value: String::new(),
+                            reason: e.1,
+                        });
+                    }
+                }
+                for k in 0..ncols {
+                    if k > 0 {
+                        out.push(b',');
+                    }
+                    if let Some(f) = rec.get(k) {
+                        push_field(out, f);
+                    }
+                }
+                if !ok[lane] {
+                    for _ in 0..self.n_out_fields() {
+                        out.push(b',');
+                    }
+                    out.push(b'\n');
+                    continue;
+                }
+                let mut first = ncols == 0;
+                for s in &self.shown {
+                    let z = w.block.get(s.slot, lane);
+                    let mut put = |x: f64| {
+                        if !first {
+                            out.push(b',');
+                        }
+                        first = false;
+                        push_num(out, x, &mut num);
+                    };
+                    if s.real {
+                        put(z.re / s.scale);
+                        continue;
+                    }
+                    match self.form {
+                        ComplexForm::Rect => {
+                            put(z.re / s.scale);
+                            put(z.im / s.scale);
+                        }
+                        ComplexForm::Polar => {
+                            put(ops::abs(z) / s.scale);
+                            put(z.im.atan2(z.re).to_degrees());
+                        }
+                    }
+                }
+                out.push(b'\n');
+            }
+        }
+        // Errors in case order (value errors of a block come before its NaNs).
+        errors.sort_by_key(|e| e.case);
+    }
+
+    /// The first shown value of `lane` that is NaN, with where the NaN was
+    /// born (found by re-running the case one cell at a time).
+    fn nan_in_lane(&self, b: &Block, lane: usize) -> Option<(String, String)> {
+        let s = self.shown.iter().find(|s| {
+            let z = b.get(s.slot, lane);
+            z.re.is_nan() || z.im.is_nan() || (s.real && z.im != 0.0)
+        })?;
+        let z = b.get(s.slot, lane);
+        if !z.re.is_nan() && !z.im.is_nan() {
+            return Some((
+                s.label.clone(),
+                format!("`{}` has an imaginary part where none was expected", s.label),
+            ));
+        }
+        let m = &*self.model;
+        let prog = &m.program;
+        let mut slots = prog.init.clone();
+        for c in &self.columns {
+            slots[c.slot as usize] = b.get(c.slot, lane);
+        }
+        eval::run(&prog.code, prog, &mut slots);
+        let nan = |id: CellId| {
+            let c = &m.cells[id as usize];
+            slots[c.slot as usize..(c.slot + c.width) as usize]
+                .iter()
+                .any(|z| z.re.is_nan() || z.im.is_nan())
+        };
+        let origin = m.order.iter().copied().find(|&id| {
+            m.cells[id as usize].role == Role::Def && nan(id) && !m.cells[id as usize].deps.iter().any(|&d| nan(d))
+        });
+        let at = match origin {
+            Some(o) if o != s.cell => format!("; it starts at `{}`", m.cells[o as usize].name),
+            _ => String::new(),
+        };
+        Some((
+            s.label.clone(),
+            format!(
+                "`{}` is NaN (not a number){at}: look for 0/0, ∞ − ∞ or 0·∞ in this case",
+                s.label
+            ),
+        ))
+    }
+}
+
+// ---------------------------------------------------------------- streaming
+
+/// Options of a streaming run.
+#[derive(Clone, Copy, Debug)]
+pub struct StreamOptions {
+    /// Stop at the first bad row.
+    pub strict: bool,
+    /// Rows per chunk (a multiple of the block size works best).
+    pub chunk_rows: usize,
+    /// Chunks in flight at once; bounds the memory used.
+    pub in_flight: usize,
+}
+
+impl Default for StreamOptions {
+    fn default() -> StreamOptions {
+        StreamOptions {
+            strict: false,
+            chunk_rows: 1024,
+            in_flight: 4 * rayon::current_num_threads().max(1),
+        }
+    }
+}
+
+/// What a streaming run did.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Summary {
+    /// Cases read (rows after the header).
+    pub cases: u64,
+    /// Rows that could not be computed.
+    pub bad_rows: u64,
+    /// `--strict` stopped the run at a bad row.
+    pub stopped: bool,
+}
+
+/// A run that could not go on.
+#[derive(Debug)]
+pub enum StreamError {
+    Read(csv::Error),
+    Write(io::Error),
+    Internal(String),
+}
+
+impl std::fmt::Display for StreamError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            StreamError::Read(e) => write!(f, "reading the cases: {e}"),
+            StreamError::Write(e) => write!(f, "writing the results: {e}"),
+            StreamError::Internal(e) => write!(f, "internal error: {e}"),
+        }
+    }
+}
+
+struct Chunk {
+    seq: u64,
+    first_case: u64,
+    rows: Vec<ByteRecord>,
+    len: usize,
+    /// Byte offset in the cases file after this chunk.
+    end_byte: u64,
+    out: Vec<u8>,
+    errors: Vec<RowError>,
+    worker: Option<Worker>,
+}
+
+enum Msg {
+    Done(Box<Chunk>),
+    End(u64),
+    Failed(StreamError),
+}
+
+/// The memory one chunk holds at most, for the bound stated in docs: rows,
+/// output and a block of slots. Everything else is fixed by the sheet.
+pub fn chunks_in_flight(opts: &StreamOptions) -> usize {
+    opts.in_flight.max(1)
+}
+
+/// Evaluate every row of `cases` (its header already read and planned) and
+/// write the result lines to `out` in input order. Bad rows go to
+/// `on_errors` in order; `progress(cases_done, bytes_read)` is called after
+/// each chunk is written.
+pub fn run_stream<R: Read + Send + 'static>(
+    plan: Arc<Plan>,
+    mut cases: csv::Reader<R>,
+    out: &mut dyn Write,
+    on_errors: &mut dyn FnMut(&[RowError]) -> io::Result<()>,
+    progress: &mut dyn FnMut(u64, u64),
+    opts: StreamOptions,
+) -> Result<Summary, StreamError> {
+    let (pool_tx, pool_rx) = mpsc::channel::<Chunk>();
+    for _ in 0..chunks_in_flight(&opts) {
+        let _ = pool_tx.send(Chunk {
+            seq: 0,
+            first_case: 0,
+            rows: Vec::new(),
+            len: 0,
+            end_byte: 0,
+            out: Vec::new(),
+            errors: Vec::new(),
+            worker: None,
+        });
+    }
+    let (done_tx, done_rx) = mpsc::channel::<Msg>();
+    let stop = Arc::new(AtomicBool::new(false));
+    let chunk_rows = opts.chunk_rows.max(1);
+
+    let reader = {
+        let stop = stop.clone();
+        let plan = plan.clone();
+        std::thread::spawn(move || {
+            let mut seq = 0u64;
+            let mut case = 0u64;
+            loop {
+                if stop.load(Ordering::Relaxed) {
+                    return;
+                }
+                let Ok(mut chunk) = pool_rx.recv() else { return };
+                chunk.seq = seq;
+                chunk.first_case = case;
+                chunk.len = 0;
+                let mut eof = false;
+                while chunk.len < chunk_rows {
+                    if chunk.rows.len() == chunk.len {
+                        chunk.rows.push(ByteRecord::new());
+                    }
+                    match cases.read_byte_record(&mut chunk.rows[chunk.len]) {
+                        Ok(true) => chunk.len += 1,
+                        Ok(false) => {
+                            eof = true;
+                            break;
+                        }
+                        Err(e) => {
+                            let _ = done_tx.send(Msg::Failed(StreamError::Read(e)));
+                            return;
+                        }
+                    }
+                }
+                chunk.end_byte = cases.position().byte();
+                if chunk.len > 0 {
+                    seq += 1;
+                    case += chunk.len as u64;
+                    let plan = plan.clone();
+                    let done = done_tx.clone();
+                    rayon::spawn(move || {
+                        let r = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+                            let mut c = chunk;
+                            c.out.clear();
+                            c.errors.clear();
+                            let mut w = c.worker.take().unwrap_or_else(|| Worker::new(&plan));
+                            plan.eval_rows(&mut w, &c.rows[..c.len], c.first_case, &mut c.out, &mut c.errors);
+                            c.worker = Some(w);
+                            c
+                        }));
+                        let _ = done.send(match r {
+                            Ok(c) => Msg::Done(Box::new(c)),
+                            Err(_) => Msg::Failed(StreamError::Internal("a worker panicked".into())),
+                        });
+                    });
+                }
+                if eof {
+                    let _ = done_tx.send(Msg::End(seq));
+                    return;
+                }
+            }
+        })
+    };
+
+    let mut summary = Summary::default();
+    let mut waiting: BTreeMap<u64, Chunk> = BTreeMap::new();
+    let mut next = 0u64;
+    let mut total: Option<u64> = None;
+    let fail = |e: StreamError, stop: &AtomicBool| {
+        stop.store(true, Ordering::Relaxed);
+        Err(e)
+    };
+    while total != Some(next) {
+        match done_rx.recv() {
+            Ok(Msg::Done(c)) => {
+                waiting.insert(c.seq, *c);
+            }
+            Ok(Msg::End(n)) => total = Some(n),
+            Ok(Msg::Failed(e)) => return fail(e, &stop),
+            Err(_) => return fail(StreamError::Internal("the reader stopped".into()), &stop),
+        }
+        while let Some(c) = waiting.remove(&next) {
+            summary.cases += c.len as u64;
+            if opts.strict && !c.errors.is_empty() {
+                // Only the rows before the first bad one count as done.
+                let first = c.errors[0].clone();
+                summary.bad_rows = 1;
+                summary.stopped = true;
+                summary.cases = first.case;
+                stop.store(true, Ordering::Relaxed);
+                on_errors(&[first]).map_err(StreamError::Write)?;
+                return Ok(summary);
+            }
+            out.write_all(&c.out).map_err(StreamError::Write)?;
+            if !c.errors.is_empty() {
+                let mut rows: Vec<u64> = c.errors.iter().map(|e| e.case).collect();
+                rows.dedup();
+                summary.bad_rows += rows.len() as u64;
+                on_errors(&c.errors).map_err(StreamError::Write)?;
+            }
+            progress(summary.cases, c.end_byte);
+            next += 1;
+            let _ = pool_tx.send(c);
+        }
+    }
+    let _ = reader.join();
+    Ok(summary)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn plain_numbers_follow_the_grammar() {
+        assert_eq!(plain_number("13.8"), Some((false, "13.8")));
+        assert_eq!(plain_number("-1e3"), Some((true, "1e3")));
+        assert_eq!(plain_number("+.5"), Some((false, ".5")));
+        assert_eq!(plain_number("5."), Some((false, "5.")));
+        for bad in ["", "-", ".", "e3", "1e", "inf", "NaN", "1.2.3", "4.7k", "--1", "1 V"] {
+            assert_eq!(plain_number(bad), None, "{bad}");
+        }
+    }
+
+    #[test]
+    fn headers_split_name_and_unit() {
+        assert_eq!(split_header("Vll [kV]").unwrap(), ("Vll", Some("kV")));
+        assert_eq!(split_header("\u{FEFF}R").unwrap(), ("R", None));
+        assert!(split_header("Vll [kV").is_err());
+    }
+}

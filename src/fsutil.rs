@@ -1,0 +1,153 @@
+//! Writing files so that a reader never sees half of one: everything goes
+//! to a temporary file beside the destination, which is renamed over it
+//! only when complete. A run that fails, panics or is interrupted leaves
+//! the destination as it was.
+
+use std::collections::HashSet;
+use std::io::{self, BufWriter, Write};
+use std::path::{Path, PathBuf};
+use std::sync::{Mutex, OnceLock};
+
+/// Temporary files not yet renamed, removed by the interrupt handler.
+fn live_temps() -> &'static Mutex<HashSet<PathBuf>> {
+    static LIVE: OnceLock<Mutex<HashSet<PathBuf>>> = OnceLock::new();
+    LIVE.get_or_init(|| Mutex::new(HashSet::new()))
+}
+
+/// A file being written in a temporary place, renamed to `dest` by
+/// `commit`. Dropped without `commit`, the temporary file is deleted.
+pub struct AtomicFile {
+    out: Option<BufWriter<tempfile::NamedTempFile>>,
+    tmp_path: PathBuf,
+    dest: PathBuf,
+}
+
+impl AtomicFile {
+    /// Start writing `dest`. The temporary file sits in the same directory
+    /// (so the final rename is atomic), named `.NAME.XXXXXX.partial`.
+    pub fn create(dest: &Path) -> io::Result<AtomicFile> {
+        let dir = match dest.parent() {
+            Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+            _ => PathBuf::from("."),
+        };
+        let name = dest
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_else(|| "output".into());
+        let prefix = format!(".{name}.");
+        let mut b = tempfile::Builder::new();
+        b.prefix(&prefix).suffix(".partial");
+        // An ordinary file's permissions (less the umask), not a private
+        // temporary file's.
+        #[cfg(unix)]
+        b.permissions(std::os::unix::fs::PermissionsExt::from_mode(0o666));
+        let tmp = b.tempfile_in(&dir)?;
+        let tmp_path = tmp.path().to_path_buf();
+        if let Ok(mut live) = live_temps().lock() {
+            live.insert(tmp_path.clone());
+        }
+        Ok(AtomicFile {
+            out: Some(BufWriter::with_capacity(1 << 20, tmp)),
+            tmp_path,
+            dest: dest.to_path_buf(),
+        })
+    }
+
+    pub fn dest(&self) -> &Path {
+        &self.dest
+    }
+
+    /// Flush, sync to disk and rename over the destination.
+    pub fn commit(mut self) -> io::Result<()> {
+        let out = self.out.take().expect("not yet committed");
+        let tmp = out.into_inner().map_err(|e| e.into_error())?;
+        tmp.as_file().sync_all()?;
+        let result = tmp.persist(&self.dest).map(|_| ()).map_err(|e| e.error);
+        self.forget();
+        result
+    }
+
+    fn forget(&self) {
+        if let Ok(mut live) = live_temps().lock() {
+            live.remove(&self.tmp_path);
+        }
+    }
+}
+
+impl Write for AtomicFile {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        self.out.as_mut().expect("not yet committed").write(buf)
+    }
+    fn write_all(&mut self, buf: &[u8]) -> io::Result<()> {
+        self.out.as_mut().expect("not yet committed").write_all(buf)
+    }
+    fn flush(&mut self) -> io::Result<()> {
+        self.out.as_mut().expect("not yet committed").flush()
+    }
+}
+
+impl Drop for AtomicFile {
+    fn drop(&mut self) {
+        // NamedTempFile deletes itself when dropped.
+        self.forget();
+    }
+}
+
+/// Write a whole file atomically.
+pub fn write_atomic(dest: &Path, bytes: &[u8]) -> io::Result<()> {
+    let mut f = AtomicFile::create(dest)?;
+    f.write_all(bytes)?;
+    f.commit()
+}
+
+/// On Ctrl-C or SIGTERM, delete every temporary file not yet renamed and
+/// exit with status 130. Installing it twice is harmless.
+pub fn remove_partial_files_on_interrupt() {
+    static ONCE: OnceLock<()> = OnceLock::new();
+    ONCE.get_or_init(|| {
+        let _ = ctrlc::set_handler(|| {
+            if let Ok(live) = live_temps().lock() {
+                for p in live.iter() {
+                    let _ = std::fs::remove_file(p);
+                }
+            }
+            eprintln!("interrupted: no results file was written");
+            std::process::exit(130);
+        });
+    });
+}
+
+/// `true` when `a` and `b` name the same existing file.
+pub fn same_file(a: &Path, b: &Path) -> bool {
+    match (a.canonicalize(), b.canonicalize()) {
+        (Ok(x), Ok(y)) => x == y,
+        _ => false,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn commit_renames_and_drop_discards() {
+        let dir = tempfile::tempdir().unwrap();
+        let dest = dir.path().join("out.csv");
+        let mut f = AtomicFile::create(&dest).unwrap();
+        f.write_all(b"a,b\n").unwrap();
+        assert!(!dest.exists(), "nothing at the destination before commit");
+        f.commit().unwrap();
+        assert_eq!(std::fs::read(&dest).unwrap(), b"a,b\n");
+
+        let mut g = AtomicFile::create(&dest).unwrap();
+        g.write_all(b"half").unwrap();
+        drop(g);
+        assert_eq!(
+            std::fs::read(&dest).unwrap(),
+            b"a,b\n",
+            "an abandoned write keeps the old file"
+        );
+        let left: Vec<_> = std::fs::read_dir(dir.path()).unwrap().collect();
+        assert_eq!(left.len(), 1, "the temporary file is gone");
+    }
+}
