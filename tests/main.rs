@@ -3,6 +3,7 @@
 
 mod common;
 
+mod cli_batch;
 mod cli_run;
 mod demos;
 mod engine_recompute;

@@ -53,9 +53,7 @@ pub fn batch(a: &BatchArgs) -> i32 {
         .buffer_capacity(1 << 20)
         .from_reader(file);
     let headers: Vec<String> = match cases.byte_headers() {
-        Ok(h) if h.iter().any(|f| !f.is_empty()) => {
-            h.iter().map(|f| String::from_utf8_lossy(f).into_owned()).collect()
-        }
+        Ok(h) if h.iter().any(|f| !f.is_empty()) => h.iter().map(|f| String::from_utf8_lossy(f).into_owned()).collect(),
         Ok(_) => {
             return fail(format!(
                 "`{}` is empty; its first line names the inputs a case sets",

@@ -1,0 +1,440 @@
+//! `ohmsheet batch`: a sheet over every row of a cases table. Results must
+//! equal `ohmsheet run --set` for the same values, keep the input order,
+//! survive bad rows, and never leave a half-written results file.
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicU64, Ordering};
+use std::sync::Arc;
+
+use num_complex::Complex64 as C64;
+use ohmsheet::batch::{run_stream, ComplexForm, Plan, RowError, StreamOptions};
+use predicates::prelude::*;
+
+use crate::assert_close;
+use crate::common::{model, ohmsheet};
+
+fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
+    let p = dir.join(name);
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+fn s(p: &Path) -> &str {
+    p.to_str().unwrap()
+}
+
+/// Rows of a CSV file as strings, header first.
+fn read_csv(p: &Path) -> Vec<Vec<String>> {
+    let mut r = csv::ReaderBuilder::new().has_headers(false).from_path(p).unwrap();
+    r.records()
+        .map(|x| x.unwrap().iter().map(str::to_string).collect())
+        .collect()
+}
+
+const FEEDER: &str = "\
+Vs = 480 V
+Zs = (0.02 + j0.1) Ω
+Zl = 6 Ω
+k = 1
+theta = 0°
+V = Vs ∠ theta
+Zt = Zs -- Zl * k
+Zp = Zl || Zs
+I = V / Zt
+S = V * conj(I)
+P = re(S)
+Q = im(S)
+Sm = abs(S)
+pf = P / Sm
+";
+
+/// The cases of row `i`, as (CSV field, the `--set` formula it means).
+fn case(i: usize) -> [(String, String); 4] {
+    let v = 0.4 + 0.013 * i as f64;
+    let vs = match i % 3 {
+        0 => (format!("{v}"), format!("Vs={v} kV")),
+        1 => (format!("{} V", v * 1000.0), format!("Vs={} V", v * 1000.0)),
+        _ => (format!("{v} kV"), format!("Vs={v} kV")),
+    };
+    let r = 1.0 + (i % 17) as f64 * 0.37;
+    let zl = match i % 4 {
+        0 => format!("{r} Ω"),
+        1 => format!("({r} + j{}) Ω", (i % 5) as f64 * 0.8),
+        2 => format!("{r} Ω ∠ {}°", (i % 7) as f64 * 5.0 - 10.0),
+        _ => format!("4.7 kΩ / {}", 100 + i),
+    };
+    let th = format!("{}", (i % 13) as f64 * 7.5 - 45.0);
+    let k = ["1", "2.5", "0.75", "-1"][i % 4].to_string();
+    [
+        vs,
+        (zl.clone(), format!("Zl={zl}")),
+        (th.clone(), format!("theta={th}°")),
+        (k.clone(), format!("k={k}")),
+    ]
+}
+
+#[test]
+fn batch_rows_equal_run_with_set() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = write(dir.path(), "feeder.ohm", FEEDER);
+    let n = 200; // several blocks of 64, the last one partial
+    let mut text = String::from("Vs [kV],Zl,theta [°],k\n");
+    for i in 0..n {
+        let f: Vec<String> = case(i).iter().map(|(v, _)| format!("\"{v}\"")).collect();
+        text.push_str(&f.join(","));
+        text.push('\n');
+    }
+    let cases = write(dir.path(), "cases.csv", &text);
+    let out = dir.path().join("results.csv");
+    ohmsheet()
+        .args(["batch", s(&sheet), "--cases", s(&cases), "--out", s(&out), "--quiet"])
+        .assert()
+        .code(0);
+    let rows = read_csv(&out);
+    assert_eq!(rows.len(), n + 1);
+    let header = &rows[0];
+    // Real by construction: one column each; complex: two.
+    for h in ["P [W]", "Q [var]", "Sm [VA]", "pf", "I.re [A]", "I.im [A]", "Zp.re [Ω]"] {
+        assert!(header.contains(&h.to_string()), "{h} in {header:?}");
+    }
+    for i in [0, 1, 2, 3, 63, 64, 65, 127, 128, 150, 199] {
+        // `run --format csv` writes values so they read back to the bit.
+        let mut cmd = ohmsheet();
+        cmd.args(["run", s(&sheet), "--format", "csv"]);
+        for (_, set) in case(i) {
+            cmd.args(["--set", &set]);
+        }
+        let text = cmd.assert().code(0).get_output().stdout.clone();
+        let single = write(dir.path(), "single.csv", std::str::from_utf8(&text).unwrap());
+        let cells = read_csv(&single);
+        assert_eq!(cells[0][..5], ["name", "formula", "unit", "re", "im"]);
+        let row = &rows[i + 1];
+        for cell in &cells[1..] {
+            let name = cell[0].as_str();
+            let unit = cell[2].as_str();
+            let re: f64 = cell[3].parse().unwrap();
+            let im: f64 = cell[4].parse().unwrap();
+            let col = |suffix: &str| {
+                let h = if unit.is_empty() {
+                    format!("{name}{suffix}")
+                } else {
+                    format!("{name}{suffix} [{unit}]")
+                };
+                header.iter().position(|x| *x == h)
+            };
+            let got = |k: usize| row[k].parse::<f64>().unwrap().to_bits();
+            if let (Some(a), Some(b)) = (col(".re"), col(".im")) {
+                assert_eq!((got(a), got(b)), (re.to_bits(), im.to_bits()), "row {i}, {name}");
+            } else if let Some(a) = col("") {
+                assert_eq!(got(a), re.to_bits(), "row {i}, {name}");
+                assert_eq!(im, 0.0, "row {i}: {name} is real");
+            } else {
+                assert!(["Vs", "Zs", "Zl", "k", "theta"].contains(&name), "{name} is not shown");
+            }
+        }
+    }
+}
+
+#[test]
+fn polar_columns_and_units_in_headers() {
+    // 480 V across (6 + j8) Ω: |I| = 480/10 = 48 A at -atan(8/6) =
+    // -53.13010235415598° (the 3-4-5 triangle; arithmetic, from memory).
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = write(dir.path(), "s.ohm", "V = 480 V\nZ = 6 Ω\nI = V / Z [kA]\n");
+    let cases = write(dir.path(), "c.csv", "Z [Ω],V\n6+j8,480 V\n6,0.48 kV\n");
+    let out = dir.path().join("r.csv");
+    ohmsheet()
+        .args([
+            "batch",
+            s(&sheet),
+            "--cases",
+            s(&cases),
+            "--out",
+            s(&out),
+            "--complex",
+            "polar",
+        ])
+        .assert()
+        .code(0);
+    let rows = read_csv(&out);
+    assert_eq!(rows[0], ["Z [Ω]", "V", "I.mag [kA]", "I.ang [°]"]);
+    assert_eq!(rows[1][..2], ["6+j8", "480 V"]);
+    let mag: f64 = rows[1][2].parse().unwrap();
+    let ang: f64 = rows[1][3].parse().unwrap();
+    assert_close!(C64::new(mag, 0.0), C64::new(0.048, 0.0), 1e-12);
+    assert_close!(C64::new(ang, 0.0), C64::new(-53.13010235415598, 0.0), 1e-12);
+    // 0.48 kV / 6 Ω = 80 A, in phase.
+    assert_close!(C64::new(rows[2][2].parse().unwrap(), 0.0), C64::new(0.08, 0.0), 1e-12);
+}
+
+#[test]
+fn bad_rows_are_reported_and_the_rest_computed() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = write(dir.path(), "s.ohm", "V = 120 V\nR = 10 Ω\nI = V / R\nG = 1 / I\n");
+    let cases = write(
+        dir.path(),
+        "c.csv",
+        "V,R [Ω]\n120 V,10\n12O V,10\n120 A,10\n120 V\n0 V,0\n240 V,20\n",
+    );
+    let out = dir.path().join("r.csv");
+    ohmsheet()
+        .args(["batch", s(&sheet), "--cases", s(&cases), "--out", s(&out)])
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains("c.csv:3: case 2: column `V`"))
+        .stderr(predicate::str::contains(
+            "c.csv:4: case 3: column `V`: `120 A` is a current (A), but `V` is a voltage (V)",
+        ))
+        .stderr(predicate::str::contains("4 bad rows"));
+    let rows = read_csv(&out);
+    assert_eq!(rows.len(), 7, "one output row per case");
+    assert_eq!(rows[1][2], "12.0"); // 120 V / 10 Ω (Ohm's law)
+    assert_eq!(rows[2][2], "", "a bad row's results are left empty");
+    assert_eq!(rows[6][2], "12.0"); // 240 V / 20 Ω
+    let errs = read_csv(&dir.path().join("r.errors.csv"));
+    assert_eq!(errs[0], ["case", "line", "column", "value", "reason"]);
+    let cols: Vec<(&str, &str, &str)> = errs[1..]
+        .iter()
+        .map(|r| (r[0].as_str(), r[2].as_str(), r[3].as_str()))
+        .collect();
+    assert_eq!(
+        cols,
+        [("2", "V", "12O V"), ("3", "V", "120 A"), ("4", "", ""), ("5", "I", "")]
+    );
+    assert!(errs[4][4].contains("NaN"), "{:?}", errs[4]);
+}
+
+#[test]
+fn strict_stops_at_the_first_bad_row_and_writes_nothing() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = write(dir.path(), "s.ohm", "V = 120 V\nR = 10 Ω\nI = V / R\n");
+    let cases = write(dir.path(), "c.csv", "V,R [Ω]\n120 V,10\n120,10\n120 V,5\n");
+    let out = dir.path().join("r.csv");
+    ohmsheet()
+        .args(["batch", s(&sheet), "--cases", s(&cases), "--out", s(&out), "--strict"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("case 2"))
+        .stderr(predicate::str::contains("no results were written"));
+    assert!(!out.exists());
+    assert!(!dir.path().join("r.errors.csv").exists());
+    assert_eq!(
+        std::fs::read_dir(dir.path()).unwrap().count(),
+        2,
+        "no temporary files left"
+    );
+}
+
+#[test]
+fn a_column_naming_no_input_is_an_error_listing_the_inputs() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = write(dir.path(), "s.ohm", "V = 120 V\nR = 10 Ω\nI = V / R\n");
+    let out = dir.path().join("r.csv");
+    let cases = write(dir.path(), "c.csv", "V,Rx\n1 V,2 Ω\n");
+    ohmsheet()
+        .args(["batch", s(&sheet), "--cases", s(&cases), "--out", s(&out)])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("column `Rx` names no input"))
+        .stderr(predicate::str::contains("the sheet's inputs are: V, R"));
+    let cases = write(dir.path(), "c.csv", "I\n1 A\n");
+    ohmsheet()
+        .args(["batch", s(&sheet), "--cases", s(&cases), "--out", s(&out)])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("names a computed cell"));
+    let cases = write(dir.path(), "c.csv", "V [A]\n1\n");
+    ohmsheet()
+        .args(["batch", s(&sheet), "--cases", s(&cases), "--out", s(&out)])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("is a current (A), but `V` is a voltage"));
+    assert!(!out.exists());
+    // The output may not overwrite the cases.
+    let cases = write(dir.path(), "c.csv", "V\n1 V\n");
+    ohmsheet()
+        .args(["batch", s(&sheet), "--cases", s(&cases), "--out", s(&cases)])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("would be overwritten"));
+    assert_eq!(std::fs::read_to_string(&cases).unwrap(), "V\n1 V\n");
+}
+
+#[test]
+fn input_order_is_kept_through_the_command() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = write(dir.path(), "s.ohm", "n = 0\ny = 3 * n + 1\n");
+    let mut text = String::from("n\n");
+    for i in 0..5000 {
+        text.push_str(&format!("{i}\n"));
+    }
+    let cases = write(dir.path(), "c.csv", &text);
+    let out = dir.path().join("r.csv");
+    ohmsheet()
+        .args(["batch", s(&sheet), "--cases", s(&cases), "--out", s(&out), "-q"])
+        .assert()
+        .code(0);
+    let rows = read_csv(&out);
+    assert_eq!(rows.len(), 5001);
+    for (i, r) in rows[1..].iter().enumerate() {
+        assert_eq!(r[0], i.to_string());
+        assert_eq!(r[1].parse::<f64>().unwrap(), (3 * i + 1) as f64);
+    }
+}
+
+/// A cases table made up on the fly, counting the rows handed out.
+struct Generated {
+    next: u64,
+    total: u64,
+    buf: Vec<u8>,
+    pos: usize,
+    produced: Arc<AtomicU64>,
+}
+
+impl std::io::Read for Generated {
+    fn read(&mut self, out: &mut [u8]) -> std::io::Result<usize> {
+        if self.pos == self.buf.len() {
+            self.buf.clear();
+            self.pos = 0;
+            if self.next == 0 {
+                self.buf.extend_from_slice(b"n\n");
+            }
+            if self.next == self.total {
+                return Ok(0);
+            }
+            self.buf.extend_from_slice(format!("{}\n", self.next).as_bytes());
+            self.next += 1;
+            self.produced.store(self.next, Ordering::SeqCst);
+        }
+        let k = out.len().min(self.buf.len() - self.pos);
+        out[..k].copy_from_slice(&self.buf[self.pos..self.pos + k]);
+        self.pos += k;
+        Ok(k)
+    }
+}
+
+/// Counts result rows, and checks every line arrives in order.
+struct Counting {
+    rows: u64,
+    produced: Arc<AtomicU64>,
+    max_gap: u64,
+    line: Vec<u8>,
+}
+
+impl Write for Counting {
+    fn write(&mut self, b: &[u8]) -> std::io::Result<usize> {
+        for &c in b {
+            if c == b'\n' {
+                let text = String::from_utf8(std::mem::take(&mut self.line)).unwrap();
+                let n: u64 = text.split(',').next().unwrap().parse().unwrap();
+                assert_eq!(n, self.rows, "rows come out in input order");
+                self.rows += 1;
+            } else {
+                self.line.push(c);
+            }
+        }
+        let gap = self.produced.load(Ordering::SeqCst) - self.rows;
+        self.max_gap = self.max_gap.max(gap);
+        Ok(b.len())
+    }
+    fn flush(&mut self) -> std::io::Result<()> {
+        Ok(())
+    }
+}
+
+#[test]
+fn streaming_keeps_order_and_bounded_rows_in_flight() {
+    let m = Arc::new(model("n = 0\ny = 3 * n + 1\nz = y / (n - 7)\n"));
+    let total = 60_000u64;
+    let produced = Arc::new(AtomicU64::new(0));
+    let gen = Generated {
+        next: 0,
+        total,
+        buf: Vec::new(),
+        pos: 0,
+        produced: produced.clone(),
+    };
+    let mut reader = csv::ReaderBuilder::new().buffer_capacity(4096).from_reader(gen);
+    let headers: Vec<String> = reader.headers().unwrap().iter().map(str::to_string).collect();
+    let plan = Arc::new(Plan::new(m, &headers, None, ComplexForm::Rect).unwrap());
+    let opts = StreamOptions {
+        strict: false,
+        chunk_rows: 100, // not a multiple of the block size
+        in_flight: 6,
+    };
+    let mut sink = Counting {
+        rows: 0,
+        produced,
+        max_gap: 0,
+        line: Vec::new(),
+    };
+    let mut errors: Vec<RowError> = Vec::new();
+    let summary = run_stream(
+        plan,
+        reader,
+        &mut sink,
+        &mut |e| {
+            errors.extend_from_slice(e);
+            Ok(())
+        },
+        &mut |_, _| {},
+        opts,
+    )
+    .unwrap();
+    assert_eq!(summary.cases, total);
+    assert_eq!(sink.rows, total);
+    // n = 7 divides by zero: 22/0 is infinite, not an error.
+    assert!(errors.is_empty(), "{errors:?}");
+    // Rows read but not yet written never exceed the chunks in flight plus
+    // the reader's buffer (4096 bytes, at least 2 bytes a row): memory does
+    // not grow with the length of the table.
+    let bound = (opts.in_flight as u64 + 1) * opts.chunk_rows as u64 + 2048;
+    assert!(sink.max_gap <= bound, "{} rows in flight, bound {bound}", sink.max_gap);
+}
+
+#[cfg(unix)]
+#[test]
+fn an_interrupted_run_leaves_no_results_file() {
+    use std::process::{Command, Stdio};
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = write(dir.path(), "s.ohm", "n = 0\ny = 3 * n + 1\n");
+    let fifo = dir.path().join("cases.csv");
+    assert!(Command::new("mkfifo").arg(&fifo).status().unwrap().success());
+    let out = dir.path().join("r.csv");
+    let mut child = Command::new(assert_cmd::cargo::cargo_bin("ohmsheet"))
+        .args(["batch", s(&sheet), "--cases", s(&fifo), "--out", s(&out), "-q"])
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    // Opening the pipe waits for the run to open it; then half a table.
+    let mut w = std::fs::OpenOptions::new().write(true).open(&fifo).unwrap();
+    w.write_all(b"n\n").unwrap();
+    for i in 0..20_000 {
+        writeln!(w, "{i}").unwrap();
+    }
+    w.flush().unwrap();
+    let partial = || {
+        std::fs::read_dir(dir.path())
+            .unwrap()
+            .filter(|e| e.as_ref().unwrap().file_name().to_string_lossy().ends_with(".partial"))
+            .count()
+    };
+    let t0 = std::time::Instant::now();
+    while partial() < 2 && t0.elapsed().as_secs() < 30 {
+        std::thread::sleep(std::time::Duration::from_millis(20));
+    }
+    assert_eq!(partial(), 2, "results and errors are being written to temporary files");
+    std::thread::sleep(std::time::Duration::from_millis(200));
+    assert!(Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap()
+        .success());
+    let status = child.wait().unwrap();
+    drop(w);
+    assert_eq!(status.code(), Some(130));
+    assert!(!out.exists(), "no results file");
+    assert!(!dir.path().join("r.errors.csv").exists());
+    assert_eq!(partial(), 0, "temporary files removed");
+}
