@@ -236,6 +236,7 @@ fn a_column_naming_no_input_is_an_error_listing_the_inputs() {
         .args(["batch", s(&sheet), "--cases", s(&cases), "--out", s(&out)])
         .assert()
         .code(2)
+        .stderr(predicate::str::contains("error[bad-cases]"))
         .stderr(predicate::str::contains("column `Rx` names no input"))
         .stderr(predicate::str::contains("the sheet's inputs are: V, R"));
     let cases = write(dir.path(), "c.csv", "I\n1 A\n");
