@@ -54,24 +54,20 @@ pub fn run(a: &RunArgs) -> i32 {
     EXIT_OK
 }
 
-/// Every function with its parameters, units and a one-line description.
+/// Every function with its parameters, units and a one-line description,
+/// under the heading of its family.
 pub fn functions_listing() -> String {
     let lib = crate::funcs::library();
-    let sigs: Vec<String> = lib.iter().map(signature).collect();
-    let w = sigs
-        .iter()
-        .map(|s| unicode_width::UnicodeWidthStr::width(s.as_str()))
-        .max()
-        .unwrap_or(0);
+    let sections = crate::funcs::sections();
     let mut out = String::new();
-    for (f, sig) in lib.iter().zip(&sigs) {
-        let pad = w - unicode_width::UnicodeWidthStr::width(sig.as_str());
-        out.push_str(&format!(
-            "{sig}{}  → {:<10} {}\n",
-            " ".repeat(pad),
-            f.returns,
-            f.summary
-        ));
+    for (i, f) in lib.iter().enumerate() {
+        if let Some((heading, _)) = sections.iter().find(|&&(_, start)| start == i) {
+            if i > 0 {
+                out.push('\n');
+            }
+            out.push_str(&format!("{heading}\n"));
+        }
+        out.push_str(&format!("  {} → {}\n      {}\n", signature(f), f.returns, f.summary));
     }
     out
 }

@@ -13,7 +13,14 @@
 //! it to that module's `FUNCS`, and add a test against a named outside
 //! source. See DEVELOPERS.md.
 
+pub mod elements;
+pub mod matching;
 pub mod math;
+pub mod networks;
+pub mod perunit;
+pub mod power;
+pub mod ratios;
+pub mod threephase;
 
 use std::sync::OnceLock;
 
@@ -111,14 +118,51 @@ pub struct Builtin {
     pub imp: Impl,
 }
 
+/// The families of functions, in listing order: a heading and the
+/// functions under it.
+fn families() -> Vec<(&'static str, Vec<Builtin>)> {
+    vec![
+        ("Mathematics", math::funcs()),
+        ("Elements at a frequency", elements::funcs()),
+        ("Dividers, sources and equivalents", networks::funcs()),
+        (
+            "Power, maximum power transfer and power-factor correction",
+            power::funcs(),
+        ),
+        ("Three phase", threephase::funcs()),
+        ("Per-unit", perunit::funcs()),
+        ("Matching networks", matching::funcs()),
+        ("Ratios", ratios::funcs()),
+    ]
+}
+
+struct Lib {
+    funcs: Vec<Builtin>,
+    /// (heading, index of its first function)
+    sections: Vec<(&'static str, usize)>,
+}
+
+fn lib() -> &'static Lib {
+    static LIB: OnceLock<Lib> = OnceLock::new();
+    LIB.get_or_init(|| {
+        let mut funcs = Vec::new();
+        let mut sections = Vec::new();
+        for (heading, fs) in families() {
+            sections.push((heading, funcs.len()));
+            funcs.extend(fs);
+        }
+        Lib { funcs, sections }
+    })
+}
+
 /// Every built-in function, in listing order.
 pub fn library() -> &'static [Builtin] {
-    static LIB: OnceLock<Vec<Builtin>> = OnceLock::new();
-    LIB.get_or_init(|| {
-        let mut v = Vec::new();
-        v.extend(math::funcs());
-        v
-    })
+    &lib().funcs
+}
+
+/// Headings of the listing, each with the index of its first function.
+pub fn sections() -> &'static [(&'static str, usize)] {
+    &lib().sections
 }
 
 /// Look a function up by name.
@@ -181,3 +225,164 @@ pub fn want_same(q: &[Quantity]) -> Result<Dim, ArgError> {
 pub fn scalar(dim: Dim, kind: Kind) -> Result<Shape, ArgError> {
     Ok(Shape::Scalar(Quantity::new(dim, kind)))
 }
+
+// ---- helpers for the engineering families ----
+
+/// An impedance: in Ω, or a per-unit value.
+pub fn is_impedance(q: Quantity) -> bool {
+    q.dim == Dim::IMPEDANCE || (q.dim.is_none() && q.kind == Kind::PerUnit)
+}
+
+/// Argument `i` must be an impedance (Ω or pu).
+pub fn want_impedance(q: &[Quantity], i: usize, param: &str) -> Result<(), ArgError> {
+    if is_impedance(q[i]) {
+        return Ok(());
+    }
+    let mut m = format!(
+        "`{param}` must be an impedance (Ω, or pu), but this is {}",
+        q[i].describe()
+    );
+    if q[i].dim == Dim::ADMITTANCE {
+        m.push_str("; for an admittance Y pass 1/Y");
+    } else if q[i].is_plain_number() {
+        m.push_str("; give it a unit: `(3 + j4) Ω` or `j0.1 pu`");
+    }
+    Err(ArgError::at(i, m))
+}
+
+/// Argument `i` must have dimension `dim`, or be a per-unit value.
+pub fn want_or_pu(q: &[Quantity], i: usize, dim: Dim, param: &str) -> Result<(), ArgError> {
+    if q[i].dim == dim || (q[i].dim.is_none() && q[i].kind == Kind::PerUnit) {
+        Ok(())
+    } else {
+        Err(ArgError::at(
+            i,
+            format!(
+                "`{param}` must be {} (or pu), but this is {}",
+                Quantity::of(dim).describe(),
+                q[i].describe()
+            ),
+        ))
+    }
+}
+
+/// Argument `i` must be a plain number: not a unit, an angle or per-unit.
+pub fn want_plain(q: &[Quantity], i: usize, param: &str, what: &str) -> Result<(), ArgError> {
+    if q[i].is_plain_number() {
+        Ok(())
+    } else {
+        Err(ArgError::at(
+            i,
+            format!(
+                "`{param}` must be a plain number ({what}), but this is {}",
+                q[i].describe()
+            ),
+        ))
+    }
+}
+
+/// Argument `i` must be a frequency whose kind says Hz or rad/s.
+pub fn want_frequency(q: &[Quantity], i: usize, param: &str) -> Result<(), ArgError> {
+    let x = q[i];
+    if x.dim != Dim::FREQUENCY {
+        return Err(ArgError::at(
+            i,
+            format!(
+                "`{param}` must be a frequency (Hz or rad/s), but this is {}",
+                x.describe()
+            ),
+        ));
+    }
+    match x.kind {
+        Kind::Hertz | Kind::RadPerSec => Ok(()),
+        _ => Err(ArgError::at(
+            i,
+            format!(
+                "`{param}` is a frequency, but not marked as Hz or rad/s, so it is unclear whether to multiply by 2π; \
+                 show the cell it comes from in one of them (`f0 = … [Hz]`) or write it with a unit (`50 Hz`)"
+            ),
+        )),
+    }
+}
+
+/// ω in rad/s from a frequency that passed `want_frequency`.
+pub fn omega(e: &mut Emitter, f: Operand, q: Quantity) -> Operand {
+    if q.kind == Kind::RadPerSec {
+        f
+    } else {
+        let k = e.konst(std::f64::consts::TAU, 0.0);
+        e.bin(crate::engine::ops::Op::Mul, f, k)
+    }
+}
+
+/// k in S = k·V·I*: 1 for RMS phasors, 1/2 for peak.
+pub fn power_k(e: &Emitter) -> f64 {
+    if e.peak {
+        0.5
+    } else {
+        1.0
+    }
+}
+
+/// A quantity for results.
+pub fn q(dim: Dim, kind: Kind) -> Quantity {
+    Quantity::new(dim, kind)
+}
+
+/// Per-unit result quantity.
+pub const PU: Quantity = Quantity {
+    dim: Dim::NONE,
+    kind: Kind::PerUnit,
+};
+
+/// A builtin with one fixed parameter list, lowered to instructions.
+pub fn lowered(
+    name: &'static str,
+    summary: &'static str,
+    params: &'static [Param],
+    returns: &'static str,
+    ty: TypeFn,
+    lower: LowerFn,
+) -> Builtin {
+    Builtin {
+        name,
+        summary,
+        params,
+        variadic: false,
+        returns,
+        ty,
+        imp: Impl::Lower(lower),
+    }
+}
+
+/// A builtin computed case by case.
+pub fn scalar_fn(
+    name: &'static str,
+    summary: &'static str,
+    params: &'static [Param],
+    returns: &'static str,
+    ty: TypeFn,
+    eval: ScalarFn,
+) -> Builtin {
+    Builtin {
+        name,
+        summary,
+        params,
+        variadic: false,
+        returns,
+        ty,
+        imp: Impl::Scalar(eval),
+    }
+}
+
+/// `p!("L", "H")`: a parameter, usable in a promoted `&[...]` list.
+#[macro_export]
+macro_rules! param {
+    ($name:expr, $unit:expr) => {
+        $crate::funcs::Param {
+            name: $name,
+            unit: $unit,
+        }
+    };
+}
+pub use param as p;
