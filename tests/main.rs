@@ -8,6 +8,8 @@ mod cli_run;
 mod demos;
 mod engine_recompute;
 mod errors_catalogue;
+mod funcs_reference;
+mod functions;
 mod language;
 mod readme;
 mod reference;

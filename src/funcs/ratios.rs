@@ -35,9 +35,15 @@ fn l_db_p(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
     vec![db(e, a[0], 10.0)]
 }
 
-fn ty_two_volts(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
-    want_or_pu(qs, 0, Dim::VOLTAGE, "V1")?;
-    want_or_pu(qs, 1, Dim::VOLTAGE, "V2")?;
+fn ty_vdrop(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
+    want_or_pu(qs, 0, Dim::VOLTAGE, "Vs")?;
+    want_or_pu(qs, 1, Dim::VOLTAGE, "Vr")?;
+    Ok(Shape::Scalar(Quantity::PLAIN))
+}
+
+fn ty_vreg(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
+    want_or_pu(qs, 0, Dim::VOLTAGE, "V_nl")?;
+    want_or_pu(qs, 1, Dim::VOLTAGE, "V_fl")?;
     Ok(Shape::Scalar(Quantity::PLAIN))
 }
 
@@ -80,7 +86,7 @@ pub fn funcs() -> Vec<Builtin> {
             "voltage drop from sending Vs to receiving Vr: (|Vs| − |Vr|)/|Vs|, a fraction",
             &[p!("Vs", "V|pu"), p!("Vr", "V|pu")],
             "1",
-            ty_two_volts,
+            ty_vdrop,
             l_vdrop,
         ),
         lowered(
@@ -88,7 +94,7 @@ pub fn funcs() -> Vec<Builtin> {
             "voltage regulation (|V_nl| − |V_fl|)/|V_fl|, no-load vs full-load, a fraction",
             &[p!("V_nl", "V|pu"), p!("V_fl", "V|pu")],
             "1",
-            ty_two_volts,
+            ty_vreg,
             l_vreg,
         ),
     ]

@@ -16,8 +16,13 @@ fn rot() -> C64 {
     C64::new(-0.5, SQRT3 / 2.0)
 }
 
-fn ty_ll_ln(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
-    want_or_pu(qs, 0, Dim::VOLTAGE, "V")?;
+fn ty_ll_to_ln(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
+    want_or_pu(qs, 0, Dim::VOLTAGE, "Vab")?;
+    Ok(Shape::Scalar(qs[0]))
+}
+
+fn ty_ln_to_ll(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
+    want_or_pu(qs, 0, Dim::VOLTAGE, "Van")?;
     Ok(Shape::Scalar(qs[0]))
 }
 
@@ -181,7 +186,7 @@ pub fn funcs() -> Vec<Builtin> {
             "line-to-neutral phasor Van from line-to-line Vab: Vab/(√3∠30°), positive sequence",
             &[p!("Vab", "V|pu")],
             "as Vab",
-            ty_ll_ln,
+            ty_ll_to_ln,
             l_ll_to_ln,
         ),
         lowered(
@@ -189,7 +194,7 @@ pub fn funcs() -> Vec<Builtin> {
             "line-to-line phasor Vab from line-to-neutral Van: √3∠30°·Van, positive sequence",
             &[p!("Van", "V|pu")],
             "as Van",
-            ty_ll_ln,
+            ty_ln_to_ll,
             l_ln_to_ll,
         ),
         lowered(

@@ -33,10 +33,22 @@ pub fn engine(src: &str) -> Engine {
     Engine::new(model(src))
 }
 
-/// The value of cell `name` (coherent SI units).
+/// The value of cell `name` (coherent SI units), or of field `f` of a
+/// record cell written `name.f`.
 pub fn value(e: &Engine, name: &str) -> C64 {
-    let id = e.model.id(name).unwrap_or_else(|| panic!("no cell {name}"));
-    e.value(id)
+    if let Some(id) = e.model.id(name) {
+        return e.value(id);
+    }
+    let (cell, field) = name.split_once('.').unwrap_or_else(|| panic!("no cell {name}"));
+    let id = e.model.id(cell).unwrap_or_else(|| panic!("no cell {cell}"));
+    let Some(ohmsheet::funcs::Shape::Record(fields)) = &e.model.cells[id as usize].shape else {
+        panic!("{cell} is not a record")
+    };
+    let k = fields
+        .iter()
+        .position(|(n, _)| *n == field)
+        .unwrap_or_else(|| panic!("{cell} has no field {field}"));
+    e.values(id)[k]
 }
 
 /// Value of the expression `src` (as the formula of a cell `x`) after the
