@@ -5,6 +5,7 @@ mod common;
 
 mod cli_batch;
 mod cli_run;
+mod demo_sheets;
 mod demos;
 mod engine_recompute;
 mod errors_catalogue;

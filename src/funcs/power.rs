@@ -240,6 +240,19 @@ fn s_q_pfc(a: &[C64], out: &mut [C64], _: &Ctx) {
     out[0] = C64::new(if bad { f64::NAN } else { q }, 0.0);
 }
 
+fn ty_s_of_p(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
+    want_real_power(qs, 0)?;
+    want_plain(qs, 1, "pf", "a power factor, + lagging, − leading")?;
+    scalar(Dim::POWER, Kind::ApparentPower)
+}
+
+/// S = P + j·P·tan φ, φ from the signed power factor.
+fn s_s_of_p(a: &[C64], out: &mut [C64], _: &Ctx) {
+    let pw = a[0].re;
+    let t = if a[1].im != 0.0 { f64::NAN } else { tan_phi(a[1].re) };
+    out[0] = C64::new(pw, pw * t);
+}
+
 const BANK: &[Param] = &[p!("Q", "var"), p!("V_LL", "V"), p!("f", "Hz|rad/s")];
 
 fn ty_cap_bank(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
@@ -350,6 +363,14 @@ pub fn funcs() -> Vec<Builtin> {
             "W|pu",
             ty_p_max,
             l_p_max,
+        ),
+        scalar_fn(
+            "s_of_p",
+            "complex power of a load taking P at power factor pf (+ lagging, − leading): P + j·P·tan φ",
+            &[p!("P", "W"), p!("pf", "1")],
+            "VA",
+            ty_s_of_p,
+            s_s_of_p,
         ),
         scalar_fn(
             "q_pfc",

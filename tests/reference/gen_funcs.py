@@ -191,6 +191,8 @@ CASES = [
     ("s_parts(s_vz(Vs, Zb)).lag", mp.mpf(-1), "Q < 0: leading"),
     ("best_load(Za)", mp.conj(Za), "maximum power transfer: ZL = Zth*"),
     ("p_max(Vth, Za)", Vth**2 / (4 * mp.re(Za)), "maximum power transfer: |V|²/(4R)"),
+    ("s_of_p(75 kW, 0.74)", 75e3 * (1 + J * tanphi("0.74")), "IEEE 1459: Q = P·tan φ, lagging"),
+    ("s_of_p(20 kW, -0.6)", 20e3 * (1 + J * tanphi("-0.6")), "IEEE 1459: leading, Q < 0"),
     ("q_pfc(180 kW, 0.72, 0.95)", 180e3 * (tanphi("0.72") - tanphi("0.95")), "IEEE 141 kvar multiplier"),
     ("q_pfc(100 kW, 0.8, -0.9)", 100e3 * (tanphi("0.8") - tanphi("-0.9")), "kvar multiplier to a leading pf"),
     ("cap_delta(60 kvar, 400 V, f)", 60e3 / (3 * w * 400**2), "Q per phase = ωC·V_LL² (delta)"),

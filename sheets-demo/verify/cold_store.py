@@ -1,0 +1,44 @@
+#!/usr/bin/env python3
+"""Independent check of sheets-demo/unbalanced-cold-store.ohm with Python's cmath/math,
+written from the textbook formulas (not from ohmsheet). Prints the values
+the sheet's `check` lines record. The scenario and numbers are invented."""
+import cmath
+import math
+
+J = 1j
+SQ3 = math.sqrt(3)
+
+
+def tanphi(pf):
+    """tan φ of a signed power factor (+ lagging, − leading)."""
+    t = math.sqrt(1 - pf * pf) / abs(pf)
+    return t if pf > 0 else -t
+
+
+def par(*zs):
+    return 1 / sum(1 / z for z in zs)
+
+
+def cold_store():
+    V = 400.0
+    a = cmath.rect(1, 2 * math.pi / 3)
+    # positive sequence, Vab at 30°
+    Vab = cmath.rect(V, math.radians(30))
+    Vbc = Vab * a * a
+    Vca = Vab * a
+    Zab = complex(14.0, 6.5)
+    Zbc = complex(22.0, 11.0)
+    Zca = complex(9.5, 2.0)
+    Iab, Ibc, Ica = Vab / Zab, Vbc / Zbc, Vca / Zca
+    Ia, Ib, Ic = Iab - Ica, Ibc - Iab, Ica - Ibc
+    I1 = (Ia + a * Ib + a * a * Ic) / 3
+    I2 = (Ia + a * a * Ib + a * Ic) / 3
+    for n, x in [("Ia", Ia), ("Ib", Ib), ("Ic", Ic), ("I1", I1), ("I2", I2)]:
+        print(f"{n} = {abs(x):.6g} A at {math.degrees(cmath.phase(x)):.6g}°")
+    print(f"I2/I1 = {abs(I2) / abs(I1):.6g}")
+    S = Vab * Iab.conjugate() + Vbc * Ibc.conjugate() + Vca * Ica.conjugate()
+    print(f"S = {S.real:.6g} W + j{S.imag:.6g} var")
+
+
+if __name__ == "__main__":
+    cold_store()
