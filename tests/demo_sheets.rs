@@ -1,7 +1,7 @@
 //! The demo sheets record checks, and those about energised equipment
 //! carry the caution. (demos.rs runs every sheet and requires exit 0.)
 
-use crate::common::{ohmsheet, repo};
+use crate::common::repo;
 
 fn demo_sheets() -> Vec<std::path::PathBuf> {
     let mut v: Vec<_> = std::fs::read_dir(repo("sheets-demo"))
