@@ -650,3 +650,56 @@ fn the_listing_shows_every_function_with_units() {
     assert!(text.contains("cap_delta(Q: var, V_LL: V, f: Hz|rad/s) → F"));
     assert!(text.contains("Three phase"));
 }
+
+// ---- the batch evaluator agrees ----
+
+/// The 64-lane evaluator gives the same bits as the scalar run for every
+/// cell and record field of the function demo sheets (lowered functions run
+/// as vector instructions there, scalar ones lane by lane).
+#[test]
+fn block_evaluator_agrees_on_the_function_demos() {
+    use ohmsheet::engine::block::{Block, LANES};
+    for name in [
+        "pf-correction-feed-mill.ohm",
+        "unbalanced-cold-store.ohm",
+        "induction-heater-match.ohm",
+        "rural-feeder-capacitor.ohm",
+    ] {
+        let text = std::fs::read_to_string(crate::common::repo(&format!("sheets-demo/{name}"))).unwrap();
+        let e = engine(&text);
+        let prog = &e.model.program;
+        let mut b = Block::new(prog);
+        b.run(&prog.code, prog);
+        for (id, c) in e.model.defs() {
+            for (k, want) in e.values(id).iter().enumerate() {
+                for l in [0, LANES - 1] {
+                    let got = b.get(c.slot + k as u32, l);
+                    assert_eq!(
+                        (got.re.to_bits(), got.im.to_bits()),
+                        (want.re.to_bits(), want.im.to_bits()),
+                        "{name}: {} field {k}",
+                        c.name
+                    );
+                }
+            }
+        }
+    }
+}
+
+/// docs/functions.md shows each family at work; every fenced block is a
+/// sheet that must compile and whose checks pass.
+#[test]
+fn functions_guide_examples_run() {
+    let text = std::fs::read_to_string(crate::common::repo("docs/functions.md")).unwrap();
+    let mut blocks = 0;
+    for block in text.split("```").skip(1).step_by(2) {
+        blocks += 1;
+        let e = engine(block);
+        let rows = ohmsheet::output::check_rows(&e, Default::default());
+        assert!(!rows.is_empty(), "a guide block without checks:\n{block}");
+        for row in rows {
+            assert!(row.passed, "guide check failed: {}", row.expr);
+        }
+    }
+    assert!(blocks >= 7, "found {blocks} blocks");
+}
