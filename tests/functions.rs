@@ -540,7 +540,8 @@ fn wrong_units_are_refused() {
     );
     refused("x = q_pfc(100 kW, 30°, 0.95)", "`pf1` must be a plain number");
     refused("x = cap_delta(100 kW, 400 V, 50 Hz)", "`Q` must be a reactive power");
-    refused("x = cap_wye(100 kvar, 400 A, 50 Hz)", "must be a voltage");
+    refused("x = cap_wye(100 kvar, 400 A, 50 Hz)", "`V_LL` must be a voltage");
+    refused("x = cap_1ph(100 kvar, 400 A, 50 Hz)", "`V` must be a voltage");
     refused("x = i_line(100 kW, 400 V, 0.9 pu)", "`pf` must be a plain number");
     refused("x = pf(230 V)", "must be a power (VA) or a load impedance");
     refused("x = s_parts(5 Ω)", "`S` must be a power");
@@ -664,6 +665,7 @@ fn block_evaluator_agrees_on_the_function_demos() {
         "unbalanced-cold-store.ohm",
         "induction-heater-match.ohm",
         "rural-feeder-capacitor.ohm",
+        "beacon-antenna-match.ohm",
     ] {
         let text = std::fs::read_to_string(crate::common::repo(&format!("sheets-demo/{name}"))).unwrap();
         let e = engine(&text);

@@ -255,11 +255,19 @@ fn s_s_of_p(a: &[C64], out: &mut [C64], _: &Ctx) {
 
 const BANK: &[Param] = &[p!("Q", "var"), p!("V_LL", "V"), p!("f", "Hz|rad/s")];
 
-fn ty_cap_bank(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
+fn ty_cap(qs: &[Quantity], volts: &str) -> Result<Shape, ArgError> {
     want_reactive_power(qs, 0)?;
-    want(qs, 1, Dim::VOLTAGE, "V")?;
+    want(qs, 1, Dim::VOLTAGE, volts)?;
     want_frequency(qs, 2, "f")?;
     scalar(Dim::CAPACITANCE, Kind::Plain)
+}
+
+fn ty_cap_bank(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
+    ty_cap(qs, "V_LL")
+}
+
+fn ty_cap_1ph(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
+    ty_cap(qs, "V")
 }
 
 /// C = Q/(n·k·ω·|V|²).
@@ -401,7 +409,7 @@ pub fn funcs() -> Vec<Builtin> {
             "capacitance giving Q at voltage V, single phase: Q/(ω·V²)",
             &[p!("Q", "var"), p!("V", "V"), p!("f", "Hz|rad/s")],
             "F",
-            ty_cap_bank,
+            ty_cap_1ph,
             l_cap_wye,
         ),
         lowered(
