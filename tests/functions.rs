@@ -705,3 +705,15 @@ fn functions_guide_examples_run() {
     }
     assert!(blocks >= 7, "found {blocks} blocks");
 }
+
+// A record cell of constants (say a matching network computed from fixed
+// values) is a result, not an input: it is not offered for `--set`-style
+// setting, and its fields are not marked as inputs.
+#[test]
+fn record_cells_are_not_inputs() {
+    let e = engine("Rs = 100 Ω\nm = lmatch_hp(100 Ω, 1000 Ω, 100 MHz)\nq = q_pfc(1 kW, 0.8, 1)");
+    let inputs: Vec<&str> = e.model.inputs().map(|(_, c)| c.name.as_str()).collect();
+    assert_eq!(inputs, ["Rs", "q"]);
+    let rows = ohmsheet::output::cell_rows(&e, Default::default());
+    assert!(rows.iter().filter(|r| r.name.starts_with("m.")).all(|r| !r.input));
+}

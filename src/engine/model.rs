@@ -373,7 +373,9 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                 let cell = &mut cells[i];
                 place_result(cell, val, &mut slots, &mut code, start);
                 cell.code = start..code.len() as u32;
-                cell.input = cell.role == Role::Def && cell.deps.is_empty();
+                // A record (several fields) is never an input: one value
+                // cannot be set into it.
+                cell.input = cell.role == Role::Def && cell.deps.is_empty() && cell.width == 1;
                 order.push(id);
             }
         }
