@@ -188,6 +188,9 @@ error_codes! {
     NotANumber => "not-a-number",
     BadOverride => "bad-override",
     BadCases => "bad-cases",
+    IncludePath => "include-path",
+    IncludeCycle => "include-cycle",
+    NameClash => "name-clash",
     Io => "io",
 }
 

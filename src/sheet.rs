@@ -1,12 +1,71 @@
 //! A sheet as read from disk: its source texts and statements, before
 //! compiling. Overrides (`--set NAME=EXPR`) are applied here, as new
 //! formulas for existing cells.
+//!
+//! Library sheets: `@include "lib/cables.ohm"` merges another sheet's cells
+//! (and checks and notes) into this one. The path is relative to the file
+//! that names it and must stay inside the main sheet's folder tree, or a
+//! folder the command line allows (`--allow-dir`). Paths are canonicalised
+//! (so a symbolic link is judged by where it points); each file is read
+//! once; a cycle or a name defined in two files is a located error. An
+//! included file's metadata (`@title` …) stays with that file and does not
+//! become the including sheet's.
 
-use std::path::Path;
+use std::collections::HashMap;
+use std::path::{Component, Path, PathBuf};
+
+use sha2::{Digest, Sha256};
 
 use crate::diag::{Diagnostic, ErrorCode, FileId, SourceFile, SourceMap, Span};
-use crate::syntax::ast::{Definition, Ident, Stmt, StmtKind};
+use crate::engine::model::META_KEYS;
+use crate::syntax::ast::{Definition, Directive, Ident, Stmt, StmtKind};
 use crate::syntax::{parse_line, parse_sheet};
+
+/// The directive that merges a library sheet.
+pub const INCLUDE: &str = "include";
+
+/// The deepest chain of includes, and the most files one sheet may pull in.
+pub const MAX_INCLUDE_DEPTH: usize = 32;
+pub const MAX_INCLUDED_FILES: usize = 256;
+
+/// How a sheet file is read.
+#[derive(Clone, Debug, Default)]
+pub struct LoadOptions {
+    /// Folders outside the sheet's own tree that `@include` may read from.
+    pub allow_dirs: Vec<PathBuf>,
+}
+
+/// One file of a sheet: the main file first, then each included file in
+/// the order it is first met (depth first, in text order).
+#[derive(Clone, Debug)]
+pub struct SheetFile {
+    pub id: FileId,
+    /// The path relative to the main sheet's folder, `/`-separated (the
+    /// main file's own name for the main file).
+    pub rel: String,
+    /// The canonical path (`None` for text that is not a file).
+    pub canonical: Option<PathBuf>,
+    /// SHA-256 of the file's exact bytes.
+    pub sha256: [u8; 32],
+    /// Length in bytes.
+    pub len: u64,
+    /// `@title` and friends as stated in an included file (the main file's
+    /// are in the compiled model).
+    pub meta: Vec<(String, String)>,
+    /// Where the including sheet names it.
+    pub included_at: Option<Span>,
+}
+
+impl SheetFile {
+    pub fn sha256_hex(&self) -> String {
+        hex(&self.sha256)
+    }
+}
+
+/// Lower-case hexadecimal.
+pub fn hex(bytes: &[u8]) -> String {
+    bytes.iter().map(|b| format!("{b:02x}")).collect()
+}
 
 /// A sheet that could not be read at all, with the sources its message
 /// points into.
@@ -21,8 +80,10 @@ pub struct Sheet {
     pub sources: SourceMap,
     pub main: FileId,
     pub stmts: Vec<Stmt>,
-    /// Errors met while reading (syntax, units).
+    /// Errors met while reading (syntax, units, includes).
     pub errors: Vec<Diagnostic>,
+    /// The main file and every file it includes, in hashing order.
+    pub files: Vec<SheetFile>,
 }
 
 /// Decode sheet bytes: UTF-8 (an error names the first bad byte), with a
@@ -46,32 +107,102 @@ impl Sheet {
         let mut sources = SourceMap::new();
         let main = sources.add(SourceFile::new(name, None, text.to_string()));
         let parsed = parse_sheet(text, main);
+        let mut stmts = Vec::with_capacity(parsed.stmts.len());
+        let mut errors = parsed.errors;
+        for st in parsed.stmts {
+            match &st.kind {
+                StmtKind::Directive(d) if d.name.name == INCLUDE => errors.push(
+                    Diagnostic::error(
+                        ErrorCode::IncludePath,
+                        d.name.span,
+                        "`@include` needs a sheet saved as a file",
+                    )
+                    .with_label("this text has no folder to find the library in")
+                    .with_hint("save the sheet to a file next to the library sheet and open that file"),
+                ),
+                _ => stmts.push(st),
+            }
+        }
         Sheet {
             sources,
             main,
-            stmts: parsed.stmts,
-            errors: parsed.errors,
+            stmts,
+            errors,
+            files: vec![SheetFile {
+                id: main,
+                rel: name.to_string(),
+                canonical: None,
+                sha256: Sha256::digest(text.as_bytes()).into(),
+                len: text.len() as u64,
+                meta: Vec::new(),
+                included_at: None,
+            }],
         }
     }
 
-    /// Read and parse a sheet file. An unreadable or non-UTF-8 file is an
-    /// error here; syntax errors are collected in `errors`.
+    /// Read and parse a sheet file and the library sheets it includes,
+    /// with default options (no folders allowed outside its own tree).
     pub fn load(path: &Path) -> Result<Sheet, Box<LoadError>> {
+        Sheet::load_with(path, &LoadOptions::default())
+    }
+
+    /// Read and parse a sheet file and the library sheets it includes. An
+    /// unreadable or non-UTF-8 main file is an error here; everything else
+    /// (syntax, a bad include) is collected in `errors`.
+    pub fn load_with(path: &Path, opts: &LoadOptions) -> Result<Sheet, Box<LoadError>> {
         let name = path.display().to_string();
-        let bytes = std::fs::read(path).map_err(|e| {
+        let io_err = |msg: String| {
             Box::new(LoadError {
                 sources: SourceMap::new(),
-                diagnostic: Diagnostic::unplaced(ErrorCode::Io, format!("cannot read `{name}`: {e}")),
+                diagnostic: Diagnostic::unplaced(ErrorCode::Io, msg),
             })
-        })?;
+        };
+        let bytes = std::fs::read(path).map_err(|e| io_err(format!("cannot read `{name}`: {e}")))?;
         match decode(&bytes) {
             Ok(text) => {
-                let mut s = Sheet::from_text(&name, &text);
-                let id = s.main;
-                let f = s.sources.get(id).clone();
-                s.sources = SourceMap::new();
-                s.sources.add(SourceFile::new(f.name, Some(path.to_path_buf()), f.text));
-                Ok(s)
+                let canonical =
+                    std::fs::canonicalize(path).map_err(|e| io_err(format!("cannot read `{name}`: {e}")))?;
+                let root = canonical.parent().map(Path::to_path_buf).unwrap_or_default();
+                let mut allowed = vec![root.clone()];
+                for d in &opts.allow_dirs {
+                    let c = std::fs::canonicalize(d)
+                        .map_err(|e| io_err(format!("cannot use `--allow-dir {}`: {e}", d.display())))?;
+                    if !c.is_dir() {
+                        return Err(io_err(format!("`--allow-dir {}` is not a folder", d.display())));
+                    }
+                    allowed.push(c);
+                }
+                let mut sources = SourceMap::new();
+                let main = sources.add(SourceFile::new(name.clone(), Some(path.to_path_buf()), text));
+                let file_name = path
+                    .file_name()
+                    .map_or_else(|| name.clone(), |f| f.to_string_lossy().into_owned());
+                let mut ld = Loader {
+                    sources,
+                    files: vec![SheetFile {
+                        id: main,
+                        rel: file_name,
+                        canonical: Some(canonical.clone()),
+                        sha256: Sha256::digest(&bytes).into(),
+                        len: bytes.len() as u64,
+                        meta: Vec::new(),
+                        included_at: None,
+                    }],
+                    stmts: Vec::new(),
+                    errors: Vec::new(),
+                    allowed,
+                    main_dir: Path::new(&name).parent().map(Path::to_path_buf).unwrap_or_default(),
+                    amplitudes: Vec::new(),
+                };
+                ld.file(0, &mut vec![canonical]);
+                ld.finish();
+                Ok(Sheet {
+                    sources: ld.sources,
+                    main,
+                    stmts: ld.stmts,
+                    errors: ld.errors,
+                    files: ld.files,
+                })
             }
             Err((at, good)) => {
                 let mut sources = SourceMap::new();
@@ -159,4 +290,319 @@ impl Sheet {
             }
         }
     }
+}
+
+/// Reads a main file and, depth first, the files it includes.
+struct Loader {
+    sources: SourceMap,
+    files: Vec<SheetFile>,
+    stmts: Vec<Stmt>,
+    errors: Vec<Diagnostic>,
+    /// Canonical folders an include may read from: the main sheet's own
+    /// folder first, then each `--allow-dir`.
+    allowed: Vec<PathBuf>,
+    /// The folder of the main file as the user named it, for the names
+    /// shown in messages.
+    main_dir: PathBuf,
+    /// Every `@amplitude` met: file index, span, value.
+    amplitudes: Vec<(usize, Span, String)>,
+}
+
+impl Loader {
+    /// Merge the statements of `files[idx]`; `stack` holds the canonical
+    /// paths of the files that include it (itself last).
+    fn file(&mut self, idx: usize, stack: &mut Vec<PathBuf>) {
+        let id = self.files[idx].id;
+        let text = self.sources.get(id).text.clone();
+        let parsed = parse_sheet(&text, id);
+        self.errors.extend(parsed.errors);
+        let is_main = idx == 0;
+        for st in parsed.stmts {
+            if let StmtKind::Directive(d) = &st.kind {
+                let key = d.name.name.as_str();
+                if key == INCLUDE {
+                    self.include(idx, d, stack);
+                    continue;
+                }
+                if !is_main && META_KEYS.contains(&key) {
+                    let words: Vec<&str> = d.args.iter().map(|a| a.text.as_str()).collect();
+                    self.files[idx].meta.push((key.to_string(), words.join(" ")));
+                    continue;
+                }
+                if key == "amplitude" {
+                    match d.args.as_slice() {
+                        [a] if a.text == "rms" || a.text == "peak" => {
+                            self.amplitudes.push((idx, st.span, a.text.clone()));
+                            if !is_main {
+                                continue;
+                            }
+                        }
+                        // A malformed one is left for the compiler to report.
+                        _ => {}
+                    }
+                }
+            }
+            self.stmts.push(st);
+        }
+    }
+
+    fn include(&mut self, idx: usize, d: &Directive, stack: &mut Vec<PathBuf>) {
+        let [arg] = d.args.as_slice() else {
+            let span = d.args.last().map_or(d.name.span, |a| d.name.span.to(a.span));
+            self.errors.push(
+                Diagnostic::error(ErrorCode::BadDirective, span, "`@include` takes one path")
+                    .with_label("expected one path in quotes")
+                    .with_hint("e.g. @include \"lib/cables.ohm\" (relative to this sheet's folder)"),
+            );
+            return;
+        };
+        let written = arg.text.as_str();
+        let span = arg.span;
+        let err = |code, msg: String| Diagnostic::error(code, span, msg);
+        let p = Path::new(written);
+        if written.is_empty() {
+            self.errors
+                .push(err(ErrorCode::IncludePath, "the include path is empty".into()));
+            return;
+        }
+        if p.has_root() || p.is_absolute() || matches!(p.components().next(), Some(Component::Prefix(_))) {
+            self.errors.push(
+                err(ErrorCode::IncludePath, format!("`{written}` is an absolute path"))
+                    .with_label("an include path is relative to the sheet that names it")
+                    .with_hint(
+                        "write the path from this sheet's folder, e.g. `lib/cables.ohm`, so the sheets can move together; \
+                         a shared folder elsewhere is reached with `../` once the command line allows it (--allow-dir DIR)",
+                    ),
+            );
+            return;
+        }
+        let base = self.files[idx]
+            .canonical
+            .as_deref()
+            .and_then(Path::parent)
+            .map(Path::to_path_buf)
+            .unwrap_or_default();
+        let joined = base.join(p);
+        let canon = match std::fs::canonicalize(&joined) {
+            Ok(c) => c,
+            Err(e) => {
+                let d = if e.kind() == std::io::ErrorKind::NotFound {
+                    err(ErrorCode::IncludePath, format!("cannot find `{written}`"))
+                        .with_label("no such file")
+                        .with_hint(format!(
+                            "the path is taken from the folder of the sheet that names it: {}",
+                            normalize(&joined).display()
+                        ))
+                } else {
+                    err(ErrorCode::IncludePath, format!("cannot read `{written}`: {e}"))
+                };
+                self.errors.push(d);
+                return;
+            }
+        };
+        if !self.allowed.iter().any(|a| canon.starts_with(a)) {
+            let lexical = normalize(&joined);
+            let through_link = self.allowed.iter().any(|a| lexical.starts_with(a));
+            let d = if through_link {
+                err(
+                    ErrorCode::IncludePath,
+                    format!(
+                        "`{written}` is a symbolic link to `{}`, outside the sheet's folder",
+                        canon.display()
+                    ),
+                )
+                .with_label("links out of the sheet's folder are refused")
+            } else {
+                err(
+                    ErrorCode::IncludePath,
+                    format!(
+                        "`{written}` is outside the sheet's folder `{}`",
+                        self.allowed[0].display()
+                    ),
+                )
+                .with_label("leads out of the sheet's folder")
+            };
+            self.errors.push(d.with_hint(
+                "library sheets must sit in the sheet's folder or below it; to use a shared folder elsewhere, \
+                 allow it on the command line: --allow-dir DIR",
+            ));
+            return;
+        }
+        if !canon.is_file() {
+            self.errors.push(
+                err(ErrorCode::IncludePath, format!("`{written}` is not a file"))
+                    .with_label("a library sheet must be a .ohm file"),
+            );
+            return;
+        }
+        if let Some(at) = stack.iter().position(|s| *s == canon) {
+            let mut chain: Vec<String> = stack[at..].iter().map(|s| self.rel_of(s)).collect();
+            chain.push(self.rel_of(&canon));
+            self.errors.push(
+                err(ErrorCode::IncludeCycle, format!("include cycle: {}", chain.join(" → ")))
+                    .with_label("this sheet is already being included")
+                    .with_hint(
+                        "a library sheet cannot include a sheet that includes it; \
+                         move the shared cells into a third sheet that both include",
+                    ),
+            );
+            return;
+        }
+        if self.files.iter().any(|f| f.canonical.as_ref() == Some(&canon)) {
+            // Included before, through another path: its cells are merged once.
+            return;
+        }
+        if stack.len() >= MAX_INCLUDE_DEPTH || self.files.len() >= MAX_INCLUDED_FILES {
+            self.errors.push(err(
+                ErrorCode::IncludePath,
+                format!(
+                    "too many library sheets (at most {MAX_INCLUDED_FILES} files, nested at most {MAX_INCLUDE_DEPTH} deep)"
+                ),
+            ));
+            return;
+        }
+        let bytes = match std::fs::read(&canon) {
+            Ok(b) => b,
+            Err(e) => {
+                self.errors
+                    .push(err(ErrorCode::IncludePath, format!("cannot read `{written}`: {e}")));
+                return;
+            }
+        };
+        let text = match decode(&bytes) {
+            Ok(t) => t,
+            Err((at, _)) => {
+                self.errors.push(
+                    err(
+                        ErrorCode::NotUtf8,
+                        format!("`{written}` is not UTF-8 text (bad byte at offset {at})"),
+                    )
+                    .with_hint("sheets are plain UTF-8 text; save the file as UTF-8"),
+                );
+                return;
+            }
+        };
+        let parent_rel = Path::new(&self.files[idx].rel)
+            .parent()
+            .map(Path::to_path_buf)
+            .unwrap_or_default();
+        let rel = slash(&normalize(&parent_rel.join(p)));
+        let shown = if self.main_dir.as_os_str().is_empty() {
+            rel.clone()
+        } else {
+            normalize(&self.main_dir.join(&rel)).display().to_string()
+        };
+        let id = self.sources.add(SourceFile::new(shown, Some(canon.clone()), text));
+        self.files.push(SheetFile {
+            id,
+            rel,
+            canonical: Some(canon.clone()),
+            sha256: Sha256::digest(&bytes).into(),
+            len: bytes.len() as u64,
+            meta: Vec::new(),
+            included_at: Some(span),
+        });
+        let new_idx = self.files.len() - 1;
+        stack.push(canon);
+        self.file(new_idx, stack);
+        stack.pop();
+    }
+
+    fn rel_of(&self, canon: &Path) -> String {
+        self.files
+            .iter()
+            .find(|f| f.canonical.as_deref() == Some(canon))
+            .map_or_else(|| canon.display().to_string(), |f| f.rel.clone())
+    }
+
+    /// Conventions that must agree across files, and names defined in two
+    /// files.
+    fn finish(&mut self) {
+        let main_amp = self
+            .amplitudes
+            .iter()
+            .find(|(i, _, _)| *i == 0)
+            .map(|(_, s, v)| (Some(*s), v.clone()))
+            .unwrap_or((None, "rms".to_string()));
+        for (i, span, v) in &self.amplitudes {
+            if *i != 0 && *v != main_amp.1 {
+                let mut d = Diagnostic::error(
+                    ErrorCode::BadDirective,
+                    *span,
+                    format!(
+                        "`{}` is written for @amplitude {v}, but the sheet including it uses {}",
+                        self.files[*i].rel, main_amp.1
+                    ),
+                )
+                .with_label("a different amplitude convention")
+                .with_hint("phasor magnitudes would be read differently; state the same @amplitude in both sheets");
+                if let Some(s) = main_amp.0 {
+                    d = d.with_secondary(s, "the including sheet's convention");
+                }
+                self.errors.push(d);
+            }
+        }
+        let mut first: HashMap<String, Span> = HashMap::new();
+        let mut keep = vec![true; self.stmts.len()];
+        for (k, st) in self.stmts.iter().enumerate() {
+            let StmtKind::Def(d) = &st.kind else { continue };
+            match first.get(&d.name.name) {
+                None => {
+                    first.insert(d.name.name.clone(), d.name.span);
+                }
+                // Twice in one file: the compiler reports it.
+                Some(f) if f.file == d.name.span.file => {}
+                Some(f) => {
+                    let a = self.sources.get(f.file).name.clone();
+                    let b = self.sources.get(d.name.span.file).name.clone();
+                    self.errors.push(
+                        Diagnostic::error(
+                            ErrorCode::NameClash,
+                            d.name.span,
+                            format!("`{}` is defined in both `{a}` and `{b}`", d.name.name),
+                        )
+                        .with_label("defined again here")
+                        .with_secondary(*f, "first defined here")
+                        .with_hint(
+                            "a name is defined once across a sheet and the sheets it includes: \
+                             rename one of them, or delete this one to use the other",
+                        ),
+                    );
+                    keep[k] = false;
+                }
+            }
+        }
+        let mut k = 0;
+        self.stmts.retain(|_| {
+            k += 1;
+            keep[k - 1]
+        });
+    }
+}
+
+/// Resolve `.` and `..` without touching the file system.
+fn normalize(p: &Path) -> PathBuf {
+    let mut out: Vec<Component> = Vec::new();
+    for c in p.components() {
+        match c {
+            Component::CurDir => {}
+            Component::ParentDir => match out.last() {
+                Some(Component::Normal(_)) => {
+                    out.pop();
+                }
+                Some(Component::RootDir) | Some(Component::Prefix(_)) => {}
+                _ => out.push(c),
+            },
+            _ => out.push(c),
+        }
+    }
+    out.iter().collect()
+}
+
+/// A relative path with `/` between its parts, whatever the platform.
+fn slash(p: &Path) -> String {
+    p.components()
+        .map(|c| c.as_os_str().to_string_lossy().into_owned())
+        .collect::<Vec<_>>()
+        .join("/")
 }

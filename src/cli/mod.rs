@@ -3,7 +3,10 @@
 //! 2 the sheet or the command line has an error.
 
 mod batch;
+mod check;
+mod report;
 mod run;
+mod watch;
 
 pub use batch::errors_path;
 
@@ -14,7 +17,7 @@ use clap::{Args, Parser, Subcommand, ValueEnum};
 
 use crate::diag::{Diagnostic, SourceMap};
 use crate::engine::{compile, Model};
-use crate::sheet::Sheet;
+use crate::sheet::{LoadOptions, Sheet};
 
 pub const EXIT_OK: i32 = 0;
 pub const EXIT_CHECK_FAILED: i32 = 1;
@@ -38,6 +41,12 @@ pub enum Command {
     Run(RunArgs),
     /// Evaluate a sheet for every row of a cases table (CSV) and write the results table
     Batch(BatchArgs),
+    /// Write a calculation report: inputs, each step with the numbers put in, checks
+    Report(report::ReportArgs),
+    /// Run only the checks of sheets, or of every .ohm sheet under folders (for CI)
+    Check(check::CheckArgs),
+    /// Re-evaluate a sheet each time it, or a sheet it includes, is saved
+    Watch(watch::WatchArgs),
     /// List the built-in functions with their units
     Functions,
     /// List the units and prefixes the sheet language knows
@@ -57,6 +66,24 @@ pub struct RunArgs {
     /// Output format
     #[arg(long, value_enum, default_value_t = Format::Table)]
     pub format: Format,
+    #[command(flatten)]
+    pub load: LoadArgs,
+}
+
+/// How sheets are read.
+#[derive(Args, Debug, Clone, Default)]
+pub struct LoadArgs {
+    /// Let `@include` read library sheets from this folder too, outside the sheet's own folder (repeatable)
+    #[arg(long = "allow-dir", value_name = "DIR")]
+    pub allow_dir: Vec<PathBuf>,
+}
+
+impl LoadArgs {
+    pub fn options(&self) -> LoadOptions {
+        LoadOptions {
+            allow_dirs: self.allow_dir.clone(),
+        }
+    }
 }
 
 #[derive(Args, Debug)]
@@ -117,6 +144,9 @@ pub fn main_with(args: Vec<OsString>) -> i32 {
     match cli.command {
         Command::Run(a) => run::run(&a),
         Command::Batch(a) => batch::batch(&a),
+        Command::Report(a) => report::report(&a),
+        Command::Check(a) => check::check(&a),
+        Command::Watch(a) => watch::watch(&a),
         Command::Functions => {
             print!("{}", run::functions_listing());
             EXIT_OK
@@ -144,7 +174,13 @@ pub struct Reported;
 /// Load a sheet, apply `--set` overrides and compile it. On any error the
 /// diagnostics are printed and `Err(Reported)` returned.
 pub fn load_model(path: &Path, sets: &[String]) -> Result<Model, Reported> {
-    let mut sheet = match Sheet::load(path) {
+    load_sheet(path, sets, &LoadOptions::default()).map(|(_, m)| m)
+}
+
+/// `load_model`, keeping the sheet (its files and syntax trees) beside the
+/// model.
+pub fn load_sheet(path: &Path, sets: &[String], opts: &LoadOptions) -> Result<(Sheet, Model), Reported> {
+    let mut sheet = match Sheet::load_with(path, opts) {
         Ok(s) => s,
         Err(e) => {
             report(&e.sources, &[e.diagnostic]);
@@ -162,5 +198,5 @@ pub fn load_model(path: &Path, sets: &[String]) -> Result<Model, Reported> {
         report(&model.sources, &model.diagnostics);
         return Err(Reported);
     }
-    Ok(model)
+    Ok((sheet, model))
 }

@@ -1,6 +1,6 @@
 //! `ohmsheet run`, `ohmsheet functions`, `ohmsheet units`.
 
-use super::{load_model, Format, RunArgs, EXIT_CHECK_FAILED, EXIT_ERROR, EXIT_OK};
+use super::{load_sheet, Format, RunArgs, EXIT_CHECK_FAILED, EXIT_ERROR, EXIT_OK};
 use crate::diag::{Diagnostic, ErrorCode};
 use crate::engine::model::signature;
 use crate::engine::Engine;
@@ -8,7 +8,7 @@ use crate::output::{self, table};
 use crate::units::format::Style;
 
 pub fn run(a: &RunArgs) -> i32 {
-    let Ok(model) = load_model(&a.sheet, &a.set) else {
+    let Ok((_, model)) = load_sheet(&a.sheet, &a.set, &a.load.options()) else {
         return EXIT_ERROR;
     };
     let style = Style {
@@ -26,6 +26,17 @@ pub fn run(a: &RunArgs) -> i32 {
         Format::Json => println!("{}", output::to_json(&name, &engine.model, &cells, &checks)),
         Format::Csv => print!("{}", output::to_csv(&cells)),
     }
+    if report_nans(&engine) {
+        return EXIT_ERROR;
+    }
+    if checks.iter().any(|c| !c.passed) {
+        return EXIT_CHECK_FAILED;
+    }
+    EXIT_OK
+}
+
+/// Report each NaN where it was born; true if there was one.
+pub(super) fn report_nans(engine: &Engine) -> bool {
     // A NaN is reported where it was born.
     let m = &engine.model;
     let origins = engine.nan_origins();
@@ -45,13 +56,7 @@ pub fn run(a: &RunArgs) -> i32 {
         .with_hint("look for 0/0, ∞ − ∞, 0·∞ or an input set to NaN; cells using this one are NaN too");
         d.eprint(&m.sources);
     }
-    if !origins.is_empty() {
-        return EXIT_ERROR;
-    }
-    if checks.iter().any(|c| !c.passed) {
-        return EXIT_CHECK_FAILED;
-    }
-    EXIT_OK
+    !origins.is_empty()
 }
 
 /// Every function with its parameters, units and a one-line description,

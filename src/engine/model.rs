@@ -91,10 +91,30 @@ impl Cell {
     }
 }
 
-/// Sheet metadata from `@title` and friends.
+/// Sheet metadata from `@title` and friends, and `@note` texts.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Meta {
     pub entries: Vec<(String, String)>,
+    pub notes: Vec<Note>,
+}
+
+/// `@note CELL "text"` (about one cell) or `@note "text"` (about the sheet).
+/// Several notes on one cell are paragraphs, in order.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Note {
+    pub cell: Option<String>,
+    pub text: String,
+    pub span: Span,
+}
+
+impl Meta {
+    /// The notes about cell `name`, in order.
+    pub fn notes_for<'a>(&'a self, name: &'a str) -> impl Iterator<Item = &'a str> + 'a {
+        self.notes
+            .iter()
+            .filter(move |n| n.cell.as_deref() == Some(name))
+            .map(|n| n.text.as_str())
+    }
 }
 
 impl Meta {
@@ -263,7 +283,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                 });
             }
             StmtKind::Directive(dir) => {
-                directive(dir, &mut meta, &mut ctx, &mut amplitude_seen, &mut diags);
+                directive(dir, stmt.span, &mut meta, &mut ctx, &mut amplitude_seen, &mut diags);
             }
             StmtKind::Expr(e) => {
                 diags.push(
@@ -278,6 +298,8 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
             }
         }
     }
+
+    check_note_targets(&meta, &by_name, &mut diags);
 
     if cells.is_empty() && diags.is_empty() {
         let main = sheet.main;
@@ -509,7 +531,35 @@ fn place_result(cell: &mut Cell, val: Val, slots: &mut SlotSpace, code: &mut Vec
     });
 }
 
-fn directive(dir: &Directive, meta: &mut Meta, ctx: &mut Ctx, seen: &mut Option<Span>, diags: &mut Vec<Diagnostic>) {
+/// Every `@note` must name a cell of the sheet.
+fn check_note_targets(meta: &Meta, by_name: &HashMap<String, CellId>, diags: &mut Vec<Diagnostic>) {
+    for n in &meta.notes {
+        let Some(cell) = &n.cell else { continue };
+        if by_name.contains_key(cell) {
+            continue;
+        }
+        let mut d = Diagnostic::error(
+            ErrorCode::UnknownName,
+            n.span,
+            format!("`@note` is about `{cell}`, which the sheet does not define"),
+        )
+        .with_label("no cell of this name");
+        d = match did_you_mean(cell, by_name.keys().map(String::as_str)) {
+            Some(s) => d.with_hint(format!("did you mean `{s}`?")),
+            None => d.with_hint("write `@note CELL \"text\"` for a cell, or `@note \"text\"` for the whole sheet"),
+        };
+        diags.push(d);
+    }
+}
+
+fn directive(
+    dir: &Directive,
+    stmt_span: Span,
+    meta: &mut Meta,
+    ctx: &mut Ctx,
+    seen: &mut Option<Span>,
+    diags: &mut Vec<Diagnostic>,
+) {
     let name = dir.name.name.as_str();
     let whole = dir.args.first().map_or(dir.name.span, |a| {
         dir.name.span.to(dir.args.last().map_or(a.span, |l| l.span))
@@ -539,6 +589,25 @@ fn directive(dir: &Directive, meta: &mut Meta, ctx: &mut Ctx, seen: &mut Option<
                 );
             }
         }
+        "note" => match dir.args.as_slice() {
+            [text] if text.quoted => meta.notes.push(Note {
+                cell: None,
+                text: text.text.clone(),
+                span: text.span,
+            }),
+            [cell, text @ ..] if !cell.quoted && !text.is_empty() && text.iter().all(|t| t.quoted) => {
+                let words: Vec<&str> = text.iter().map(|t| t.text.as_str()).collect();
+                meta.notes.push(Note {
+                    cell: Some(cell.text.clone()),
+                    text: words.join(" "),
+                    span: cell.span,
+                });
+            }
+            _ => diags.push(
+                Diagnostic::error(ErrorCode::BadDirective, stmt_span, "`@note` takes a cell name and a text in quotes")
+                    .with_hint("e.g. @note Zc \"values from the library sheet, conductor at 90 °C\"; a note on the whole sheet is @note \"text\""),
+            ),
+        },
         k if META_KEYS.contains(&k) => {
             if dir.args.is_empty() {
                 diags.push(
@@ -552,7 +621,7 @@ fn directive(dir: &Directive, meta: &mut Meta, ctx: &mut Ctx, seen: &mut Option<
         }
         _ => {
             let mut known: Vec<&str> = META_KEYS.to_vec();
-            known.push("amplitude");
+            known.extend(["amplitude", "note", "include"]);
             let mut d = Diagnostic::error(
                 ErrorCode::UnknownDirective,
                 dir.name.span,

@@ -2,6 +2,7 @@
 //! for people, JSON and CSV for programs. Only this module and the CLI know
 //! about output formats.
 
+pub mod report;
 pub mod table;
 
 use num_complex::Complex64 as C64;

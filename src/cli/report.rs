@@ -1,0 +1,113 @@
+//! `ohmsheet report SHEET --format md|html|json -o FILE`.
+
+use std::path::PathBuf;
+
+use clap::{Args, ValueEnum};
+
+use super::run::report_nans;
+use super::{load_sheet, LoadArgs, EXIT_CHECK_FAILED, EXIT_ERROR, EXIT_OK};
+use crate::engine::Engine;
+use crate::output::report;
+use crate::units::format::Style;
+
+#[derive(Args, Debug)]
+pub struct ReportArgs {
+    /// The sheet to report on (a .ohm file)
+    pub sheet: PathBuf,
+    /// Report format; without it, taken from the output file's extension (.md, .html, .json)
+    #[arg(long, value_enum)]
+    pub format: Option<ReportFormat>,
+    /// Write the report to this file (replaced atomically); without it, print it
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: Option<PathBuf>,
+    /// Give a cell a new formula for this report, e.g. --set "Vs=480 V" (repeatable; listed in the report)
+    #[arg(long = "set", value_name = "NAME=EXPR")]
+    pub set: Vec<String>,
+    /// Significant digits shown
+    #[arg(long, default_value_t = 4, value_parser = clap::value_parser!(u8).range(1..=15))]
+    pub digits: u8,
+    #[command(flatten)]
+    pub load: LoadArgs,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum ReportFormat {
+    /// Markdown (GitHub-flavoured tables)
+    Md,
+    /// One self-contained HTML file, ready to print
+    Html,
+    /// The report's content as JSON
+    Json,
+}
+
+fn format_of(a: &ReportArgs) -> Result<ReportFormat, String> {
+    if let Some(f) = a.format {
+        return Ok(f);
+    }
+    let Some(out) = &a.output else {
+        return Ok(ReportFormat::Md);
+    };
+    let ext = out
+        .extension()
+        .map(|e| e.to_string_lossy().to_lowercase())
+        .unwrap_or_default();
+    match ext.as_str() {
+        "md" | "markdown" => Ok(ReportFormat::Md),
+        "html" | "htm" => Ok(ReportFormat::Html),
+        "json" => Ok(ReportFormat::Json),
+        _ => Err(format!(
+            "cannot tell the report format from `{}`; add --format md, html or json",
+            out.display()
+        )),
+    }
+}
+
+pub fn report(a: &ReportArgs) -> i32 {
+    let format = match format_of(a) {
+        Ok(f) => f,
+        Err(msg) => {
+            eprintln!("error: {msg}");
+            return EXIT_ERROR;
+        }
+    };
+    let Ok((sheet, model)) = load_sheet(&a.sheet, &a.set, &a.load.options()) else {
+        return EXIT_ERROR;
+    };
+    let engine = Engine::new(model);
+    if report_nans(&engine) {
+        eprintln!("error: no report written: a value is not a number (see above)");
+        return EXIT_ERROR;
+    }
+    let style = Style {
+        digits: a.digits as usize,
+    };
+    let r = report::build(&sheet, &engine, &a.set, style);
+    let text = match format {
+        ReportFormat::Md => report::markdown(&r),
+        ReportFormat::Html => report::html(&r),
+        ReportFormat::Json => report::json(&r) + "\n",
+    };
+    let failed = r.checks.iter().filter(|c| !c.passed).count();
+    match &a.output {
+        None => print!("{text}"),
+        Some(path) => {
+            if let Err(e) = crate::fsutil::write_atomic(path, text.as_bytes()) {
+                eprintln!("error: cannot write `{}`: {e}", path.display());
+                return EXIT_ERROR;
+            }
+            let verdict = if r.checks.is_empty() {
+                "no checks".to_string()
+            } else if failed == 0 {
+                format!("all {} checks pass", r.checks.len())
+            } else {
+                format!("{failed} of {} checks FAIL", r.checks.len())
+            };
+            eprintln!("wrote {} ({verdict}; sheet hash {})", path.display(), &r.sha256[..16]);
+        }
+    }
+    if failed > 0 {
+        EXIT_CHECK_FAILED
+    } else {
+        EXIT_OK
+    }
+}
