@@ -3,6 +3,7 @@
 
 mod common;
 
+mod check_cmd;
 mod cli_batch;
 mod cli_run;
 mod demo_sheets;
@@ -11,6 +12,10 @@ mod engine_recompute;
 mod errors_catalogue;
 mod funcs_reference;
 mod functions;
+mod include;
 mod language;
 mod readme;
 mod reference;
+mod report;
+mod report_browser;
+mod watch;

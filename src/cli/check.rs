@@ -77,7 +77,8 @@ pub fn check(a: &CheckArgs) -> i32 {
     let opts = a.load.options();
     let (mut passed, mut failed, mut broken, mut no_checks) = (0usize, 0usize, problems.len(), 0usize);
     for f in &files {
-        let name = f.display().to_string();
+        let shown = f.display().to_string();
+        let name = shown.strip_prefix("./").unwrap_or(&shown).to_string();
         let Ok((_, model)) = load_sheet(f, &[], &opts) else {
             println!("ERROR {name}: the sheet has errors (shown above)");
             broken += 1;
@@ -95,10 +96,11 @@ pub fn check(a: &CheckArgs) -> i32 {
         }
         for c in &rows {
             let verdict = if c.passed { "pass" } else { "FAIL" };
-            let where_ = if c.file == name {
+            let where_ = if c.file == shown {
                 format!("{name}:{}", c.line)
             } else {
-                format!("{}:{} (included by {name})", c.file, c.line)
+                let file = c.file.strip_prefix("./").unwrap_or(&c.file);
+                format!("{file}:{} (included by {name})", c.line)
             };
             println!(
                 "{verdict}  {where_}  {}  (computed {}, |difference| {}, allowed {})",

@@ -63,7 +63,7 @@ pub fn watch(a: &WatchArgs) -> i32 {
     let mut dirs: HashSet<PathBuf> = HashSet::new();
     let mut update = 0u64;
 
-    evaluate(a, style, &mut last, &mut files, update);
+    evaluate(a, style, &mut last, &mut files);
     if files.is_empty() {
         // Not even the main file could be read: watch for it to appear.
         if let Some(c) = absolute(&a.sheet) {
@@ -82,16 +82,25 @@ pub fn watch(a: &WatchArgs) -> i32 {
             eprintln!("error: the file watcher stopped");
             return EXIT_ERROR;
         };
-        let mut relevant = touches(&first, &files);
+        let mut saved: Vec<PathBuf> = Vec::new();
+        touches(&first, &files, &mut saved);
         // Let the save finish: gather the burst of events it makes.
         while let Ok(ev) = rx.recv_timeout(SETTLE) {
-            relevant |= touches(&ev, &files);
+            touches(&ev, &files, &mut saved);
         }
-        if !relevant {
+        if saved.is_empty() {
             continue;
         }
         update += 1;
-        evaluate(a, style, &mut last, &mut files, update);
+        let names: Vec<String> = saved
+            .iter()
+            .map(|p| {
+                p.file_name()
+                    .map_or_else(|| p.display().to_string(), |n| n.to_string_lossy().into_owned())
+            })
+            .collect();
+        println!("\n── update {update}: {} saved ──", names.join(", "));
+        evaluate(a, style, &mut last, &mut files);
         rewatch(&mut watcher, &files, &mut dirs);
     }
 }
@@ -110,14 +119,30 @@ fn absolute(p: &Path) -> Option<PathBuf> {
     Some(std::fs::canonicalize(dir).ok()?.join(name))
 }
 
-fn touches(ev: &notify::Result<notify::Event>, files: &HashSet<PathBuf>) -> bool {
-    let Ok(ev) = ev else { return true };
+/// Add to `saved` each of our files an event is about.
+fn touches(ev: &notify::Result<notify::Event>, files: &HashSet<PathBuf>, saved: &mut Vec<PathBuf>) {
+    let ev = match ev {
+        Ok(ev) => ev,
+        Err(e) => {
+            eprintln!("warning: file watcher: {e}");
+            return;
+        }
+    };
     if ev.kind.is_access() {
-        return false;
+        return;
     }
-    ev.paths
-        .iter()
-        .any(|p| files.contains(p) || absolute(p).is_some_and(|c| files.contains(&c)))
+    for p in &ev.paths {
+        let hit = if files.contains(p) {
+            Some(p.clone())
+        } else {
+            absolute(p).filter(|c| files.contains(c))
+        };
+        if let Some(h) = hit {
+            if !saved.contains(&h) {
+                saved.push(h);
+            }
+        }
+    }
 }
 
 fn rewatch(w: &mut notify::RecommendedWatcher, files: &HashSet<PathBuf>, dirs: &mut HashSet<PathBuf>) {
@@ -136,10 +161,7 @@ fn rewatch(w: &mut notify::RecommendedWatcher, files: &HashSet<PathBuf>, dirs: &
 /// Load and evaluate; print everything the first time, then only changes.
 /// `files` becomes the set of files the sheet now consists of (kept as it
 /// was when the sheet cannot be read, so the watch goes on).
-fn evaluate(a: &WatchArgs, style: Style, last: &mut Option<Shown>, files: &mut HashSet<PathBuf>, update: u64) {
-    if update > 0 {
-        println!("\n── update {update}: {} ──", a.sheet.display());
-    }
+fn evaluate(a: &WatchArgs, style: Style, last: &mut Option<Shown>, files: &mut HashSet<PathBuf>) {
     let loaded = load_sheet(&a.sheet, &a.set, &a.load.options());
     let (sheet, model) = match loaded {
         Ok(x) => x,

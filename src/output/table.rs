@@ -35,7 +35,14 @@ pub fn cells_table(model: &Model, cells: &[CellRow]) -> String {
             } else {
                 c.polar.clone()
             };
-            [name, c.display.clone(), polar, c.formula.clone()]
+            // Cells from an included library sheet say where they came from.
+            let main = model.sources.files().first().map(|f| f.name.as_str());
+            let formula = if main.is_some_and(|m| m != c.file) {
+                format!("{}   (from {}:{})", c.formula, c.file, c.line)
+            } else {
+                c.formula.clone()
+            };
+            [name, c.display.clone(), polar, formula]
         })
         .collect();
     let mut w = headers.map(UnicodeWidthStr::width);

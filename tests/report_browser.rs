@@ -1,0 +1,137 @@
+//! The HTML report in a real browser: headless Chromium loads the file,
+//! its DOM is checked (the checks table, a result value), a screenshot is
+//! saved and the page is printed to PDF.
+//!
+//! .ci/run installs Chromium from the system packages; only where it cannot
+//! be installed does this test stop early, saying so.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Stdio};
+use std::time::{Duration, Instant};
+
+use crate::common::ohmsheet;
+use crate::report::{folder, LIB, SHEET};
+
+fn browser() -> Option<PathBuf> {
+    if let Some(p) = std::env::var_os("OHMSHEET_CHROMIUM") {
+        return Some(PathBuf::from(p));
+    }
+    for name in ["chromium", "chromium-browser"] {
+        for dir in std::env::split_paths(&std::env::var_os("PATH").unwrap_or_default()) {
+            let p = dir.join(name);
+            if p.is_file() {
+                return Some(p);
+            }
+        }
+    }
+    None
+}
+
+/// Run the browser headless with a fresh profile; its stdout.
+fn chromium(bin: &Path, profile: &Path, extra: &[String], page: &Path) -> String {
+    let mut cmd = Command::new(bin);
+    cmd.args([
+        "--headless",
+        "--no-sandbox",
+        "--disable-gpu",
+        "--disable-quic",
+        "--no-first-run",
+        "--disable-background-networking",
+        "--disable-component-update",
+        "--disable-sync",
+        "--hide-scrollbars",
+    ])
+    .arg(format!("--user-data-dir={}", profile.display()))
+    .args(extra)
+    .arg(format!("file://{}", page.display()))
+    .stdin(Stdio::null())
+    .stdout(Stdio::piped())
+    .stderr(Stdio::piped());
+    let mut child = cmd.spawn().expect("start chromium");
+    // Generous: a loaded machine starts a browser slowly.
+    let end = Instant::now() + Duration::from_secs(240);
+    loop {
+        if let Some(_status) = child.try_wait().unwrap() {
+            break;
+        }
+        if Instant::now() > end {
+            let _ = child.kill();
+            let _ = child.wait();
+            panic!("chromium did not finish within 240 s");
+        }
+        std::thread::sleep(Duration::from_millis(100));
+    }
+    let out = child.wait_with_output().unwrap();
+    String::from_utf8_lossy(&out.stdout).into_owned()
+}
+
+#[test]
+fn html_report_in_a_real_browser() {
+    let Some(bin) = browser() else {
+        eprintln!(
+            "SKIPPED html_report_in_a_real_browser: no Chromium found on PATH \
+             (install it with `apt-get install chromium`, as .ci/run does, or set OHMSHEET_CHROMIUM)"
+        );
+        return;
+    };
+    let d = folder(&[("rl.ohm", SHEET), ("lib/parts.ohm", LIB)]);
+    ohmsheet()
+        .current_dir(d.path())
+        .args(["report", "rl.ohm", "--format", "html", "-o", "rl.html"])
+        .assert()
+        .code(1);
+    let page = d.path().join("rl.html");
+    let profile = d.path().join("profile");
+
+    // The DOM after the browser parsed it.
+    let dom = chromium(&bin, &profile, &["--dump-dom".into()], &page);
+    assert!(dom.contains("<table id=\"checks\">"), "no checks table in:\n{dom}");
+    let checks = dom.split("<table id=\"checks\">").nth(1).unwrap();
+    let checks = &checks[..checks.find("</table>").unwrap()];
+    assert_eq!(checks.matches("<tr class=\"passed\">").count(), 2, "{checks}");
+    assert_eq!(checks.matches("<tr class=\"failed\">").count(), 1, "{checks}");
+    assert!(checks.contains("<td class=\"verdict fail\">FAIL</td>"), "{checks}");
+    // 4232 W − 4000 W = 232 W, allowed 1 % of 4000 W = 40 W.
+    assert!(checks.contains("<td class=\"num\">232 W</td>"), "{checks}");
+    // The step for I: 230 V / (8 + j6) Ω = 18.4 − j13.8 A = 23 A ∠ −36.87°.
+    let step = dom.split("id=\"step-I\"").nth(1).expect("step I");
+    let step = &step[..step.find("</div>").unwrap()];
+    assert!(step.contains("230 V / (8 + j6) Ω"), "{step}");
+    assert!(step.contains("18.4 - j13.8 A"), "{step}");
+    assert!(step.contains("23 ∠ -36.87° A"), "{step}");
+    assert!(dom.contains("id=\"caution\""), "caution");
+    assert!(dom.contains("1 of 3 checks FAIL."), "summary");
+
+    // A screenshot, kept where a developer can look at it.
+    let keep = PathBuf::from(env!("CARGO_TARGET_TMPDIR"));
+    let shot = keep.join("report-screenshot.png");
+    let _ = std::fs::remove_file(&shot);
+    chromium(
+        &bin,
+        &profile,
+        &[
+            format!("--screenshot={}", shot.display()),
+            "--window-size=1000,1500".into(),
+        ],
+        &page,
+    );
+    let png = std::fs::read(&shot).expect("screenshot written");
+    assert_eq!(&png[..8], b"\x89PNG\r\n\x1a\n");
+    assert!(png.len() > 20_000, "a blank page? {} bytes", png.len());
+    eprintln!("screenshot: {}", shot.display());
+
+    // Printing works (the print CSS is exercised by the browser's layout).
+    let pdf = keep.join("report-print.pdf");
+    let _ = std::fs::remove_file(&pdf);
+    chromium(
+        &bin,
+        &profile,
+        &[
+            format!("--print-to-pdf={}", pdf.display()),
+            "--no-pdf-header-footer".into(),
+        ],
+        &page,
+    );
+    let bytes = std::fs::read(&pdf).expect("PDF written");
+    assert!(bytes.starts_with(b"%PDF-"), "not a PDF");
+}
