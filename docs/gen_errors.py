@@ -58,6 +58,14 @@ ENTRIES = [
      "names a computed cell, or has a unit of the wrong dimension; or `--show` names no cell.", None,
      "`ohmsheet batch sheet.ohm --cases cases.csv --out results.csv` where cases.csv has a column `Rx` "
      "and the sheet no input `Rx`; the message lists the sheet's inputs."),
+    ("include-path", "An `@include` path that is absolute, leads out of the sheet's folder tree (by `../` "
+     "or through a symbolic link) without `--allow-dir`, or names no file.",
+     "@include \"/srv/shared/cables.ohm\"\nx = 1\n", None),
+    ("include-cycle", "Library sheets that include each other.", None,
+     "`a.ohm` has `@include \"lib/b.ohm\"` and `lib/b.ohm` has `@include \"../a.ohm\"`; "
+     "the message shows the whole chain `a.ohm → lib/b.ohm → a.ohm`."),
+    ("name-clash", "A name defined both in a sheet and in a sheet it includes (or in two included sheets).", None,
+     "`feeder.ohm` includes `lib/cables.ohm`, and both define `Zc`; the message points at both definitions."),
     ("io", "The file cannot be read or written.", None, "`ohmsheet run missing.ohm`."),
 ]
 

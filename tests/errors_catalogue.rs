@@ -117,3 +117,25 @@ fn bad_override_and_io() {
         .code(2)
         .stderr(predicate::str::contains("error[io]"));
 }
+
+#[test]
+fn include_cycle_and_name_clash() {
+    let d = tempfile::tempdir().unwrap();
+    std::fs::create_dir(d.path().join("lib")).unwrap();
+    std::fs::write(d.path().join("a.ohm"), "@include \"lib/b.ohm\"\nx = 1\n").unwrap();
+    std::fs::write(d.path().join("lib/b.ohm"), "@include \"../a.ohm\"\ny = 1\n").unwrap();
+    ohmsheet()
+        .current_dir(d.path())
+        .args(["run", "a.ohm"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("error[include-cycle]"));
+    std::fs::write(d.path().join("c.ohm"), "@include \"lib/z.ohm\"\nZc = 2\n").unwrap();
+    std::fs::write(d.path().join("lib/z.ohm"), "Zc = 1\n").unwrap();
+    ohmsheet()
+        .current_dir(d.path())
+        .args(["run", "c.ohm"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("error[name-clash]"));
+}
