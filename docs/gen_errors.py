@@ -66,6 +66,20 @@ ENTRIES = [
      "the message shows the whole chain `a.ohm → lib/b.ohm → a.ohm`."),
     ("name-clash", "A name defined both in a sheet and in a sheet it includes (or in two included sheets).", None,
      "`feeder.ohm` includes `lib/cables.ohm`, and both define `Zc`; the message points at both definitions."),
+    ("bad-range", "A sweep or search range that cannot be used: no `..`, an end in the wrong unit, "
+     "a logarithmic range through zero, or a step of zero.",
+     "C = 1 mF\nXc = 1 / (2*pi*60 Hz * C)\n@sweep C = 0 .. 2 mF, log : Xc\n", None),
+    ("not-an-input", "A sweep or search varies a cell that is computed from other cells.",
+     "V = 480 V\nR = 4 Ω\nI = V / R\n@sweep I = 0 .. 200 A : R\n", None),
+    ("too-many-points", "A sweep of more points than the limit (10,000,000 unless `--max-points` says more).",
+     "C = 1 mF\nXc = 1 / (2*pi*60 Hz * C)\n@sweep C = 1 µF .. 2 mF, 20000000 points : Xc\n", None),
+    ("search-failed", "A search found no answer: the target is never reached in the range, is reached "
+     "at several places, or the curve only jumps across it. The message says where it came closest or "
+     "where the several answers lie. `ohmsheet solve` exits 1.", None,
+     "`ohmsheet solve plant.ohm --vary C=0..1mF --target 'pf = 0.95'` where pf stays below 0.95 up to 1 mF."),
+    ("bad-search", "A search that cannot be set up: a target without `=`, an expression that does not "
+     "depend on the varied input, or a target value that changes with it.", None,
+     "`ohmsheet solve plant.ohm --vary C=0..3mF --target 'pf 0.95'`."),
     ("io", "The file cannot be read or written.", None, "`ohmsheet run missing.ohm`."),
 ]
 

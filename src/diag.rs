@@ -191,6 +191,11 @@ error_codes! {
     IncludePath => "include-path",
     IncludeCycle => "include-cycle",
     NameClash => "name-clash",
+    BadRange => "bad-range",
+    NotAnInput => "not-an-input",
+    TooManyPoints => "too-many-points",
+    SearchFailed => "search-failed",
+    BadSearch => "bad-search",
     Io => "io",
 }
 

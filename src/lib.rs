@@ -9,6 +9,8 @@ pub mod engine;
 pub mod fsutil;
 pub mod funcs;
 pub mod output;
+pub mod plot;
 pub mod sheet;
+pub mod sweep;
 pub mod syntax;
 pub mod units;

@@ -18,4 +18,5 @@ mod readme;
 mod reference;
 mod report;
 mod report_browser;
+mod sweep;
 mod watch;

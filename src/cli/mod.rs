@@ -6,6 +6,7 @@ mod batch;
 mod check;
 mod report;
 mod run;
+mod sweep;
 mod watch;
 
 pub use batch::errors_path;
@@ -47,6 +48,10 @@ pub enum Command {
     Check(check::CheckArgs),
     /// Re-evaluate a sheet each time it, or a sheet it includes, is saved
     Watch(watch::WatchArgs),
+    /// Vary inputs across a range and tabulate, write or plot the shown cells
+    Sweep(sweep::SweepArgs),
+    /// Find the input value that brings an expression to a target, or to its largest or smallest value
+    Solve(sweep::SolveArgs),
     /// List the built-in functions with their units
     Functions,
     /// List the units and prefixes the sheet language knows
@@ -147,6 +152,8 @@ pub fn main_with(args: Vec<OsString>) -> i32 {
         Command::Report(a) => report::report(&a),
         Command::Check(a) => check::check(&a),
         Command::Watch(a) => watch::watch(&a),
+        Command::Sweep(a) => sweep::sweep(&a),
+        Command::Solve(a) => sweep::solve(&a),
         Command::Functions => {
             print!("{}", run::functions_listing());
             EXIT_OK

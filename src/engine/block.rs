@@ -180,6 +180,7 @@ impl Block {
                     }
                 }
                 Op::Call(fid) => self.call(fid, ins, prog),
+                Op::Search(k) => super::search::exec_block(k as usize, ins.dst, prog, self),
                 op if op.is_unary() => {
                     for l in 0..LANES {
                         let z = apply1(op, C64::new(*re.add(a + l), *im.add(a + l)), ins.b);

@@ -29,6 +29,10 @@ fn exec(ins: &Instr, prog: &Program, s: &mut [C64]) {
             call(fid, ins, prog, s);
             return;
         }
+        Op::Search(k) => {
+            super::search::exec_scalar(k as usize, ins.dst, prog, s);
+            return;
+        }
         op if op.is_unary() => apply1(op, s[ins.a as usize], ins.b),
         op => apply2(op, s[ins.a as usize], s[ins.b as usize]),
     };

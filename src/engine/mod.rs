@@ -5,6 +5,7 @@ pub mod eval;
 pub mod model;
 pub mod ops;
 pub mod program;
+pub mod search;
 
 pub use eval::{check_result, Change, CheckResult, Engine};
 pub use model::{compile, Cell, CellError, CellId, Model, Role};

@@ -96,6 +96,8 @@ impl Cell {
 pub struct Meta {
     pub entries: Vec<(String, String)>,
     pub notes: Vec<Note>,
+    /// The arguments of each `@sweep` line (see `sweep::declared`).
+    pub sweeps: Vec<Span>,
 }
 
 /// `@note CELL "text"` (about one cell) or `@note "text"` (about the sheet).
@@ -352,6 +354,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     let mut code: Vec<Instr> = Vec::new();
     let mut call_args: Vec<u32> = Vec::new();
     let mut max_temps = 0u32;
+    let searches: Vec<super::search::Search> = Vec::new();
     let mut order = Vec::with_capacity(n);
     for &id in &topo {
         let i = id as usize;
@@ -429,7 +432,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
         rank[id as usize] = r as u32;
     }
 
-    Model {
+    let mut model = Model {
         sources: sheet.sources.clone(),
         cells,
         order,
@@ -442,11 +445,17 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
             init: slots.init,
             temp_base,
             peak: ctx.peak,
+            searches,
         },
         meta,
         ctx,
         diagnostics: diags,
+    };
+    if !model.meta.sweeps.is_empty() {
+        let more = crate::sweep::declared::check(&model);
+        model.diagnostics.extend(more);
     }
+    model
 }
 
 fn new_cell(
@@ -608,6 +617,17 @@ fn directive(
                     .with_hint("e.g. @note Zc \"values from the library sheet, conductor at 90 °C\"; a note on the whole sheet is @note \"text\""),
             ),
         },
+        "sweep" => match (dir.args.first(), dir.args.last()) {
+            (Some(a), Some(b)) => meta.sweeps.push(a.span.to(b.span)),
+            _ => diags.push(
+                Diagnostic::error(
+                    ErrorCode::BadDirective,
+                    whole,
+                    "`@sweep` needs a range and cells to show",
+                )
+                .with_hint("e.g. @sweep C = 0 .. 600 µF, 121 points : Vbus, pf"),
+            ),
+        },
         k if META_KEYS.contains(&k) => {
             if dir.args.is_empty() {
                 diags.push(
@@ -621,7 +641,7 @@ fn directive(
         }
         _ => {
             let mut known: Vec<&str> = META_KEYS.to_vec();
-            known.extend(["amplitude", "note", "include"]);
+            known.extend(["amplitude", "note", "include", "sweep"]);
             let mut d = Diagnostic::error(
                 ErrorCode::UnknownDirective,
                 dir.name.span,

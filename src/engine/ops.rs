@@ -64,6 +64,9 @@ pub enum Op {
     Max,
     /// A library function (index into `funcs::LIBRARY`).
     Call(u16),
+    /// An in-sheet search (index into `Program::searches`); writes `dst`
+    /// and the search's outcome slots. `a` and `b` are unused (= `dst`).
+    Search(u16),
 }
 
 impl Op {

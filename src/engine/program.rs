@@ -29,6 +29,8 @@ pub struct Program {
     pub temp_base: u32,
     /// Power functions halve their result when phasors are peak values.
     pub peak: bool,
+    /// In-sheet searches, run by `Op::Search` (see `engine::search`).
+    pub searches: Vec<super::search::Search>,
 }
 
 impl Program {

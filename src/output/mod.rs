@@ -3,6 +3,7 @@
 //! about output formats.
 
 pub mod report;
+pub mod sweep;
 pub mod table;
 
 use num_complex::Complex64 as C64;

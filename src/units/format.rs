@@ -158,8 +158,30 @@ fn join_unit(num: &str, unit: &str, glued: bool) -> String {
     }
 }
 
+/// The unit to label an axis with, SI prefix included, for values up to
+/// `max_abs` (coherent SI), and the number to divide values by: `("mF",
+/// 1e-3)`, `("°", π/180)`, or the sheet's display unit.
+pub fn axis_unit(q: Quantity, display: Option<&Unit>, max_abs: f64) -> (String, f64) {
+    if let Some(u) = display {
+        return (u.symbol.clone(), u.factor);
+    }
+    let s = shown(q);
+    if s.prefixable {
+        let (p, f) = choose_prefix(max_abs / s.scale);
+        (format!("{p}{}", s.symbol), f * s.scale)
+    } else {
+        (s.symbol, s.scale)
+    }
+}
+
+/// The coherent SI symbol and whether SI prefixes go on it.
+pub fn unit_prefixable(q: Quantity) -> (String, bool) {
+    let s = shown(q);
+    (s.symbol, s.prefixable)
+}
+
 /// Pick an engineering prefix so the shown magnitude is in [1, 1000).
-fn choose_prefix(mag: f64) -> (&'static str, f64) {
+pub fn choose_prefix(mag: f64) -> (&'static str, f64) {
     if !(mag.is_finite()) || mag == 0.0 {
         return ("", 1.0);
     }

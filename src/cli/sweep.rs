@@ -1,0 +1,581 @@
+//! `ohmsheet sweep` and `ohmsheet solve`.
+
+use std::fs::File;
+use std::io::{self, BufWriter, Write};
+use std::path::{Path, PathBuf};
+
+use clap::{Args, ValueEnum};
+use num_complex::Complex64 as C64;
+
+use super::{load_sheet, report, LoadArgs, EXIT_CHECK_FAILED, EXIT_ERROR, EXIT_OK};
+use crate::diag::{Diagnostic, ErrorCode, SourceMap};
+use crate::engine::search::Goal;
+use crate::output::sweep::{self as out, CsvRows, Parts};
+use crate::sweep::{self, Axis, Series, SolveError, SolveRequest, Study, SweepResult};
+use crate::units::format::{format_value, Style};
+
+#[derive(Args, Debug)]
+pub struct SweepArgs {
+    /// The sheet (a .ohm file)
+    pub sheet: PathBuf,
+    /// An input and its range, e.g. C=0..2mF or f=10Hz..1MHz; twice for a grid.
+    /// Without --vary, the sheet's own `@sweep` is run
+    #[arg(long, value_name = "NAME=START..STOP")]
+    pub vary: Vec<String>,
+    /// Number of points (one value for every input, or one per --vary in order)
+    #[arg(long, value_name = "N")]
+    pub points: Vec<usize>,
+    /// Distance between points, with a unit, e.g. --step 10uF (one per --vary, in order; instead of --points)
+    #[arg(long, value_name = "STEP")]
+    pub step: Vec<String>,
+    /// Space the points logarithmically (all inputs, or only the one named)
+    #[arg(long, value_name = "NAME", num_args = 0..=1, default_missing_value = "*")]
+    pub log: Vec<String>,
+    /// Cells or expressions to show, comma-separated, e.g. --show Vload,pf,abs(Iline)
+    #[arg(long, value_name = "CELL[,CELL…]")]
+    pub show: Vec<String>,
+    /// Write the points as CSV to FILE (`-` for standard output)
+    #[arg(long, value_name = "FILE")]
+    pub csv: Option<PathBuf>,
+    /// Write the points as JSON to FILE (`-` for standard output)
+    #[arg(long, value_name = "FILE")]
+    pub json: Option<PathBuf>,
+    /// Draw the shown cells against the swept input as an SVG picture
+    #[arg(long, value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
+    /// Draw a quick chart in the terminal
+    #[arg(long)]
+    pub chart: bool,
+    /// Split complex values into magnitude and angle (polar) or real and imaginary parts (rect)
+    #[arg(long, value_enum, default_value_t = PartsArg::Polar)]
+    pub parts: PartsArg,
+    /// Give a cell a new formula for this run, e.g. --set "Vs=480 V" (repeatable)
+    #[arg(long = "set", value_name = "NAME=EXPR")]
+    pub set: Vec<String>,
+    /// Significant digits in the table
+    #[arg(long, default_value_t = 4, value_parser = clap::value_parser!(u8).range(1..=15))]
+    pub digits: u8,
+    /// Allow sweeps of up to N points
+    #[arg(long, value_name = "N", default_value_t = sweep::DEFAULT_MAX_POINTS)]
+    pub max_points: usize,
+    /// Which of the sheet's `@sweep` lines to run when there is no --vary (1 = the first)
+    #[arg(long, value_name = "K", default_value_t = 1)]
+    pub declared: usize,
+    #[command(flatten)]
+    pub load: LoadArgs,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum PartsArg {
+    Polar,
+    Rect,
+}
+
+impl From<PartsArg> for Parts {
+    fn from(p: PartsArg) -> Parts {
+        match p {
+            PartsArg::Polar => Parts::Polar,
+            PartsArg::Rect => Parts::Rect,
+        }
+    }
+}
+
+#[derive(Args, Debug)]
+pub struct SolveArgs {
+    /// The sheet (a .ohm file)
+    pub sheet: PathBuf,
+    /// The input to vary and the range to search, e.g. C=0..2mF
+    #[arg(long, value_name = "NAME=LO..HI")]
+    pub vary: String,
+    /// The target, e.g. --target 'pf = 0.95' or --target 'abs(Vload) = 480 V'
+    #[arg(long, value_name = "EXPR = VALUE", conflicts_with_all = ["maximize", "minimize"], required_unless_present_any = ["maximize", "minimize"])]
+    pub target: Option<String>,
+    /// Find where EXPR is largest (its real part; use abs(…) for a magnitude)
+    #[arg(long, value_name = "EXPR", conflicts_with = "minimize")]
+    pub maximize: Option<String>,
+    /// Find where EXPR is smallest (its real part; use abs(…) for a magnitude)
+    #[arg(long, value_name = "EXPR")]
+    pub minimize: Option<String>,
+    /// Points in the coarse scan before refining
+    #[arg(long, value_name = "N", default_value_t = crate::engine::search::DEFAULT_SCAN)]
+    pub scan: usize,
+    /// Scan the range logarithmically (the default when it spans more than two decades)
+    #[arg(long, conflicts_with = "linear")]
+    pub log: bool,
+    /// Scan the range linearly
+    #[arg(long)]
+    pub linear: bool,
+    /// Give a cell a new formula for this run, e.g. --set "Vs=480 V" (repeatable)
+    #[arg(long = "set", value_name = "NAME=EXPR")]
+    pub set: Vec<String>,
+    /// Significant digits shown
+    #[arg(long, default_value_t = 6, value_parser = clap::value_parser!(u8).range(1..=15))]
+    pub digits: u8,
+    /// Print the answer as JSON
+    #[arg(long)]
+    pub json: bool,
+    #[command(flatten)]
+    pub load: LoadArgs,
+}
+
+/// Split `a,b,atan2(x, y)` at commas outside brackets.
+pub fn split_list(s: &str) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut depth = 0i32;
+    let mut cur = String::new();
+    for c in s.chars() {
+        match c {
+            '(' | '[' => depth += 1,
+            ')' | ']' => depth -= 1,
+            _ => {}
+        }
+        if c == ',' && depth == 0 {
+            out.push(std::mem::take(&mut cur));
+        } else {
+            cur.push(c);
+        }
+    }
+    out.push(cur);
+    out.into_iter()
+        .map(|s| s.trim().to_string())
+        .filter(|s| !s.is_empty())
+        .collect()
+}
+
+fn unplaced(code: ErrorCode, msg: impl Into<String>, hint: impl Into<String>) -> i32 {
+    Diagnostic::unplaced(code, msg)
+        .with_hint(hint)
+        .eprint(&SourceMap::new());
+    EXIT_ERROR
+}
+
+fn is_stdout(p: &Path) -> bool {
+    p.as_os_str() == "-"
+}
+
+/// Write a file atomically: into a temporary file beside it, renamed over
+/// the target only when complete. `-` writes to standard output.
+pub fn write_atomic(path: &Path, f: impl FnOnce(&mut dyn Write) -> io::Result<()>) -> io::Result<()> {
+    if is_stdout(path) {
+        let stdout = io::stdout();
+        let mut w = BufWriter::with_capacity(1 << 16, stdout.lock());
+        f(&mut w)?;
+        return w.flush();
+    }
+    let dir = match path.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    let name = path
+        .file_name()
+        .map_or_else(|| "out".into(), |n| n.to_string_lossy().into_owned());
+    let tmp = dir.join(format!(".{name}.{}.tmp", std::process::id()));
+    let result = (|| {
+        let mut w = BufWriter::with_capacity(1 << 16, File::create(&tmp)?);
+        f(&mut w)?;
+        w.flush()?;
+        drop(w);
+        std::fs::rename(&tmp, path)
+    })();
+    if result.is_err() {
+        let _ = std::fs::remove_file(&tmp);
+    }
+    result
+}
+
+fn io_error(path: &Path, e: io::Error) -> i32 {
+    unplaced(
+        ErrorCode::Io,
+        format!("cannot write `{}`: {e}", path.display()),
+        "check the folder exists and can be written; nothing was replaced",
+    )
+}
+
+pub fn sweep(a: &SweepArgs) -> i32 {
+    let Ok((sheet, _)) = load_sheet(&a.sheet, &a.set, &a.load.options()) else {
+        return EXIT_ERROR;
+    };
+    let name = a.sheet.display().to_string();
+    let style = Style {
+        digits: a.digits as usize,
+    };
+    let parts: Parts = a.parts.into();
+    if a.vary.is_empty() {
+        return declared(sheet, a, &name, parts, style);
+    }
+    if a.vary.len() > 2 {
+        return unplaced(
+            ErrorCode::BadRange,
+            format!("{} inputs varied; a sweep takes one, or two for a grid", a.vary.len()),
+            "give --vary once or twice",
+        );
+    }
+    let show: Vec<String> = a.show.iter().flat_map(|s| split_list(s)).collect();
+    if show.is_empty() {
+        return unplaced(
+            ErrorCode::BadRange,
+            "nothing to show",
+            "name the cells to follow with --show, e.g. --show Vload,pf",
+        );
+    }
+    let exprs: Vec<(&str, &str)> = show.iter().map(|s| ("--show", s.as_str())).collect();
+    let mut study = match Study::new(sheet, &exprs) {
+        Ok(s) => s,
+        Err(f) => {
+            report(&f.sources, &f.diagnostics);
+            return EXIT_ERROR;
+        }
+    };
+    let mut axes: Vec<Axis> = Vec::new();
+    for (k, v) in a.vary.iter().enumerate() {
+        let vname = v.split('=').next().unwrap_or("").trim();
+        let log = a.log.iter().any(|l| l == "*" || l == vname);
+        // Steps go to the inputs in order; a single --points to every
+        // input without a step.
+        let step = a.step.get(k).map(String::as_str);
+        let points = if a.points.len() > 1 {
+            a.points.get(k).copied()
+        } else if step.is_none() {
+            a.points.first().copied()
+        } else {
+            None
+        };
+        match study.axis("--vary", v, points, step, log) {
+            Ok(ax) => axes.push(ax),
+            Err(f) => {
+                report(&f.sources, &f.diagnostics);
+                return EXIT_ERROR;
+            }
+        }
+    }
+    if axes.len() == 2 && axes[0].cell == axes[1].cell {
+        return unplaced(
+            ErrorCode::BadRange,
+            format!("`{}` is varied twice", axes[0].name),
+            "a grid varies two different inputs",
+        );
+    }
+    if let Some(l) = a.log.iter().find(|l| *l != "*" && !axes.iter().any(|x| &x.name == *l)) {
+        return unplaced(
+            ErrorCode::BadRange,
+            format!("--log {l}: `{l}` is not varied"),
+            "name an input given with --vary, or give --log alone",
+        );
+    }
+    if let Err(d) = sweep::check_size(&axes, a.max_points) {
+        d.eprint(&SourceMap::new());
+        return EXIT_ERROR;
+    }
+    let mut series: Vec<Series> = Vec::new();
+    for s in &show {
+        match study.series(s) {
+            Ok(x) => series.push(x),
+            Err(d) => {
+                d.eprint(&study.model().sources);
+                return EXIT_ERROR;
+            }
+        }
+    }
+    let title = study.model().meta.get("title").map(str::to_string);
+    let table_only = a.csv.is_none() && a.json.is_none() && a.plot.is_none() && !a.chart;
+    if !table_only && a.json.is_none() && a.plot.is_none() && !a.chart {
+        // CSV alone: stream it, keeping nothing in memory.
+        return stream_csv(
+            &study,
+            &axes,
+            &series,
+            a.csv.as_deref().unwrap_or(Path::new("-")),
+            parts,
+        );
+    }
+    let r = sweep::collect(&study.engine, &axes, &series, title);
+    emit(&r, a, &name, parts, style, table_only)
+}
+
+fn stream_csv(study: &Study, axes: &[Axis], series: &[Series], path: &Path, parts: Parts) -> i32 {
+    let mut undefined = 0usize;
+    let mut first_bad: Option<usize> = None;
+    let res = write_atomic(path, |w| {
+        let mut rows = CsvRows::new(w, axes, series, parts)?;
+        let mut err: Option<io::Error> = None;
+        let mut xs = vec![0.0; axes.len()];
+        let grid: Vec<Vec<f64>> = axes
+            .iter()
+            .map(|a| (0..a.count).map(|i| a.value(i)).collect())
+            .collect();
+        sweep::run(&study.engine, axes, series, |p, v| {
+            if err.is_some() {
+                return;
+            }
+            for (k, x) in xs.iter_mut().enumerate() {
+                *x = grid[k][sweep::axis_index(axes, k, p)];
+            }
+            if v.iter().any(|z| !sweep::finite(*z)) {
+                undefined += 1;
+                first_bad.get_or_insert(p);
+            }
+            if let Err(e) = rows.row(&xs, v) {
+                err = Some(e);
+            }
+        });
+        if let Some(e) = err {
+            return Err(e);
+        }
+        rows.finish().map(|_| ())
+    });
+    if let Err(e) = res {
+        return io_error(path, e);
+    }
+    warn_undefined(undefined, first_bad, axes);
+    EXIT_OK
+}
+
+fn warn_undefined(count: usize, first: Option<usize>, axes: &[Axis]) {
+    let Some(p) = first else { return };
+    let at: Vec<String> = axes
+        .iter()
+        .enumerate()
+        .map(|(k, a)| {
+            let x = a.value(sweep::axis_index(axes, k, p));
+            format!("{} = {}", a.name, show_x(a, x))
+        })
+        .collect();
+    eprintln!(
+        "warning: {count} point{} gave NaN or infinite values (the first at {}); they are written as NaN/inf and marked, not dropped",
+        if count == 1 { "" } else { "s" },
+        at.join(", ")
+    );
+}
+
+fn show_x(a: &Axis, x: f64) -> String {
+    format_value(C64::new(x, 0.0), a.quantity, a.display.as_ref(), Style { digits: 6 }).rect
+}
+
+fn emit(r: &SweepResult, a: &SweepArgs, sheet_name: &str, parts: Parts, style: Style, table_only: bool) -> i32 {
+    if let Some(p) = &a.csv {
+        if let Err(e) = write_atomic(p, |w| out::write_csv(w, r, parts).map(|_| ())) {
+            return io_error(p, e);
+        }
+    }
+    if let Some(p) = &a.json {
+        let text = out::to_json(sheet_name, r);
+        if let Err(e) = write_atomic(p, |w| writeln!(w, "{text}")) {
+            return io_error(p, e);
+        }
+    }
+    if let Some(p) = &a.plot {
+        let svg = match crate::plot::svg(
+            r,
+            &crate::plot::PlotOptions {
+                parts,
+                ..Default::default()
+            },
+        ) {
+            Ok(s) => s,
+            Err(e) => {
+                return unplaced(
+                    ErrorCode::Io,
+                    format!("cannot draw the plot: {e}"),
+                    "try fewer shown cells",
+                )
+            }
+        };
+        if let Err(e) = write_atomic(p, |w| w.write_all(svg.as_bytes())) {
+            return io_error(p, e);
+        }
+    }
+    if a.chart {
+        let width = terminal_width().clamp(40, 160);
+        print!(
+            "{}",
+            crate::plot::chart::chart(r, width, std::io::IsTerminal::is_terminal(&io::stdout()))
+        );
+    }
+    if table_only {
+        print!("{}", out::table(r, parts, style));
+    }
+    let bad = r.undefined_points();
+    warn_undefined(bad.len(), bad.first().copied(), &r.axes);
+    EXIT_OK
+}
+
+fn terminal_width() -> usize {
+    std::env::var("COLUMNS").ok().and_then(|c| c.parse().ok()).unwrap_or(80)
+}
+
+fn declared(sheet: crate::sheet::Sheet, a: &SweepArgs, name: &str, parts: Parts, style: Style) -> i32 {
+    let model = crate::engine::compile(&sheet);
+    if model.has_errors() {
+        report(&model.sources, &model.diagnostics);
+        return EXIT_ERROR;
+    }
+    let decls = sweep::declared::declared(&model);
+    if decls.is_empty() {
+        return unplaced(
+            ErrorCode::BadRange,
+            "no input to vary",
+            "give --vary NAME=START..STOP, or declare a sweep in the sheet with `@sweep`",
+        );
+    }
+    let k = a.declared;
+    if k == 0 || k > decls.len() {
+        return unplaced(
+            ErrorCode::BadRange,
+            format!(
+                "the sheet declares {} sweep{}; there is no number {k}",
+                decls.len(),
+                if decls.len() == 1 { "" } else { "s" }
+            ),
+            format!("give --declared 1 to {}", decls.len()),
+        );
+    }
+    let study = Study::of_model(model);
+    let r = match sweep::declared::run_one(&study, &decls[k - 1], a.max_points) {
+        Ok(r) => r,
+        Err(d) => {
+            d.eprint(&study.model().sources);
+            return EXIT_ERROR;
+        }
+    };
+    let table_only = a.csv.is_none() && a.json.is_none() && a.plot.is_none() && !a.chart;
+    emit(&r, a, name, parts, style, table_only)
+}
+
+pub fn solve(a: &SolveArgs) -> i32 {
+    let Ok((sheet, _)) = load_sheet(&a.sheet, &a.set, &a.load.options()) else {
+        return EXIT_ERROR;
+    };
+    let (goal, expr, value) = if let Some(t) = &a.target {
+        match sweep::split_target(t) {
+            Some((e, v)) => (Goal::Root, e.trim().to_string(), Some(v.trim().to_string())),
+            None => {
+                return unplaced(
+                    ErrorCode::BadSearch,
+                    format!("--target `{t}` is not of the form EXPR = VALUE"),
+                    "write e.g. --target 'pf = 0.95' or --target 'abs(Vload) = 480 V' (one `=`)",
+                )
+            }
+        }
+    } else if let Some(e) = &a.maximize {
+        (Goal::Max, e.trim().to_string(), None)
+    } else if let Some(e) = &a.minimize {
+        (Goal::Min, e.trim().to_string(), None)
+    } else {
+        return unplaced(
+            ErrorCode::BadSearch,
+            "nothing to solve for",
+            "give --target, --maximize or --minimize",
+        );
+    };
+    if expr.is_empty() || value.as_deref() == Some("") {
+        return unplaced(
+            ErrorCode::BadSearch,
+            "the target has an empty side",
+            "write e.g. --target 'pf = 0.95'",
+        );
+    }
+    let log = if a.log {
+        Some(true)
+    } else if a.linear {
+        Some(false)
+    } else {
+        None
+    };
+    let req = SolveRequest {
+        vary: &a.vary,
+        goal,
+        expr: &expr,
+        value: value.as_deref(),
+        scan: Some(a.scan),
+        log,
+    };
+    let digits = a.digits as usize;
+    let fmt = |s: &Series, x: C64| format_value(x, s.quantity, s.display.as_ref(), Style { digits }).rect;
+    match sweep::solve(sheet, &req) {
+        Ok(sol) => {
+            let x = fmt(&sol.input, C64::new(sol.found.x, 0.0));
+            let v = fmt(&sol.expr, sol.value_at);
+            if a.json {
+                let doc = serde_json::json!({
+                    "input": sol.input.name,
+                    "unit": crate::units::format::base_symbol(sol.input.quantity),
+                    "value": sol.found.x,
+                    "goal": match goal { Goal::Root => "target", Goal::Max => "maximum", Goal::Min => "minimum" },
+                    "expression": expr,
+                    "expression_unit": crate::units::format::base_symbol(sol.expr.quantity),
+                    "expression_re": sol.value_at.re,
+                    "expression_im": sol.value_at.im,
+                    "residual": if goal == Goal::Root { Some(sol.found.fx) } else { None },
+                    "iterations": sol.found.iterations,
+                    "evaluations": sol.found.evaluations,
+                    "scan_points": sol.scan + 1,
+                    "log_scan": sol.log,
+                    "at_edge": sol.found.at_edge,
+                });
+                println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
+                return EXIT_OK;
+            }
+            println!("{} = {x}", sol.input.name);
+            match goal {
+                Goal::Root => {
+                    let t = fmt(&sol.expr, sol.target.unwrap_or_default());
+                    println!(
+                        "  brings {expr} to {t} (it is {v} there; residual {})",
+                        crate::units::format::fmt_sig(sol.found.fx, 3)
+                    );
+                    if sol.value_at.im.abs() > 1e-9 * sol.value_at.norm() {
+                        println!("  note: {expr} is complex; its real part was matched (use abs, re or im to choose)");
+                    }
+                }
+                Goal::Max => println!("  {expr} is largest there: {v}"),
+                Goal::Min => println!("  {expr} is smallest there: {v}"),
+            }
+            let lo = fmt(&sol.input, C64::new(sol.lo, 0.0));
+            let hi = fmt(&sol.input, C64::new(sol.hi, 0.0));
+            println!(
+                "  {} iteration{} after a {} scan of {} points from {lo} to {hi}",
+                sol.found.iterations,
+                if sol.found.iterations == 1 { "" } else { "s" },
+                if sol.log { "logarithmic" } else { "linear" },
+                sol.scan + 1
+            );
+            if sol.found.at_edge && goal != Goal::Root {
+                println!(
+                    "  note: this is at the end of the range; the curve may go on {} beyond it",
+                    if goal == Goal::Max { "rising" } else { "falling" }
+                );
+            }
+            EXIT_OK
+        }
+        Err(SolveError::Invalid(f)) => {
+            report(&f.sources, &f.diagnostics);
+            EXIT_ERROR
+        }
+        Err(SolveError::Search(u)) => {
+            let sweep::Unsolved {
+                error,
+                input,
+                expr: es,
+                lo,
+                hi,
+                goal,
+            } = *u;
+            let xf = |x: f64| fmt(&input, C64::new(x, 0.0));
+            let target = value.as_ref().map(|v| v.to_string());
+            let (msg, hint) = sweep::explain(
+                &error,
+                goal,
+                &input.name,
+                &es.name,
+                target.as_deref(),
+                &xf(lo),
+                &xf(hi),
+                &xf,
+            );
+            Diagnostic::unplaced(ErrorCode::SearchFailed, msg)
+                .with_hint(hint)
+                .eprint(&SourceMap::new());
+            EXIT_CHECK_FAILED
+        }
+    }
+}
