@@ -81,7 +81,7 @@ fn markdown_sets_out_each_step_like_a_hand_calculation() {
     // Inputs, with where the library value came from.
     assert!(
         md.contains(
-            "| `Z` | 8 + j6 Ω<br>10 ∠ 36.87° Ω | `(8 + j6) Ω` | lib/parts.ohm, line 3 | coil, from the library |"
+            "| `Z` | 8 + j6 Ω<br>10 ∠ 36.87° Ω | `(8 + j6) Ω` | lib/parts.ohm, line 3<br>coil, from the library |"
         ),
         "{md}"
     );
@@ -94,7 +94,7 @@ fn markdown_sets_out_each_step_like_a_hand_calculation() {
     assert!(md.contains(step), "missing\n{step}in\n{md}");
     // Checks: pass/fail, difference and tolerance (1 % of 4000 W = 40 W;
     // 4232 − 4000 = 232 W).
-    assert!(md.contains("| 3 | `check re(S) ~= 4000 W +- 1%`<br>deliberately wrong: I²R is 4232 W<br>line 15 | 4.232 kW | 4 kW | 232 W | 40 W<br>1 % of \\|reference\\| | **FAIL** |"), "{md}");
+    assert!(md.contains("| 3 | `check re(S) ~= 4000 W +- 1%`<br>deliberately wrong: I²R is 4232 W<br>line 15 | 4232 W | 4000 W | 232 W | 40 W<br>1 % of \\|reference\\| | **FAIL** |"), "{md}");
     assert!(md.contains("| 2 | `check abs(S) ~= 5290 VA +- 0.01%`"), "{md}");
     assert!(md.contains("**1 of 3 checks FAIL.**"), "{md}");
     assert!(
@@ -274,4 +274,26 @@ fn notes_must_name_a_cell() {
         .any(|d| d.message.contains("`Vx`") && d.hint.as_deref() == Some("did you mean `Vs`?")));
     let d = crate::common::errors("Vs = 1 V\n@note Vs\n");
     assert!(d.iter().any(|d| d.message.contains("`@note` takes")));
+}
+
+/// The example reports committed under sheets-demo/reports/ are what the
+/// tool makes of the demo sheet now (see DEVELOPERS.md to regenerate).
+#[test]
+fn committed_demo_reports_are_current() {
+    let sheet = crate::common::repo("sheets-demo/pump-feeder-p3.ohm");
+    for ext in ["md", "html"] {
+        let out = ohmsheet()
+            .args(["report", sheet.to_str().unwrap(), "--format", ext])
+            .output()
+            .unwrap();
+        assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+        let committed = std::fs::read_to_string(crate::common::repo(&format!(
+            "sheets-demo/reports/pump-feeder-p3.{ext}"
+        )))
+        .unwrap();
+        assert!(
+            String::from_utf8_lossy(&out.stdout) == committed,
+            "sheets-demo/reports/pump-feeder-p3.{ext} is stale: regenerate it (DEVELOPERS.md)"
+        );
+    }
 }

@@ -18,6 +18,8 @@ struct Watch {
     child: Child,
     lines: Receiver<String>,
     seen: Vec<String>,
+    /// Lines before this index belong to earlier steps.
+    from: usize,
 }
 
 impl Watch {
@@ -47,12 +49,25 @@ impl Watch {
             child,
             lines: rx,
             seen: Vec::new(),
+            from: 0,
         }
     }
 
-    /// Read lines until one contains `want`; panic with everything read
-    /// after the timeout.
+    /// Start a new step: `expect` looks only at lines that come from now on.
+    fn mark(&mut self) {
+        while let Ok(l) = self.lines.try_recv() {
+            self.seen.push(l);
+        }
+        self.from = self.seen.len();
+    }
+
+    /// Wait for a line of this step that contains `want` (stdout and stderr
+    /// are read apart, so lines of one step may come in either order);
+    /// panic with everything read after the timeout.
     fn expect(&mut self, want: &str) {
+        if self.seen[self.from..].iter().any(|l| l.contains(want)) {
+            return;
+        }
         let end = Instant::now() + WAIT;
         loop {
             let left = end.saturating_duration_since(Instant::now());
@@ -96,6 +111,7 @@ fn watch_prints_changes_and_keeps_last_good_values() {
     let sheet = d.path().join("w.ohm");
 
     // Saved in place.
+    w.mark();
     std::fs::write(
         &sheet,
         "@include \"lib/r.ohm\"\nV = 24 V\nI = V / R\ncheck I ~= 3 A +- 1%\n",
@@ -107,11 +123,13 @@ fn watch_prints_changes_and_keeps_last_good_values() {
     w.expect("checks: 1 of 1 FAIL");
 
     // A save that does not parse: the error, and the old values stay.
+    w.mark();
     std::fs::write(&sheet, "@include \"lib/r.ohm\"\nV = 24 V\nI = V / (R\n").unwrap();
     w.expect("unclosed");
     w.expect("last good ones");
 
     // Saved by writing a new file and renaming it over the old one.
+    w.mark();
     let tmp = d.path().join(".w.ohm.swp");
     std::fs::write(
         &tmp,
@@ -124,6 +142,7 @@ fn watch_prints_changes_and_keeps_last_good_values() {
     w.expect("checks: all 1 pass");
 
     // The included library changes.
+    w.mark();
     std::fs::write(d.path().join("lib/r.ohm"), "R = 8 Ω\n").unwrap();
     w.expect("r.ohm saved");
     w.expect("4 Ω  →  8 Ω");

@@ -220,9 +220,16 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
 
     // Syntax trees of the definitions, by the span of the cell's name.
     let mut exprs: HashMap<Span, &Expr> = HashMap::new();
+    let mut check_asts: HashMap<Span, &crate::syntax::ast::Check> = HashMap::new();
     for st in &sheet.stmts {
-        if let StmtKind::Def(d) = &st.kind {
-            exprs.insert(d.name.span, &d.expr);
+        match &st.kind {
+            StmtKind::Def(d) => {
+                exprs.insert(d.name.span, &d.expr);
+            }
+            StmtKind::Check(c) => {
+                check_asts.insert(st.span, c);
+            }
+            _ => {}
         }
     }
     let source = |c: &crate::engine::Cell| -> (String, bool) {
@@ -315,7 +322,23 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
             Some(Shape::Record(f)) => f[0].1,
             _ => Quantity::PLAIN,
         };
-        let show = |z: C64| format_value(z, q, None, style).rect;
+        // Shown in the unit the sheet chose for the value checked: the
+        // display unit of a cell checked by name, else the unit written on
+        // the reference value (`2.3 %`).
+        let unit = check_asts.get(&c.stmt_span).and_then(|ch| check_unit(m, ch));
+        // Enough digits that a difference near the tolerance shows.
+        let digits = if r.tol > 0.0 && r.tol.is_finite() && crate::engine::ops::abs(r.rhs) > 0.0 {
+            let need = (crate::engine::ops::abs(r.rhs) / r.tol).log10().ceil() as i64 + 2;
+            need.clamp(style.digits as i64, 10) as usize
+        } else {
+            style.digits
+        };
+        let show = |z: C64| format_value(z, q, unit.as_ref(), Style { digits }).rect;
+        // A difference in a unit with a prefix reads best with its own
+        // prefix (2.4 mA, not 2.4e-6 kA); a plain number keeps the unit
+        // chosen (0.19 %).
+        let diff_unit = if q.dim.is_none() { unit.as_ref() } else { None };
+        let show_diff = |x: f64| format_value(C64::new(x, 0.0), q, diff_unit, style).rect;
         let rule = match c.tol {
             Some(TolSpec::Relative(f)) => format!(
                 "{} % of |reference|",
@@ -330,8 +353,8 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
             passed: r.passed,
             computed: show(r.lhs),
             reference: show(r.rhs),
-            difference: show(C64::new(r.diff, 0.0)),
-            allowed: show(C64::new(r.tol, 0.0)),
+            difference: show_diff(r.diff),
+            allowed: show_diff(r.tol),
             tolerance_rule: rule,
             notes: notes_of(c),
         });
@@ -358,6 +381,25 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
         plots: Vec::new(),
         caution: CAUTION,
         generator: format!("ohmsheet {}", env!("CARGO_PKG_VERSION")),
+    }
+}
+
+/// The unit to show a check's values in, if the sheet chose one.
+fn check_unit(m: &Model, ch: &crate::syntax::ast::Check) -> Option<Unit> {
+    if let ExprKind::Name(id) = &ch.lhs.kind {
+        if let Some(c) = m.cell(&id.name) {
+            if let (Some(u), Some(Shape::Scalar(_))) = (&c.display, &c.shape) {
+                return Some(u.clone());
+            }
+        }
+    }
+    let mut rhs = &ch.rhs;
+    while let ExprKind::Unary(_, inner) = &rhs.kind {
+        rhs = inner;
+    }
+    match &rhs.kind {
+        ExprKind::Number { unit: Some(u), .. } | ExprKind::Paren(_, Some(u)) => Some(u.unit.clone()),
+        _ => None,
     }
 }
 
@@ -633,8 +675,8 @@ pub fn markdown(r: &Report) -> String {
     if r.inputs.is_empty() {
         p(&mut o, "The sheet takes no values as given.");
     } else {
-        p(&mut o, "| Quantity | Value | Written as | Source | Notes |");
-        p(&mut o, "|---|--:|---|---|---|");
+        p(&mut o, "| Quantity | Value | Written as | Source and notes |");
+        p(&mut o, "|---|--:|---|---|");
         for i in &r.inputs {
             let written = if same_text(&i.written, &i.value.rect) {
                 String::new()
@@ -646,15 +688,16 @@ pub fn markdown(r: &Report) -> String {
             } else {
                 format!("{}<br>{}", md_text(&i.value.rect), md_text(&i.value.polar))
             };
+            let mut notes = vec![md_text(&i.source)];
+            notes.extend(i.notes.iter().map(|n| md_text(n)));
             p(
                 &mut o,
                 &format!(
-                    "| {} | {} | {} | {} | {} |",
+                    "| {} | {} | {} | {} |",
                     md_code(&i.name),
                     value,
                     written,
-                    md_text(&i.source),
-                    i.notes.iter().map(|n| md_text(n)).collect::<Vec<_>>().join("<br>")
+                    notes.join("<br>")
                 ),
             );
         }
@@ -662,6 +705,10 @@ pub fn markdown(r: &Report) -> String {
 
     p(&mut o, "");
     p(&mut o, "## 2. Calculation");
+    if !r.steps.is_empty() {
+        p(&mut o, "");
+        p(&mut o, &md_text(STEPS_INTRO));
+    }
     if r.steps.is_empty() {
         p(&mut o, "");
         p(&mut o, "The sheet computes nothing from its inputs.");
@@ -801,13 +848,15 @@ fn equation_lines(s: &Step) -> Vec<String> {
     let lhs = s.name.as_str();
     let pad = " ".repeat(UnicodeWidthStr::width(lhs));
     let mut v = vec![format!("{lhs} = {}", s.formula)];
-    if !same_text(&s.substituted, &s.formula) {
+    if show_substituted(s) {
         v.push(format!("{pad} = {}", s.substituted));
     }
     if s.results.len() == 1 {
         let val = &s.results[0].value;
         v.push(format!("{pad} = {}", val.rect));
-        v.push(format!("{pad} = {}", val.polar));
+        if !is_real_positive(val) {
+            v.push(format!("{pad} = {}", val.polar));
+        }
     } else {
         let w = s
             .results
@@ -825,6 +874,18 @@ fn equation_lines(s: &Step) -> Vec<String> {
     }
     v
 }
+
+/// The substituted line says something new: it differs from the formula
+/// and, for a single result, from the result itself.
+fn show_substituted(s: &Step) -> bool {
+    let same_as_result = s.results.len() == 1 && same_text(&s.substituted, &s.results[0].value.rect);
+    !same_as_result && !same_text(&s.substituted, &s.formula)
+}
+
+/// What a step shows, said once before the steps.
+const STEPS_INTRO: &str = "Each step gives the formula as written, the formula with the value and unit of \
+each quantity put in its place, and the result. A complex result is given in rectangular form \
+(a + jb) and in polar form (magnitude ∠ angle); a real, positive result is its own magnitude at 0°.";
 
 fn check_summary(r: &Report) -> String {
     let failed = r.checks.iter().filter(|c| !c.passed).count();
@@ -866,8 +927,9 @@ code, .eq td, .mono { font-family: "DejaVu Sans Mono", "Liberation Mono", Consol
 table { border-collapse: collapse; width: 100%; margin: .3rem 0 .6rem; }
 th, td { border: .5pt solid var(--rule); padding: 2pt 4pt; vertical-align: top; text-align: left;
          overflow-wrap: anywhere; }
-th { background: #eee; font-weight: 600; }
+th { background: #eee; font-weight: 600; white-space: nowrap; }
 td.num { text-align: right; white-space: nowrap; }
+td.written code { white-space: nowrap; }
 table.meta { width: auto; min-width: 60%; }
 table.meta th { width: 11rem; }
 .hash { font-family: "DejaVu Sans Mono", "Liberation Mono", Consolas, monospace; font-size: .85em; overflow-wrap: anywhere; }
@@ -975,7 +1037,7 @@ pub fn html(r: &Report) -> String {
     if r.inputs.is_empty() {
         o.push_str("<p>The sheet takes no values as given.</p>\n");
     } else {
-        o.push_str("<table>\n<thead><tr><th>Quantity</th><th>Value</th><th>Written as</th><th>Source</th><th>Notes</th></tr></thead>\n<tbody>\n");
+        o.push_str("<table>\n<thead><tr><th>Quantity</th><th>Value</th><th>Written as</th><th>Source and notes</th></tr></thead>\n<tbody>\n");
         for i in &r.inputs {
             let written = if same_text(&i.written, &i.value.rect) {
                 String::new()
@@ -987,15 +1049,14 @@ pub fn html(r: &Report) -> String {
             } else {
                 format!("{}<br>{}", esc(&i.value.rect), esc(&i.value.polar))
             };
-            let notes: Vec<String> = i.notes.iter().map(|n| esc(n)).collect();
+            let notes: String = i.notes.iter().map(|n| format!("<br>{}", esc(n))).collect();
             o.push_str(&format!(
-                "<tr data-cell=\"{}\"><td><code>{}</code></td><td class=\"num value\">{}</td><td>{}</td><td class=\"source\">{}</td><td>{}</td></tr>\n",
+                "<tr data-cell=\"{}\"><td><code>{}</code></td><td class=\"num value\">{}</td><td class=\"written\">{}</td><td><span class=\"source\">{}</span>{notes}</td></tr>\n",
                 esc(&i.name),
                 esc(&i.name),
                 value,
                 written,
                 esc(&i.source),
-                notes.join("<br>")
             ));
         }
         o.push_str("</tbody>\n</table>\n");
@@ -1003,6 +1064,9 @@ pub fn html(r: &Report) -> String {
     o.push_str("</section>\n");
 
     o.push_str("<section id=\"calculation\">\n<h2>2. Calculation</h2>\n");
+    if !r.steps.is_empty() {
+        o.push_str(&format!("<p class=\"small\">{}</p>\n", esc(STEPS_INTRO)));
+    }
     if r.steps.is_empty() {
         o.push_str("<p>The sheet computes nothing from its inputs.</p>\n");
     }
@@ -1022,13 +1086,15 @@ pub fn html(r: &Report) -> String {
             ));
         };
         row(&mut o, "formula", &esc(&s.name), &esc(&s.formula));
-        if !same_text(&s.substituted, &s.formula) {
+        if show_substituted(s) {
             row(&mut o, "substituted", "", &esc(&s.substituted));
         }
         if s.results.len() == 1 {
             let v = &s.results[0].value;
             row(&mut o, "result rect", "", &esc(&v.rect));
-            row(&mut o, "result polar", "", &esc(&v.polar));
+            if !is_real_positive(v) {
+                row(&mut o, "result polar", "", &esc(&v.polar));
+            }
         } else {
             for res in &s.results {
                 row(
