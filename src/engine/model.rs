@@ -278,6 +278,13 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                 let name = format!("check:{}", stmt.line);
                 let mut cell = new_cell(sheet, stmt, name, Role::Check, stmt.span, &c.lhs, None);
                 cell.formula = sheet.sources.slice(stmt.span).to_string();
+                // A check of a named cell shows its values in that cell's
+                // display unit.
+                if let ExprKind::Name(id) = &c.lhs.kind {
+                    if let Some(&target) = by_name.get(&id.name) {
+                        cell.display = cells[target as usize].display.clone();
+                    }
+                }
                 cells.push(cell);
                 pending.push(Pending {
                     expr: None,

@@ -153,7 +153,7 @@ pub fn check_rows(engine: &Engine, style: Style) -> Vec<CheckRow> {
             Some(Shape::Record(f)) => f[0].1,
             _ => Quantity::PLAIN,
         };
-        let show = |z: C64| format_value(z, q, None, style).rect;
+        let show = |z: C64| format_value(z, q, c.display.as_ref(), style).rect;
         rows.push(CheckRow {
             expr: c.formula.clone(),
             file: m.sources.get(c.file).name.clone(),

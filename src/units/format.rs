@@ -214,7 +214,7 @@ pub fn fmt_sig(x: f64, digits: usize) -> String {
         return "0".into();
     }
     let mag = x.abs().log10().floor() as i32;
-    if !(-5..15).contains(&mag) {
+    if !(-4..15).contains(&mag) {
         let s = format!("{:.*e}", digits - 1, x);
         // 1.2340e-7 -> 1.234e-7
         if let Some((m, e)) = s.split_once('e') {
