@@ -72,10 +72,10 @@ pub struct Change {
 #[derive(Clone, Debug)]
 pub struct Engine {
     pub model: Model,
-    slots: Vec<C64>,
+    pub(super) slots: Vec<C64>,
     /// Cells re-evaluated by the last update (for tests and benchmarks).
     pub last_recomputed: Vec<CellId>,
-    queued: Vec<bool>,
+    pub(super) queued: Vec<bool>,
 }
 
 impl Engine {
@@ -127,7 +127,7 @@ impl Engine {
         changes
     }
 
-    fn propagate(&mut self, from: CellId, changes: &mut Vec<Change>) {
+    pub(super) fn propagate(&mut self, from: CellId, changes: &mut Vec<Change>) {
         let m = &self.model;
         let mut heap: BinaryHeap<Reverse<(u32, CellId)>> = BinaryHeap::new();
         for &d in &m.dependents[from as usize] {

@@ -1,11 +1,13 @@
 //! Compiling and evaluating sheets. No I/O here.
 
 pub mod block;
+pub mod edit;
 pub mod eval;
 pub mod model;
 pub mod ops;
 pub mod program;
 pub mod search;
 
+pub use edit::EditError;
 pub use eval::{check_result, Change, CheckResult, Engine};
 pub use model::{compile, Cell, CellError, CellId, Model, Role};

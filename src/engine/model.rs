@@ -182,7 +182,7 @@ impl Model {
 
 /// A value while lowering.
 #[derive(Clone, Debug)]
-enum Val {
+pub(super) enum Val {
     Scalar(Operand, Quantity),
     Record(Vec<(&'static str, Operand, Quantity)>),
 }
@@ -255,7 +255,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                 let id = cells.len() as CellId;
                 by_name.insert(name.clone(), id);
                 let mut cell = new_cell(
-                    sheet,
+                    &sheet.sources,
                     stmt,
                     name.clone(),
                     Role::Def,
@@ -276,7 +276,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
             }
             StmtKind::Check(c) => {
                 let name = format!("check:{}", stmt.line);
-                let mut cell = new_cell(sheet, stmt, name, Role::Check, stmt.span, &c.lhs, None);
+                let mut cell = new_cell(&sheet.sources, stmt, name, Role::Check, stmt.span, &c.lhs, None);
                 cell.formula = sheet.sources.slice(stmt.span).to_string();
                 // A check of a named cell shows its values in that cell's
                 // display unit.
@@ -465,8 +465,8 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     model
 }
 
-fn new_cell(
-    sheet: &Sheet,
+pub(super) fn new_cell(
+    sources: &SourceMap,
     stmt: &Stmt,
     name: String,
     role: Role,
@@ -481,7 +481,7 @@ fn new_cell(
         line: stmt.line,
         name_span,
         stmt_span: stmt.span,
-        formula: sheet.sources.slice(expr.span).to_string(),
+        formula: sources.slice(expr.span).to_string(),
         shape: None,
         error: None,
         slot: 0,
@@ -497,7 +497,7 @@ fn new_cell(
 
 /// The unit of a formula that is one number (or bracket) with a unit,
 /// possibly negated.
-fn literal_unit(e: &Expr) -> Option<Unit> {
+pub(super) fn literal_unit(e: &Expr) -> Option<Unit> {
     match &e.kind {
         ExprKind::Number { unit: Some(u), .. } | ExprKind::Paren(_, Some(u)) => Some(u.unit.clone()),
         ExprKind::Unary(_, inner) => literal_unit(inner),
@@ -765,17 +765,17 @@ fn report_cycles(cells: &mut [Cell], topo: &[CellId], diags: &mut Vec<Diagnostic
     }
 }
 
-struct Lowerer<'a> {
-    cells: &'a [Cell],
-    by_name: &'a HashMap<String, CellId>,
-    sources: &'a SourceMap,
-    ctx: Ctx,
+pub(super) struct Lowerer<'a> {
+    pub(super) cells: &'a [Cell],
+    pub(super) by_name: &'a HashMap<String, CellId>,
+    pub(super) sources: &'a SourceMap,
+    pub(super) ctx: Ctx,
 }
 
 type R<T> = Result<T, Diagnostic>;
 
 impl Lowerer<'_> {
-    fn lower_def(&self, em: &mut Emitter, e: &Expr, cell: &Cell) -> R<Val> {
+    pub(super) fn lower_def(&self, em: &mut Emitter, e: &Expr, cell: &Cell) -> R<Val> {
         let v = self.expr(em, e)?;
         let Some(u) = &cell.display else { return Ok(v) };
         let display_span = self.display_span(cell);
@@ -909,7 +909,7 @@ impl Lowerer<'_> {
         }
     }
 
-    fn expr(&self, em: &mut Emitter, e: &Expr) -> R<Val> {
+    pub(super) fn expr(&self, em: &mut Emitter, e: &Expr) -> R<Val> {
         match &e.kind {
             ExprKind::Number { value, imag, unit } => {
                 let c = if *imag {

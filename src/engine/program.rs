@@ -70,6 +70,15 @@ pub struct SlotSpace {
 }
 
 impl SlotSpace {
+    /// A space whose first `n` slots are already taken: new slots and
+    /// constants are numbered from `n` on (for lowering one more cell
+    /// into a finished program).
+    pub fn with_base(n: usize) -> SlotSpace {
+        SlotSpace {
+            init: vec![C64::new(0.0, 0.0); n],
+            consts: HashMap::new(),
+        }
+    }
     pub fn alloc(&mut self, n: u32) -> u32 {
         let s = self.init.len() as u32;
         self.init.extend(std::iter::repeat_n(C64::new(0.0, 0.0), n as usize));
