@@ -265,6 +265,16 @@ impl Diagnostic {
         String::from_utf8_lossy(&buf.into_inner()).into_owned()
     }
 
+    /// Render to a string, with ANSI colours when `color` is set.
+    pub fn render(&self, sources: &SourceMap, color: bool) -> String {
+        if !color {
+            return self.render_plain(sources);
+        }
+        let mut buf = codespan_reporting::term::termcolor::Ansi::new(Vec::new());
+        self.emit(sources, &mut buf);
+        String::from_utf8_lossy(&buf.into_inner()).into_owned()
+    }
+
     fn emit(&self, sources: &SourceMap, out: &mut dyn WriteColor) {
         let mut files = SimpleFiles::new();
         let mut ids = Vec::new();

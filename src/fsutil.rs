@@ -57,13 +57,26 @@ impl AtomicFile {
         &self.dest
     }
 
-    /// Flush, sync to disk and rename over the destination.
+    /// Flush, sync to disk and rename over the destination. A file that is
+    /// replaced keeps its permissions; the directory entry is synced too.
     pub fn commit(mut self) -> io::Result<()> {
         let out = self.out.take().expect("not yet committed");
         let tmp = out.into_inner().map_err(|e| e.into_error())?;
+        if let Ok(meta) = std::fs::metadata(&self.dest) {
+            let _ = tmp.as_file().set_permissions(meta.permissions());
+        }
         tmp.as_file().sync_all()?;
         let result = tmp.persist(&self.dest).map(|_| ()).map_err(|e| e.error);
         self.forget();
+        if result.is_ok() {
+            if let Some(dir) = self.dest.parent() {
+                sync_dir(if dir.as_os_str().is_empty() {
+                    Path::new(".")
+                } else {
+                    dir
+                });
+            }
+        }
         result
     }
 
@@ -98,6 +111,14 @@ pub fn write_atomic(dest: &Path, bytes: &[u8]) -> io::Result<()> {
     let mut f = AtomicFile::create(dest)?;
     f.write_all(bytes)?;
     f.commit()
+}
+
+/// Flush a directory's entries (a new or renamed file) to the disk. Best
+/// effort: not every platform can open a directory.
+pub fn sync_dir(dir: &Path) {
+    if let Ok(d) = std::fs::File::open(dir) {
+        let _ = d.sync_all();
+    }
 }
 
 /// On Ctrl-C or SIGTERM, delete every temporary file not yet renamed and
@@ -149,5 +170,34 @@ mod tests {
         );
         let left: Vec<_> = std::fs::read_dir(dir.path()).unwrap().collect();
         assert_eq!(left.len(), 1, "the temporary file is gone");
+    }
+
+    #[test]
+    fn write_atomic_replaces_and_a_failed_write_keeps_the_old_file() {
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("site.ohm");
+        write_atomic(&p, b"a = 1\n").unwrap();
+        write_atomic(&p, b"a = 2\n").unwrap();
+        assert_eq!(std::fs::read_to_string(&p).unwrap(), "a = 2\n");
+        // The target is a non-empty directory: the rename fails, the
+        // temporary file is removed and the other file is untouched.
+        let sub = dir.path().join("sub");
+        std::fs::create_dir(&sub).unwrap();
+        std::fs::write(sub.join("x"), "").unwrap();
+        assert!(write_atomic(&sub, b"nope").is_err());
+        assert_eq!(std::fs::read_to_string(&p).unwrap(), "a = 2\n");
+        assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 2);
+    }
+
+    #[cfg(unix)]
+    #[test]
+    fn a_replaced_file_keeps_its_permissions() {
+        use std::os::unix::fs::PermissionsExt;
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("site.ohm");
+        std::fs::write(&p, "a = 1\n").unwrap();
+        std::fs::set_permissions(&p, std::fs::Permissions::from_mode(0o600)).unwrap();
+        write_atomic(&p, b"a = 2\n").unwrap();
+        assert_eq!(std::fs::metadata(&p).unwrap().permissions().mode() & 0o777, 0o600);
     }
 }

@@ -10,6 +10,7 @@ pub mod fsutil;
 pub mod funcs;
 pub mod output;
 pub mod plot;
+pub mod session;
 pub mod sheet;
 pub mod sweep;
 pub mod syntax;

@@ -18,5 +18,6 @@ mod readme;
 mod reference;
 mod report;
 mod report_browser;
+mod session_pty;
 mod sweep;
 mod watch;

@@ -29,11 +29,15 @@ pub const EXIT_ERROR: i32 = 2;
     name = "ohmsheet",
     version,
     about = "Worksheets of named AC quantities: phasors, units, parallel and series networks",
-    long_about = None
+    long_about = None,
+    args_conflicts_with_subcommands = true,
+    after_help = "With no command, starts an interactive session on SHEET (or on a new, unnamed sheet)."
 )]
 pub struct Cli {
     #[command(subcommand)]
-    pub command: Command,
+    pub command: Option<Command>,
+    /// A sheet to work on interactively (created on /save if it does not exist)
+    pub sheet: Option<PathBuf>,
 }
 
 #[derive(Subcommand, Debug)]
@@ -146,7 +150,27 @@ pub fn main_with(args: Vec<OsString>) -> i32 {
             return if e.use_stderr() { EXIT_ERROR } else { EXIT_OK };
         }
     };
-    match cli.command {
+    let Some(command) = cli.command else {
+        if let Some(p) = &cli.sheet {
+            // `ohmsheet new.ohm` starts a new sheet; `ohmsheet rnu` is a typo.
+            if !p.exists() && p.extension().is_none() {
+                let word = p.display().to_string();
+                let cmd = <Cli as clap::CommandFactory>::command();
+                let names: Vec<&str> = cmd.get_subcommands().map(|c| c.get_name()).collect();
+                let hint = match crate::diag::did_you_mean(&word, names.iter().copied()) {
+                    Some(s) => format!("did you mean `ohmsheet {s}`?"),
+                    None => format!(
+                        "commands are {}; a new sheet needs a name with an extension, e.g. `{word}.ohm`",
+                        names.join(", ")
+                    ),
+                };
+                eprintln!("error: `{word}` is neither a command nor an existing sheet\n  hint: {hint}");
+                return EXIT_ERROR;
+            }
+        }
+        return crate::session::run(cli.sheet);
+    };
+    match command {
         Command::Run(a) => run::run(&a),
         Command::Batch(a) => batch::batch(&a),
         Command::Report(a) => report::report(&a),

@@ -605,6 +605,28 @@ mod tests {
     }
 
     #[test]
+    fn record_cells_are_redefined_in_place() {
+        let src = "Z = (3 + j4) Ω\np = as_parallel(Z)\nR = p.R\ns = as_series(3 Ω, 4 Ω)\nt = s.Z + R";
+        let mut e = engine(src);
+        redefine(&mut e, "p = as_parallel(Z * 2)").unwrap();
+        redefine(&mut e, "s = as_series(abs(Z), 5 Ω)").unwrap();
+        assert!(!e.model.cell("s").unwrap().input);
+        assert_same_as_compiled(
+            &e,
+            "Z = (3 + j4) Ω\np = as_parallel(Z * 2)\nR = p.R\ns = as_series(abs(Z), 5 Ω)\nt = s.Z + R",
+        );
+        let (stmt, d) = typed(&mut e, "q = as_series(t, 2 Ω)");
+        e.add_cell(&stmt, &d).unwrap();
+        redefine(&mut e, "Z = (6 + j8) Ω").unwrap();
+        assert_same_as_compiled(
+            &e,
+            "Z = (6 + j8) Ω\np = as_parallel(Z * 2)\nR = p.R\ns = as_series(abs(Z), 5 Ω)\nt = s.Z + R\nq = as_series(t, 2 Ω)",
+        );
+        // a record becoming a scalar needs the whole sheet compiled
+        assert!(matches!(redefine(&mut e, "p = Z"), Err(EditError::Recompile(_))));
+    }
+
+    #[test]
     fn same_value_changes_nothing() {
         let mut e = engine(DIVIDER);
         let ch = redefine(&mut e, "Rt = R2 + R1").unwrap();

@@ -1,0 +1,309 @@
+//! The interactive session, driven as a person would: the real binary in a
+//! pseudo-terminal, with line editing on. Each test has its own HOME and
+//! XDG data directory, so history and journals never touch the real ones.
+//!
+//! Expected values are Ohm's law and P = |V|²/R worked by hand for the
+//! invented divider below (480 V across 10 Ω + 20 Ω: 16 A; with R2 = 30 Ω:
+//! 12 A, and P = 480²/40 = 5.76 kW).
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+use rexpect::reader::Options;
+use rexpect::session::{spawn_with_options, PtySession};
+
+/// Generous: the machine is shared and may be loaded.
+const TIMEOUT_MS: u64 = 30_000;
+
+const DIVIDER: &str = "# Pump house feeder (invented numbers)\n\
+Vs = 480 V      # bus\n\
+R1 = 10 Ω\n\
+R2 = 20 Ω\n\
+\n\
+Rt = R1 + R2    # total\n\
+I = Vs / Rt\n";
+
+struct Env {
+    dir: tempfile::TempDir,
+}
+
+impl Env {
+    fn new() -> Env {
+        Env {
+            dir: tempfile::tempdir().expect("temp dir"),
+        }
+    }
+
+    fn sheet(&self, text: &str) -> PathBuf {
+        let p = self.dir.path().join("feeder.ohm");
+        std::fs::write(&p, text).expect("write sheet");
+        p
+    }
+
+    fn journals(&self) -> PathBuf {
+        self.dir.path().join("data/ohmsheet/journals")
+    }
+
+    fn spawn(&self, sheet: Option<&Path>) -> Pty {
+        let mut cmd = Command::new(assert_cmd::cargo::cargo_bin("ohmsheet"));
+        if let Some(s) = sheet {
+            cmd.arg(s);
+        }
+        cmd.current_dir(self.dir.path())
+            .env("HOME", self.dir.path())
+            .env("XDG_DATA_HOME", self.dir.path().join("data"))
+            .env("XDG_CONFIG_HOME", self.dir.path().join("config"))
+            .env("TERM", "xterm")
+            .env("NO_COLOR", "1");
+        let opts = Options::new()
+            .timeout_ms(Some(TIMEOUT_MS))
+            .strip_ansi_escape_codes(true);
+        let p = spawn_with_options(cmd, opts).expect("spawn ohmsheet in a pty");
+        Pty { p }
+    }
+}
+
+struct Pty {
+    p: PtySession,
+}
+
+/// The pty reader takes each byte for a character; UTF-8 text (Ω, →, ▸)
+/// is matched in that form.
+fn as_bytes(s: &str) -> String {
+    s.bytes().map(char::from).collect()
+}
+
+fn from_bytes(s: &str) -> String {
+    let b: Vec<u8> = s.chars().map(|c| c as u32 as u8).collect();
+    String::from_utf8_lossy(&b).into_owned()
+}
+
+impl Pty {
+    /// Wait for `s`; returns what came before it.
+    fn expect(&mut self, s: &str) -> String {
+        match self.p.exp_string(&as_bytes(s)) {
+            Ok(before) => from_bytes(&before),
+            Err(e) => panic!("waiting for {s:?}: {}", from_bytes(&e.to_string())),
+        }
+    }
+    fn regex(&mut self, r: &str) {
+        if let Err(e) = self.p.exp_regex(&as_bytes(r)) {
+            panic!("waiting for /{r}/: {}", from_bytes(&e.to_string()));
+        }
+    }
+    /// Wait for the prompt; returns what came before it.
+    fn prompt(&mut self) -> String {
+        self.expect("▸ ")
+    }
+    fn line(&mut self, s: &str) {
+        self.p.send_line(s).expect("send a line");
+    }
+    fn send(&mut self, s: &str) {
+        self.p.send(s).expect("send");
+        self.p.flush().expect("flush");
+    }
+    fn eof(&mut self) {
+        if let Err(e) = self.p.exp_eof() {
+            panic!("waiting for the session to end: {e}");
+        }
+    }
+}
+
+#[test]
+fn define_redefine_see_dependents_explain_and_undo() {
+    let env = Env::new();
+    let sheet = env.sheet(DIVIDER);
+    let mut t = env.spawn(Some(&sheet));
+    t.expect("5 cells, 0 checks");
+    t.prompt();
+
+    t.line("R2 = 30 Ω");
+    t.expect("(was 20 Ω)");
+    t.regex(r"Rt\s+30 Ω\s+→\s+40 Ω");
+    t.regex(r"I\s+16 A\s+→\s+12 A");
+    t.prompt();
+
+    t.line("P = re(Vs * conj(I))");
+    t.expect("P = 5.76 kW");
+    t.prompt();
+
+    t.line("/why P");
+    t.expect("P = re(Vs * conj(I))  ⇒ 5.76 kW");
+    t.expect("└─ I = Vs / Rt  ⇒ 12 A");
+    t.expect("└─ Rt = R1 + R2  ⇒ 40 Ω");
+    t.expect("R2 = 30 Ω   · input");
+    t.prompt();
+
+    t.line("/feeds R2");
+    t.expect("R2 feeds 3 cells (1 directly)");
+    t.prompt();
+
+    t.line("/back");
+    t.expect("took back: P = re(Vs * conj(I))");
+    t.prompt();
+    t.line("/back");
+    t.expect("back to: R2 = 20 Ω");
+    t.regex(r"I\s+12 A\s+→\s+16 A");
+    t.prompt();
+
+    // Back where it started: leaving asks nothing.
+    t.line("/done");
+    t.eof();
+    assert_eq!(std::fs::read_to_string(&sheet).unwrap(), DIVIDER);
+}
+
+#[test]
+fn a_bad_line_shows_a_caret_and_leaves_the_sheet_intact() {
+    let env = Env::new();
+    let sheet = env.sheet(DIVIDER);
+    let mut t = env.spawn(Some(&sheet));
+    t.prompt();
+
+    t.line("R2 = 30 V");
+    t.expect("error[dimension-mismatch]");
+    t.expect("Rt = R1 + R2");
+    t.expect("^^");
+    t.expect("the sheet is as it was");
+    t.prompt();
+
+    t.line("x = (3 +");
+    t.expect("error[syntax]");
+    t.expect("input:1:");
+    t.expect("the sheet is as it was");
+    t.prompt();
+
+    // Values are as before: 480 V / 30 Ω = 16 A.
+    t.line("1 * I");
+    t.regex(r"\n\s+16 A");
+    t.prompt();
+
+    // Nothing changed, so leaving asks nothing and no journal is left.
+    t.line("/done");
+    t.eof();
+    assert_eq!(std::fs::read_to_string(&sheet).unwrap(), DIVIDER);
+    let left = std::fs::read_dir(env.journals()).map_or(0, |d| d.count());
+    assert_eq!(left, 0);
+}
+
+#[test]
+fn a_killed_session_is_recovered_whole() {
+    let env = Env::new();
+    let sheet = env.sheet(DIVIDER);
+    let mut t = env.spawn(Some(&sheet));
+    t.prompt();
+    t.line("R2 = 30 Ω");
+    t.expect("(was 20 Ω)");
+    t.prompt();
+    t.line("P = re(Vs * conj(I))");
+    t.expect("P = 5.76 kW");
+    t.prompt();
+    t.line("Vs = 400 V");
+    t.expect("(was 480 V)");
+    t.prompt();
+
+    // Power cut: SIGKILL, no chance to save or say goodbye.
+    t.p.process_mut()
+        .signal(nix::sys::signal::Signal::SIGKILL)
+        .expect("kill");
+    let _ = t.p.process_mut().wait();
+    assert_eq!(std::fs::read_to_string(&sheet).unwrap(), DIVIDER, "nothing was saved");
+
+    let mut t = env.spawn(Some(&sheet));
+    t.expect("Unsaved work from an earlier session");
+    t.expect("3 changes");
+    t.expect("Restore it?");
+    t.line("y");
+    t.expect("restored 3 changes");
+    t.prompt();
+    // 400 V across 40 Ω: P = 400²/40 = 4 kW.
+    t.line("/why P");
+    t.expect("P = re(Vs * conj(I))  ⇒ 4 kW");
+    t.prompt();
+
+    t.line("/save");
+    t.expect("saved");
+    t.prompt();
+    t.line("/done");
+    t.eof();
+    assert_eq!(
+        std::fs::read_to_string(&sheet).unwrap(),
+        "# Pump house feeder (invented numbers)\n\
+Vs = 400 V      # bus\n\
+R1 = 10 Ω\n\
+R2 = 30 Ω\n\
+\n\
+Rt = R1 + R2    # total\n\
+I = Vs / Rt\n\
+P = re(Vs * conj(I))\n"
+    );
+
+    // Saved: the next start offers nothing.
+    let mut t = env.spawn(Some(&sheet));
+    let before = t.prompt();
+    assert!(!before.contains("Unsaved work"), "{before}");
+    t.line("/done");
+    t.eof();
+}
+
+#[test]
+fn leaving_with_unsaved_changes_asks_first() {
+    let env = Env::new();
+    let sheet = env.sheet(DIVIDER);
+    let mut t = env.spawn(Some(&sheet));
+    t.prompt();
+    t.line("R1 = 5 Ω");
+    t.expect("(was 10 Ω)");
+    t.prompt();
+    t.line("/done");
+    t.expect("1 unsaved change. Save to");
+    t.line("c");
+    t.prompt();
+    // Ctrl-D asks the same question.
+    t.send("\x04");
+    t.expect("1 unsaved change. Save to");
+    t.line("y");
+    t.expect("saved");
+    t.eof();
+    let text = std::fs::read_to_string(&sheet).unwrap();
+    assert_eq!(text, DIVIDER.replace("R1 = 10 Ω", "R1 = 5 Ω"));
+}
+
+#[test]
+fn tab_completes_commands_and_cell_names() {
+    let env = Env::new();
+    let sheet = env.sheet(DIVIDER);
+    let mut t = env.spawn(Some(&sheet));
+    t.prompt();
+    // `/wh` + Tab → `/why `, then `V` + Tab → `Vs` (the only cell with V).
+    t.send("/wh\t");
+    t.send("V\t");
+    t.line("");
+    t.expect("Vs = 480 V   · input");
+    t.prompt();
+    t.line("/done");
+    t.eof();
+}
+
+#[test]
+fn piped_lines_work_and_a_typo_is_not_a_new_sheet() {
+    let env = Env::new();
+    crate::common::ohmsheet()
+        .current_dir(env.dir.path())
+        .env("HOME", env.dir.path())
+        .env("XDG_DATA_HOME", env.dir.path().join("data"))
+        .arg("new.ohm")
+        .write_stdin("Zs = (0.2 + j1.1) Ω\nZl = 12 Ω\n/save\n")
+        .assert()
+        .code(0)
+        .stdout(predicates::str::contains("saved new.ohm"));
+    assert_eq!(
+        std::fs::read_to_string(env.dir.path().join("new.ohm")).unwrap(),
+        "Zs = (0.2 + j1.1) Ω\nZl = 12 Ω\n"
+    );
+    crate::common::ohmsheet()
+        .current_dir(env.dir.path())
+        .arg("rnu")
+        .assert()
+        .code(2)
+        .stderr(predicates::str::contains("neither a command nor an existing sheet"));
+}
