@@ -8,6 +8,7 @@ pub mod diag;
 pub mod engine;
 pub mod fsutil;
 pub mod funcs;
+pub mod harness;
 pub mod output;
 pub mod plot;
 pub mod session;

@@ -122,10 +122,11 @@ impl Block {
                         let sr = ar + br;
                         let si = ai + bi;
                         let den = sr * sr + si * si;
-                        let special = (ar == 0.0 && ai == 0.0)
-                            || (br == 0.0 && bi == 0.0)
-                            || !(ar.is_finite() && ai.is_finite() && br.is_finite() && bi.is_finite());
-                        careful |= special || !(den.is_normal() && den < 1e300);
+                        // the same test as `ops::par_plain_ok`
+                        let ma = ar.abs().max(ai.abs());
+                        let mb = br.abs().max(bi.abs());
+                        let plain = (1e-75..=1e75).contains(&ma) && (1e-75..=1e75).contains(&mb) && den.is_normal();
+                        careful |= !plain;
                         *re.add(d + l) = (nr * sr + ni * si) / den;
                         *im.add(d + l) = (ni * sr - nr * si) / den;
                     }

@@ -6,7 +6,9 @@
 //! - Division by an exact zero gives an infinite value (each non-zero part
 //!   becomes ±∞), and 0/0 gives NaN, as IEEE 754 does for reals.
 //! - `par(a, b)` is a·b/(a+b) with a short (0) giving 0 and an open (∞)
-//!   giving the other operand.
+//!   giving the other operand; two opens give an open. Magnitudes whose
+//!   product would overflow or underflow take a scaled path, so
+//!   `1e200 || 1e200` is 5e199, not ∞ or NaN.
 //! - Functions of a real argument take a real-only path, so `sqrt(4)` is
 //!   exactly 2 and `asin(0.5)` has no stray imaginary part.
 
@@ -172,23 +174,55 @@ fn is_inf(z: C64) -> bool {
     z.re.is_infinite() || z.im.is_infinite()
 }
 
+/// Whether the plain formula a·b/(a+b) is safe for these operands: the
+/// larger part of each operand between 1e-75 and 1e75 (so neither is zero,
+/// infinite or NaN, and a·b·conj(a+b) can neither overflow nor underflow)
+/// and |a+b|² a normal number. `block.rs` takes its vector path under
+/// exactly this condition.
+#[inline]
+pub fn par_plain_ok(a: C64, b: C64) -> bool {
+    const RANGE: std::ops::RangeInclusive<f64> = 1e-75..=1e75;
+    let (sr, si) = (a.re + b.re, a.im + b.im);
+    RANGE.contains(&a.re.abs().max(a.im.abs()))
+        && RANGE.contains(&b.re.abs().max(b.im.abs()))
+        && (sr * sr + si * si).is_normal()
+}
+
 /// Reciprocal-sum combination `a·b/(a+b)`.
 #[inline]
 pub fn par(a: C64, b: C64) -> C64 {
+    if par_plain_ok(a, b) {
+        let n = a * b;
+        let s = a + b;
+        let d = s.re * s.re + s.im * s.im;
+        C64::new((n.re * s.re + n.im * s.im) / d, (n.im * s.re - n.re * s.im) / d)
+    } else {
+        par_careful(a, b)
+    }
+}
+
+/// `par` for shorts, opens, NaN, and magnitudes whose product would
+/// overflow or underflow: b/(1 + b/a) with |b| ≤ |a|, so the ratio never
+/// exceeds 1.
+#[cold]
+pub fn par_careful(a: C64, b: C64) -> C64 {
     let zero = |z: C64| z.re == 0.0 && z.im == 0.0;
+    let nan = |z: C64| z.re.is_nan() || z.im.is_nan();
+    if nan(a) || nan(b) {
+        return C64::new(f64::NAN, f64::NAN);
+    }
     if zero(a) || zero(b) {
-        if a.re.is_nan() || a.im.is_nan() || b.re.is_nan() || b.im.is_nan() {
-            return C64::new(f64::NAN, f64::NAN);
-        }
         return C64::new(0.0, 0.0);
     }
-    if is_inf(a) {
-        return if is_inf(b) { a } else { b };
+    match (is_inf(a), is_inf(b)) {
+        // an open in parallel with an open is an open
+        (true, true) => return C64::new(f64::INFINITY, 0.0),
+        (true, false) => return b,
+        (false, true) => return a,
+        (false, false) => {}
     }
-    if is_inf(b) {
-        return a;
-    }
-    div(a * b, a + b)
+    let (big, small) = if abs(a) >= abs(b) { (a, b) } else { (b, a) };
+    div(small, C64::new(1.0, 0.0) + div(small, big))
 }
 
 #[inline]
@@ -404,6 +438,26 @@ mod tests {
         assert!(r.re.is_infinite() || r.im.is_infinite());
         let r = par(c(10.0, 0.0), c(10.0, 0.0));
         assert_eq!(r, c(5.0, 0.0));
+    }
+
+    // Found by the property test `parallel_over_the_whole_range`: the
+    // product a·b overflowed (giving NaN) or underflowed (giving 0).
+    // Expected values: a·b/(a+b) worked by hand.
+    #[test]
+    fn parallel_of_huge_and_tiny_values() {
+        let close = |x: C64, y: C64| (x - y).norm() <= 1e-15 * y.norm();
+        assert!(close(par(c(1e200, 0.0), c(1e200, 0.0)), c(5e199, 0.0)));
+        assert!(close(par(c(1e-200, 0.0), c(1e-200, 0.0)), c(5e-201, 0.0)));
+        // |b| ≪ |a|: the result is b to within |b/a|
+        let r = par(c(2.87e-109, 0.0), c(7.09e-142, 0.0));
+        assert!(close(r, c(7.09e-142, 0.0)));
+        let r = par(c(1e300, 0.0), c(1.0, 1.0));
+        assert!(close(r, c(1.0, 1.0)));
+        // j·1e200 || j·1e200 = j·5e199
+        assert!(close(par(c(0.0, 1e200), c(0.0, 1e200)), c(0.0, 5e199)));
+        // commutative with two opens
+        let (x, y) = (c(f64::INFINITY, 0.0), c(0.0, f64::INFINITY));
+        assert_eq!(par(x, y), par(y, x));
     }
 
     #[test]

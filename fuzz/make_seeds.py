@@ -1,0 +1,89 @@
+#!/usr/bin/env python3
+"""Builds the committed seed corpus for the fuzz targets from sheets the
+repository already has: the demo sheets, the sheet examples in the docs and
+README, and the sheet text in the Rust tests. Run from the repository root:
+
+    python3 fuzz/make_seeds.py
+
+It rewrites fuzz/seeds/sheets/ (for the parse and eval targets) and
+fuzz/seeds/units/ (for the units target). File names are content hashes,
+so re-running adds new seeds and never duplicates.
+"""
+import glob
+import hashlib
+import os
+import re
+import shutil
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+OUT = os.path.join(ROOT, "fuzz", "seeds")
+
+
+def put(kind, data):
+    if isinstance(data, str):
+        data = data.encode("utf-8")
+    if not data.strip() or len(data) > 4096:
+        return
+    name = hashlib.sha1(data).hexdigest()[:16]
+    with open(os.path.join(OUT, kind, name), "wb") as f:
+        f.write(data)
+
+
+RUST_STR = re.compile(r'"((?:[^"\\]|\\.)*)"', re.S)
+
+
+def unescape(s):
+    out, i = [], 0
+    while i < len(s):
+        c = s[i]
+        if c == "\\" and i + 1 < len(s):
+            n = s[i + 1]
+            if n == "\n":  # line continuation: skip the newline and indentation
+                i += 2
+                while i < len(s) and s[i] in " \t":
+                    i += 1
+                continue
+            out.append({"n": "\n", "t": "\t", "\\": "\\", '"': '"', "0": "\0"}.get(n, n))
+            i += 2
+        else:
+            out.append(c)
+            i += 1
+    return "".join(out)
+
+
+def main():
+    for kind in ("sheets", "units"):
+        shutil.rmtree(os.path.join(OUT, kind), ignore_errors=True)
+        os.makedirs(os.path.join(OUT, kind))
+    for p in sorted(glob.glob(os.path.join(ROOT, "sheets-demo", "*.ohm"))):
+        with open(p, "rb") as f:
+            put("sheets", f.read())
+    for p in [os.path.join(ROOT, "README.md")] + sorted(glob.glob(os.path.join(ROOT, "docs", "*.md"))):
+        with open(p, encoding="utf-8") as f:
+            text = f.read()
+        for block in re.findall(r"```(?:ohm)?\n(.*?)```", text, re.S):
+            if "=" in block and not block.lstrip().startswith(("$", "cargo", "error")):
+                put("sheets", block)
+    for p in sorted(glob.glob(os.path.join(ROOT, "tests", "**", "*.rs"), recursive=True)) + sorted(
+        glob.glob(os.path.join(ROOT, "src", "**", "*.rs"), recursive=True)
+    ):
+        with open(p, encoding="utf-8") as f:
+            text = f.read()
+        for m in RUST_STR.finditer(text):
+            s = unescape(m.group(1))
+            if re.search(r"^\s*[A-Za-z_]\w*\s*=", s, re.M) or s.lstrip().startswith(("check ", "@")):
+                put("sheets", s if s.endswith("\n") else s + "\n")
+    # Unit expressions: every symbol with a few prefixes and compounds.
+    syms = []
+    table = open(os.path.join(ROOT, "src", "units", "table.rs"), encoding="utf-8").read()
+    for m in re.finditer(r"symbols:\s*&\[([^\]]*)\]", table):
+        syms += re.findall(r'"([^"]*)"', m.group(1))
+    for s in syms:
+        put("units", s)
+    for s in ["kV", "µF", "uF", "Ω/km", "rad/s", "mm^2", "V*A", "kWh", "W/m/s", "kg·m^2", "s^-1",
+              "MVA", "kvar", "°", "pu", "%", "m", "metre", "A^9", "Ω^-9/km"]:
+        put("units", s)
+
+
+if __name__ == "__main__":
+    main()
