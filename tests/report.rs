@@ -35,6 +35,7 @@ S = V * conj(I)    # complex power
 check I ~= 23 A ∠ -36.87° +- 0.01%    # hand calculation 230(8 - j6)/100
 check abs(S) ~= 5290 VA +- 0.01%     # V²/|Z|
 check re(S) ~= 4000 W +- 1%          # deliberately wrong: I²R is 4232 W
+@sweep \"Branch current against supply voltage\" V = 200 V .. 260 V, 13 points : I
 ";
 
 /// A temporary folder holding the given files.
@@ -117,9 +118,15 @@ fn report_exit_code_and_atomic_output_file() {
     let html = std::fs::read_to_string(&out).unwrap();
     assert!(html.starts_with("<!DOCTYPE html>"));
     // Self-contained: nothing is fetched.
-    for bad in ["http://", "https://", "<script", "<link", "src=\""] {
+    // (The SVG namespace `xmlns="http://www.w3.org/2000/svg"` names, it
+    // does not fetch.)
+    for bad in [
+        "<script", "<link", "src=", "href=", "url(", "@import", "<iframe", "<object",
+    ] {
         assert!(!html.contains(bad), "the HTML refers outside itself: {bad}");
     }
+    assert!(html
+        .contains("<figure class=\"plot\" id=\"plot-1\">\n<h3>4.1 Branch current against supply voltage</h3>\n<svg"));
     assert!(html.contains("@page"), "print CSS");
     // No temporary file is left beside it.
     let names: Vec<String> = std::fs::read_dir(d.path())
@@ -281,19 +288,58 @@ fn notes_must_name_a_cell() {
 #[test]
 fn committed_demo_reports_are_current() {
     let sheet = crate::common::repo("sheets-demo/pump-feeder-p3.ohm");
+    let d = tempfile::tempdir().unwrap();
     for ext in ["md", "html"] {
-        let out = ohmsheet()
-            .args(["report", sheet.to_str().unwrap(), "--format", ext])
-            .output()
-            .unwrap();
-        assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
-        let committed = std::fs::read_to_string(crate::common::repo(&format!(
-            "sheets-demo/reports/pump-feeder-p3.{ext}"
-        )))
-        .unwrap();
-        assert!(
-            String::from_utf8_lossy(&out.stdout) == committed,
-            "sheets-demo/reports/pump-feeder-p3.{ext} is stale: regenerate it (DEVELOPERS.md)"
-        );
+        let out = d.path().join(format!("pump-feeder-p3.{ext}"));
+        ohmsheet()
+            .args(["report", sheet.to_str().unwrap(), "-o", out.to_str().unwrap()])
+            .assert()
+            .code(0);
     }
+    let mut n = 0;
+    for e in std::fs::read_dir(d.path()).unwrap() {
+        let name = e.unwrap().file_name().to_string_lossy().into_owned();
+        let made = std::fs::read(d.path().join(&name)).unwrap();
+        let committed = std::fs::read(crate::common::repo(&format!("sheets-demo/reports/{name}")))
+            .unwrap_or_else(|_| panic!("sheets-demo/reports/{name} is missing: regenerate (DEVELOPERS.md)"));
+        assert!(
+            made == committed,
+            "sheets-demo/reports/{name} is stale: regenerate it (DEVELOPERS.md)"
+        );
+        n += 1;
+    }
+    assert_eq!(n, 4, "the md and html reports and the two plots");
+}
+
+/// Declared sweeps become plots: inline SVG in HTML; SVG files beside a
+/// Markdown file, or `data:` images when the Markdown goes to stdout.
+#[test]
+fn declared_sweeps_are_plotted() {
+    let d = folder(&[("rl.ohm", SHEET), ("lib/parts.ohm", LIB)]);
+    // A folder that does not exist: an error, nothing written, no panic.
+    ohmsheet()
+        .current_dir(d.path())
+        .args(["report", "rl.ohm", "-o", "out/rl.md"])
+        .assert()
+        .code(2);
+    std::fs::create_dir(d.path().join("out")).unwrap();
+    ohmsheet()
+        .current_dir(d.path())
+        .args(["report", "rl.ohm", "-o", "out/rl.md"])
+        .assert()
+        .code(1);
+    let md = std::fs::read_to_string(d.path().join("out/rl.md")).unwrap();
+    assert!(md.contains("### 4.1 Branch current against supply voltage"), "{md}");
+    assert!(md.contains("V from 200 V to 260 V, 13 points; shown: I."), "{md}");
+    assert!(
+        md.contains("![Branch current against supply voltage](rl.plot-1.svg)"),
+        "{md}"
+    );
+    let svg = std::fs::read_to_string(d.path().join("out/rl.plot-1.svg")).unwrap();
+    assert!(svg.starts_with("<svg") && svg.contains("viewBox"), "{svg}");
+    let md = report_text(d.path(), "rl.ohm", "md");
+    assert!(
+        md.contains("](data:image/svg+xml;utf8,%3Csvg"),
+        "no data image in stdout Markdown"
+    );
 }

@@ -100,6 +100,12 @@ fn html_report_in_a_real_browser() {
     assert!(step.contains("18.4 - j13.8 A"), "{step}");
     assert!(step.contains("23 ∠ -36.87° A"), "{step}");
     assert!(dom.contains("id=\"caution\""), "caution");
+    // The declared sweep, drawn inline.
+    let fig = dom
+        .split("<figure class=\"plot\" id=\"plot-1\">")
+        .nth(1)
+        .expect("plot figure");
+    assert!(fig.contains("<svg"), "no SVG in the plot figure");
     assert!(dom.contains("1 of 3 checks FAIL."), "summary");
 
     // A screenshot, kept where a developer can look at it.

@@ -82,8 +82,31 @@ pub fn report(a: &ReportArgs) -> i32 {
         digits: a.digits as usize,
     };
     let r = report::build(&sheet, &engine, &a.set, style);
+    // Markdown written to a file takes its plots from SVG files beside it,
+    // which Markdown viewers show (few show `data:` images).
+    // `names[k]` is the file of plot `k`, or empty when it has no picture.
+    let mut names: Vec<String> = Vec::new();
+    if let (ReportFormat::Md, Some(path)) = (format, &a.output) {
+        let stem = path
+            .file_stem()
+            .map_or_else(|| "report".to_string(), |s| s.to_string_lossy().into_owned());
+        let dir = path.parent().map(PathBuf::from).unwrap_or_default();
+        for (k, pl) in r.plots.iter().enumerate() {
+            let Some(svg) = &pl.svg else {
+                names.push(String::new());
+                continue;
+            };
+            let name = format!("{stem}.plot-{}.svg", k + 1);
+            let p = dir.join(&name);
+            if let Err(e) = crate::fsutil::write_atomic(&p, svg.as_bytes()) {
+                eprintln!("error: cannot write `{}`: {e}", p.display());
+                return EXIT_ERROR;
+            }
+            names.push(name);
+        }
+    }
     let text = match format {
-        ReportFormat::Md => report::markdown(&r),
+        ReportFormat::Md => report::markdown_with_plot_files(&r, &names),
         ReportFormat::Html => report::html(&r),
         ReportFormat::Json => report::json(&r) + "\n",
     };

@@ -148,11 +148,16 @@ pub struct CheckLine {
     pub notes: Vec<String>,
 }
 
-/// A plot of a declared sweep, as a self-contained SVG.
+/// A plot of a sweep the sheet declares (`@sweep`), as a self-contained
+/// SVG picture.
 #[derive(Clone, Debug, Serialize)]
 pub struct Plot {
     pub title: String,
-    pub svg: String,
+    /// What was varied and over which range, and what is shown.
+    pub caption: String,
+    /// The picture; `None` when it could not be drawn (see `problem`).
+    pub svg: Option<String>,
+    pub problem: Option<String>,
 }
 
 const META_LABELS: &[(&str, &str)] = &[
@@ -378,10 +383,57 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
         inputs,
         steps,
         checks,
-        plots: Vec::new(),
+        plots: plots(m, style),
         caution: CAUTION,
         generator: format!("ohmsheet {}", env!("CARGO_PKG_VERSION")),
     }
+}
+
+/// Run and draw every sweep the sheet declares.
+fn plots(m: &Model, style: Style) -> Vec<Plot> {
+    crate::sweep::declared::run_declared(m)
+        .into_iter()
+        .enumerate()
+        .map(|(k, r)| match r {
+            Ok(r) => {
+                let title = r.title.clone().unwrap_or_else(|| format!("Sweep {}", k + 1));
+                let mut caption = Vec::new();
+                for a in &r.axes {
+                    let show = |x: f64| format_value(C64::new(x, 0.0), a.quantity, a.display.as_ref(), style).rect;
+                    caption.push(format!(
+                        "{} from {} to {}, {} points{}",
+                        a.name,
+                        show(a.start),
+                        show(a.stop),
+                        a.count,
+                        if a.log { ", spaced logarithmically" } else { "" }
+                    ));
+                }
+                let shown: Vec<&str> = r.series.iter().map(|s| s.name.as_str()).collect();
+                let caption = format!("{}; shown: {}.", caption.join("; "), shown.join(", "));
+                match crate::plot::svg(&r, &crate::plot::PlotOptions::default()) {
+                    Ok(svg) => Plot {
+                        title,
+                        caption,
+                        svg: Some(svg),
+                        problem: None,
+                    },
+                    Err(e) => Plot {
+                        title,
+                        caption,
+                        svg: None,
+                        problem: Some(format!("the plot could not be drawn: {e}")),
+                    },
+                }
+            }
+            Err(d) => Plot {
+                title: format!("Sweep {}", k + 1),
+                caption: String::new(),
+                svg: None,
+                problem: Some(format!("the sweep could not be run: {}", d.message)),
+            },
+        })
+        .collect()
 }
 
 /// The unit to show a check's values in, if the sheet chose one.
@@ -600,8 +652,16 @@ fn md_code(s: &str) -> String {
 }
 
 /// The report as Markdown (GitHub-flavoured tables; everything else is
-/// plain CommonMark).
+/// plain CommonMark). Plots are embedded as `data:` images; see
+/// `markdown_with_plot_files` for a report written beside its pictures.
 pub fn markdown(r: &Report) -> String {
+    markdown_with_plot_files(r, &[])
+}
+
+/// The report as Markdown, plot `k` shown from the file `plot_files[k]`
+/// (a path relative to the Markdown file) where one is given — the form
+/// most Markdown viewers show — else as a `data:` image.
+pub fn markdown_with_plot_files(r: &Report, plot_files: &[String]) -> String {
     let mut o = String::new();
     let p = |o: &mut String, s: &str| {
         o.push_str(s);
@@ -780,7 +840,16 @@ pub fn markdown(r: &Report) -> String {
             p(&mut o, "");
             p(&mut o, &format!("### 4.{} {}", k + 1, md_text(&pl.title)));
             p(&mut o, "");
-            p(&mut o, &format!("![{}]({})", md_text(&pl.title), svg_data_uri(&pl.svg)));
+            p(&mut o, &md_text(&pl.caption));
+            p(&mut o, "");
+            match (&pl.svg, plot_files.get(k).filter(|f| !f.is_empty())) {
+                (Some(_), Some(f)) => p(&mut o, &format!("![{}]({})", md_text(&pl.title), f.replace(' ', "%20"))),
+                (Some(svg), None) => p(&mut o, &format!("![{}]({})", md_text(&pl.title), svg_data_uri(svg))),
+                (None, _) => p(
+                    &mut o,
+                    &format!("*{}*", md_text(pl.problem.as_deref().unwrap_or("no plot"))),
+                ),
+            }
         }
     }
 
@@ -944,9 +1013,11 @@ table.eq tr.result td.rhs { font-weight: 700; }
 .pass { color: var(--pass); font-weight: 700; }
 .fail { color: var(--fail); font-weight: 700; }
 tr.failed td { background: #fde8eb; }
+#checks td:nth-child(2) { width: 36%; }
+#checks code { white-space: pre-wrap; }
 .summary { font-weight: 700; }
 .caution { border: 1.5pt solid var(--ink); padding: 6pt 8pt; margin-top: 1.2rem; break-inside: avoid; }
-.plot svg { max-width: 100%; height: auto; }
+.plot svg { max-width: 100%; height: auto; display: block; }
 figure { margin: .4rem 0; break-inside: avoid; }
 footer { margin-top: 1rem; }
 @page { margin: 14mm 12mm 16mm; }
@@ -1149,11 +1220,16 @@ pub fn html(r: &Report) -> String {
     if !r.plots.is_empty() {
         o.push_str("<section id=\"plots\">\n<h2>4. Plots</h2>\n");
         for (k, pl) in r.plots.iter().enumerate() {
+            let body = match &pl.svg {
+                Some(svg) => svg.clone(),
+                None => format!("<p><em>{}</em></p>", esc(pl.problem.as_deref().unwrap_or("no plot"))),
+            };
             o.push_str(&format!(
-                "<figure class=\"plot\">\n<h3>4.{} {}</h3>\n{}\n</figure>\n",
+                "<figure class=\"plot\" id=\"plot-{}\">\n<h3>4.{} {}</h3>\n{body}\n<figcaption class=\"small\">{}</figcaption>\n</figure>\n",
+                k + 1,
                 k + 1,
                 esc(&pl.title),
-                pl.svg
+                esc(&pl.caption)
             ));
         }
         o.push_str("</section>\n");
