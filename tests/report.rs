@@ -343,3 +343,19 @@ fn declared_sweeps_are_plotted() {
         "no data image in stdout Markdown"
     );
 }
+
+/// Any number of digits asked for is honoured, and the checks table never
+/// shows fewer than asked.
+#[test]
+fn many_digits_are_fine() {
+    let d = folder(&[("rl.ohm", SHEET), ("lib/parts.ohm", LIB)]);
+    let out = ohmsheet()
+        .current_dir(d.path())
+        .args(["report", "rl.ohm", "--format", "md", "--digits", "15"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1), "{}", String::from_utf8_lossy(&out.stderr));
+    let md = String::from_utf8(out.stdout).unwrap();
+    // By hand 230 (8 − j6) / 100 = 18.4 − j13.8, which 15 digits show as is.
+    assert!(md.contains("  = 18.4 - j13.8 A\n"), "{md}");
+}

@@ -120,6 +120,8 @@ pub fn report(a: &ReportArgs) -> i32 {
             }
             let verdict = if r.checks.is_empty() {
                 "no checks".to_string()
+            } else if failed == 0 && r.checks.len() == 1 {
+                "the check passes".to_string()
             } else if failed == 0 {
                 format!("all {} checks pass", r.checks.len())
             } else {

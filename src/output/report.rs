@@ -334,7 +334,7 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
         // Enough digits that a difference near the tolerance shows.
         let digits = if r.tol > 0.0 && r.tol.is_finite() && crate::engine::ops::abs(r.rhs) > 0.0 {
             let need = (crate::engine::ops::abs(r.rhs) / r.tol).log10().ceil() as i64 + 2;
-            need.clamp(style.digits as i64, 10) as usize
+            need.min(10).max(style.digits as i64) as usize
         } else {
             style.digits
         };
@@ -623,7 +623,7 @@ fn md_text(s: &str) -> String {
     for ch in s.chars() {
         if matches!(
             ch,
-            '\\' | '`' | '*' | '_' | '[' | ']' | '<' | '>' | '|' | '#' | '~' | '{' | '}' | '!' | '$'
+            '\\' | '`' | '*' | '_' | '[' | ']' | '<' | '>' | '|' | '#' | '~' | '{' | '}' | '!' | '$' | '&'
         ) {
             out.push('\\');
         }
