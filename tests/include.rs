@@ -27,6 +27,27 @@ fn included_cells_are_used_and_say_where_they_came_from() {
 }
 
 #[test]
+fn report_marks_library_values_the_sheet_does_not_use() {
+    let d = folder(&[
+        ("s.ohm", "@include \"lib/c.ohm\"\nI = 10 A\nV = I * r_a\n"),
+        ("lib/c.ohm", "r_a = 2 Ω\nr_b = 3 Ω\n"),
+    ]);
+    let out = ohmsheet()
+        .current_dir(d.path())
+        .args(["report", "s.ohm"])
+        .output()
+        .unwrap();
+    let md = String::from_utf8(out.stdout).unwrap();
+    assert!(
+        md.contains("| `r_b` | 3 Ω |  | lib/c.ohm, line 2<br>(not used by this calculation) |"),
+        "{md}"
+    );
+    assert!(md.contains("| `r_a` | 2 Ω |  | lib/c.ohm, line 1 |"), "{md}");
+    // 10 A × 2 Ω = 20 V (Ohm's law)
+    assert!(md.contains("V = I * r_a\n  = 10 A × 2 Ω\n  = 20 V\n"), "{md}");
+}
+
+#[test]
 fn a_library_included_twice_is_merged_once() {
     let d = folder(&[
         ("top.ohm", "@include \"a.ohm\"\n@include \"b.ohm\"\nx = p + q\n"),

@@ -90,6 +90,8 @@ fn markdown_sets_out_each_step_like_a_hand_calculation() {
     let step = "I = V / Z\n  = 230 V / (8 + j6) Ω\n  = 18.4 - j13.8 A\n  = 23 ∠ -36.87° A\n";
     assert!(md.contains(step), "missing\n{step}in\n{md}");
     assert!(md.contains("### 2.1 `I` — branch current"), "{md}");
+    // Every input here is used; a library value that is not says so.
+    assert!(!md.contains("not used by this calculation"), "{md}");
     assert!(md.contains("Balanced supply assumed."), "{md}");
     let step = "S = V * conj(I)\n  = 230 V × conj((18.4 - j13.8) A)\n  = 4.232 + j3.174 kVA\n  = 5.29 ∠ 36.87° kVA\n";
     assert!(md.contains(step), "missing\n{step}in\n{md}");

@@ -290,6 +290,9 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
             if let Some(cm) = c.comment.as_ref().filter(|s| !s.is_empty()) {
                 notes.insert(0, cm.clone());
             }
+            if m.dependents[id as usize].is_empty() {
+                notes.push("(not used by this calculation)".to_string());
+            }
             inputs.push(InputLine {
                 name: c.name.clone(),
                 value: results.into_iter().next().expect("one result").value,
