@@ -85,7 +85,7 @@ fn main() {
         let r = s.handle("/back");
         assert!(!r.refused, "{}", r.text);
     });
-    row("undo (a new cell is removed: full compile)", d);
+    row("undo (the new cell taken out again)", d);
     s.discard_journal();
 
     let mut s = open(&path, None);

@@ -307,3 +307,63 @@ fn piped_lines_work_and_a_typo_is_not_a_new_sheet() {
         .code(2)
         .stderr(predicates::str::contains("neither a command nor an existing sheet"));
 }
+
+/// docs/session.md walks a newcomer through a Thevenin check. Every line
+/// typed there is typed here, every line of output shown there must come
+/// out here, in order, and the saved sheet must give the currents that
+/// nodal analysis gives (tests/reference/session_thevenin.py, Python cmath).
+#[test]
+fn the_thevenin_walkthrough_in_the_docs_is_true() {
+    let doc = std::fs::read_to_string(crate::common::repo("docs/session.md")).unwrap();
+    let section = doc
+        .split("## A Thevenin check, step by step")
+        .nth(1)
+        .and_then(|s| s.split("\n## ").next())
+        .expect("the walkthrough section");
+    let mut typed = Vec::new();
+    let mut shown = Vec::new();
+    for block in section.split("```text").skip(1) {
+        let block = block.split("```").next().unwrap();
+        for l in block.lines() {
+            if l.starts_with("$ ") || l.trim().is_empty() {
+                continue;
+            }
+            match l.split_once(" ▸ ") {
+                Some((prompt, input)) if prompt.starts_with("thevenin.ohm") => typed.push(input.to_string()),
+                _ => shown.push(l.trim_end().to_string()),
+            }
+        }
+    }
+    assert!(typed.len() > 15 && shown.len() > 30);
+
+    let env = Env::new();
+    let out = crate::common::ohmsheet()
+        .current_dir(env.dir.path())
+        .env("HOME", env.dir.path())
+        .env("XDG_DATA_HOME", env.dir.path().join("data"))
+        .arg("thevenin.ohm")
+        .write_stdin(typed.join("\n") + "\n")
+        .assert()
+        .code(0)
+        .get_output()
+        .stdout
+        .clone();
+    let out = String::from_utf8(out).unwrap();
+    let actual: Vec<&str> = out.lines().map(str::trim_end).collect();
+    let mut at = 0;
+    for want in &shown {
+        match actual[at..].iter().position(|a| a == want) {
+            Some(k) => at += k + 1,
+            None => panic!("docs/session.md shows {want:?}, but the session printed:\n{out}"),
+        }
+    }
+
+    // The saved sheet, against nodal analysis with ZL = 6 + j2 Ω.
+    let text = std::fs::read_to_string(env.dir.path().join("thevenin.ohm")).unwrap();
+    let e = crate::common::engine(&text);
+    let want = num_complex::Complex64::new(23.153526970954356, -16.11144042679312);
+    crate::assert_close!(crate::common::value(&e, "IL"), want, 1e-12);
+    crate::assert_close!(crate::common::value(&e, "ILth"), want, 1e-12);
+    let vth = num_complex::Complex64::new(227.70934256055364, -12.955017301038051);
+    crate::assert_close!(crate::common::value(&e, "Vth"), vth, 1e-12);
+}

@@ -416,6 +416,35 @@ impl Engine {
         })
     }
 
+    /// Remove cell `id` when it is the last cell, computed last, and no
+    /// other cell uses it (the undo of `add_cell`). Its slots stay
+    /// allocated and unused.
+    pub fn remove_last(&mut self, id: CellId) -> Result<(), EditError> {
+        let m = &mut self.model;
+        let i = id as usize;
+        let last = m.cells.len().checked_sub(1) == Some(i)
+            && m.order.last() == Some(&id)
+            && m.cells[i].role == Role::Def
+            && m.dependents[i].is_empty()
+            && m.cells[i].code.end as usize == m.program.code.len();
+        if !last || !self.error_free() {
+            return Err(EditError::Recompile("not the last cell, or still in use"));
+        }
+        let m = &mut self.model;
+        let cell = m.cells.pop().expect("checked");
+        m.program.code.truncate(cell.code.start as usize);
+        for &d in &cell.deps {
+            m.dependents[d as usize].retain(|&x| x != id);
+        }
+        m.by_name.remove(&cell.name);
+        m.order.pop();
+        m.rank.pop();
+        m.dependents.pop();
+        self.queued.pop();
+        self.last_recomputed.clear();
+        Ok(())
+    }
+
     /// Evaluate an expression against the current values without storing
     /// anything: its shape and its value (one per field for a record).
     pub fn evaluate(&mut self, e: &Expr) -> Result<(Shape, Vec<C64>), Diagnostic> {
@@ -686,6 +715,27 @@ mod tests {
             &e,
             "R1 = 10 Ω\nR2 = 20 Ω\nV = 50 V\nRt = R1 + R2\nI = V / Rt\nP = V * I\nother = R2 * 2\nQ = P / 4 + 2 W\nT = Q * 3",
         );
+    }
+
+    #[test]
+    fn the_last_cell_added_can_be_taken_out_again() {
+        let mut e = engine(DIVIDER);
+        let code = e.model.program.code.clone();
+        let (stmt, d) = typed(&mut e, "Q = P / 2 + 1 W");
+        let q = e.add_cell(&stmt, &d).unwrap().cell;
+        let p = e.model.id("P").unwrap();
+        assert!(
+            matches!(e.remove_last(p), Err(EditError::Recompile(_))),
+            "P is used by Q"
+        );
+        e.remove_last(q).unwrap();
+        assert_eq!(e.model.program.code, code);
+        assert!(e.model.id("Q").is_none());
+        assert!(e.model.dependents[p as usize].is_empty());
+        assert_same_as_compiled(&e, DIVIDER);
+        let v = e.model.id("V").unwrap();
+        e.set_input(v, C64::new(50.0, 0.0));
+        assert_eq!(names(&e, &e.last_recomputed.clone()), ["I", "P"]);
     }
 
     #[test]

@@ -86,6 +86,9 @@ pub fn cell_label(m: &Model, id: CellId) -> String {
 
 /// The first line of a change report: the edited cell and its value.
 pub fn headline(s: &Shown) -> String {
+    if s.name.starts_with("check ") {
+        return format!("{}: {}\n", s.name, s.new);
+    }
     match &s.old {
         Some(old) => format!("{} = {}   (was {old})\n", s.name, s.new),
         None => format!("{} = {}\n", s.name, s.new),

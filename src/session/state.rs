@@ -352,6 +352,7 @@ impl Session {
         };
         let target = match &stmt.kind {
             StmtKind::Def(d) => Some(d.name.name.clone()),
+            StmtKind::Check(_) => Some(self.engine.model.sources.slice(stmt.span).trim().to_string()),
             _ => None,
         };
         match self.apply(edit, false) {
@@ -402,13 +403,9 @@ impl Session {
         match (target, first) {
             (Some(_), Some(i)) => out.push_str(&show::headline(&shown[i])),
             (Some(name), None) => {
-                let v = self
-                    .engine
-                    .model
-                    .id(name)
-                    .map(|id| self.cell_value(id))
-                    .unwrap_or_default();
-                out.push_str(&format!("{name} = {v}  (unchanged)\n"));
+                if let Some(id) = self.engine.model.id(name) {
+                    out.push_str(&format!("{name} = {}  (unchanged)\n", self.cell_value(id)));
+                }
             }
             (None, _) => {
                 if let StmtKind::Directive(d) = &stmt.kind {
@@ -452,6 +449,14 @@ impl Session {
                                 Err(_) => {}
                             }
                         }
+                    }
+                }
+            }
+            Edit::Delete(idx) if *idx + 1 == self.doc.lines.len() => {
+                if let Some(id) = self.doc.lines[*idx].defines().and_then(|n| self.engine.model.id(n)) {
+                    if self.engine.remove_last(id).is_ok() {
+                        let line = self.doc.lines.remove(*idx);
+                        return Ok((Edit::Insert(*idx, line), Vec::new()));
                     }
                 }
             }
