@@ -75,11 +75,12 @@ ENTRIES = [
      "C = 1 mF\nXc = 1 / (2*pi*60 Hz * C)\n@sweep C = 1 µF .. 2 mF, 20000000 points : Xc\n", None),
     ("search-failed", "A search found no answer: the target is never reached in the range, is reached "
      "at several places, or the curve only jumps across it. The message says where it came closest or "
-     "where the several answers lie. `ohmsheet solve` exits 1.", None,
-     "`ohmsheet solve plant.ohm --vary C=0..1mF --target 'pf = 0.95'` where pf stays below 0.95 up to 1 mF."),
-    ("bad-search", "A search that cannot be set up: a target without `=`, an expression that does not "
-     "depend on the varied input, or a target value that changes with it.", None,
-     "`ohmsheet solve plant.ohm --vary C=0..3mF --target 'pf 0.95'`."),
+     "where the several answers lie. (`ohmsheet solve` exits 1 for this.)",
+     "P = 400 kW\nQ = 320 kvar\nV = 480 V\nC = 1 mF\nf = 60 Hz\nQc = 2*pi*f*C*V^2\npf = P / abs(P + j*(Q - Qc))\n"
+     "Cfix = C in 0 .. 1 mF where pf = 0.95\n", None),
+    ("bad-search", "A search that cannot be set up: an expression that does not depend on the varied "
+     "input, a range or target value that changes with it, or (`ohmsheet solve`) a target without `=`.",
+     "C = 1 mF\nK = 5\nc = C in 0 .. 2 mF where K = 3\n", None),
     ("io", "The file cannot be read or written.", None, "`ohmsheet run missing.ohm`."),
 ]
 

@@ -20,6 +20,7 @@ mod readme;
 mod reference;
 mod report;
 mod report_browser;
+mod search_sheet;
 mod session_pty;
 mod sweep;
 mod watch;

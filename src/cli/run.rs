@@ -47,13 +47,16 @@ pub(super) fn report_nans(engine: &Engine) -> bool {
         } else {
             format!("`{}`", c.name)
         };
-        let d = Diagnostic::error(
-            ErrorCode::NotANumber,
-            c.stmt_span,
-            format!("{what} evaluated to NaN (not a number)"),
-        )
-        .with_label("undefined result produced here")
-        .with_hint("look for 0/0, ∞ − ∞, 0·∞ or an input set to NaN; cells using this one are NaN too");
+        // A search that found no answer says why.
+        let d = crate::sweep::search_failure(engine, id).unwrap_or_else(|| {
+            Diagnostic::error(
+                ErrorCode::NotANumber,
+                c.stmt_span,
+                format!("{what} evaluated to NaN (not a number)"),
+            )
+            .with_label("undefined result produced here")
+            .with_hint("look for 0/0, ∞ − ∞, 0·∞ or an input set to NaN; cells using this one are NaN too")
+        });
         d.eprint(&m.sources);
     }
     !origins.is_empty()

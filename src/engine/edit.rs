@@ -25,7 +25,7 @@ use super::ops::{Instr, Op};
 use super::program::{Emitter, Operand, SlotSpace, TEMP_FLAG};
 use crate::diag::Diagnostic;
 use crate::funcs::Shape;
-use crate::syntax::ast::{Definition, Expr, Stmt};
+use crate::syntax::ast::{Definition, Expr, ExprKind, Stmt};
 
 /// Why an edit was not made in place.
 #[derive(Clone, Debug, PartialEq)]
@@ -110,6 +110,15 @@ impl Engine {
         self.model.order.len() == self.model.cells.len()
     }
 
+    /// A search copies the code of the cells it runs through, so a sheet
+    /// with searches, or a formula that is one, is compiled whole.
+    fn no_searches(&self, e: &Expr) -> Result<(), EditError> {
+        if !self.model.program.searches.is_empty() || matches!(e.kind, ExprKind::Search(_)) {
+            return Err(EditError::Recompile("searches are compiled with the whole sheet"));
+        }
+        Ok(())
+    }
+
     /// Lower with the model's lowerer into a scratch slot space numbered
     /// from `base`.
     fn lower_with(
@@ -121,11 +130,16 @@ impl Engine {
         let call_len = m.program.call_args.len();
         let mut space = SlotSpace::with_base(base);
         let mut code = Vec::new();
+        // Searches are compiled with the whole sheet; callers refuse them
+        // before lowering (see `no_searches`).
+        let searches = std::cell::RefCell::new(Vec::new());
         let lw = Lowerer {
             cells: &m.cells,
             by_name: &m.by_name,
             sources: &m.sources,
             ctx: m.ctx,
+            current: CellId::MAX,
+            searches: &searches,
         };
         let mut em = Emitter {
             code: &mut code,
@@ -246,6 +260,7 @@ impl Engine {
         if !self.error_free() {
             return Err(EditError::Recompile("the model has cells with errors"));
         }
+        self.no_searches(&def.expr)?;
         let i = id as usize;
         let m = &self.model;
         if m.cells[i].role != Role::Def || m.cells[i].name != def.name.name {
@@ -352,6 +367,7 @@ impl Engine {
         if !self.error_free() {
             return Err(EditError::Recompile("the model has cells with errors"));
         }
+        self.no_searches(&def.expr)?;
         let name = &def.name.name;
         if self.model.by_name.contains_key(name) || RESERVED.contains(&name.as_str()) {
             return Err(EditError::Recompile("the name is taken or reserved"));
@@ -448,6 +464,14 @@ impl Engine {
     /// Evaluate an expression against the current values without storing
     /// anything: its shape and its value (one per field for a record).
     pub fn evaluate(&mut self, e: &Expr) -> Result<(Shape, Vec<C64>), Diagnostic> {
+        if matches!(e.kind, ExprKind::Search(_)) {
+            return Err(Diagnostic::error(
+                crate::diag::ErrorCode::BadSearch,
+                e.span,
+                "a search is the formula of a cell",
+            )
+            .with_hint("give it a name: `Cfix = C in 0 .. 3 mF where pf = 0.95`"));
+        }
         let base = self.slots.len();
         let low = self.lower_with(base, |lw, em| lw.expr(em, e))?;
         let tbase = low.space.init.len() as u32;

@@ -22,6 +22,8 @@ use crate::syntax::ast::*;
 use crate::units::kind::{kind_of_product, kind_of_quotient, kind_of_sum};
 use crate::units::{Dim, Kind, Quantity, Unit};
 
+mod lower_search;
+
 pub type CellId = u32;
 
 /// Names that cannot be cells.
@@ -361,7 +363,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     let mut code: Vec<Instr> = Vec::new();
     let mut call_args: Vec<u32> = Vec::new();
     let mut max_temps = 0u32;
-    let searches: Vec<super::search::Search> = Vec::new();
+    let pending_searches = std::cell::RefCell::new(Vec::new());
     let mut order = Vec::with_capacity(n);
     for &id in &topo {
         let i = id as usize;
@@ -385,6 +387,8 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
             by_name: &by_name,
             sources: &sheet.sources,
             ctx,
+            current: id,
+            searches: &pending_searches,
         };
         let result = match (&pending[i].expr, &pending[i].check) {
             (Some(e), _) => lw.lower_def(&mut em, e, &cells[i]),
@@ -408,6 +412,11 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                 // A record (several fields) is never an input: one value
                 // cannot be set into it.
                 cell.input = cell.role == Role::Def && cell.deps.is_empty() && cell.width == 1;
+                // A search depends on what it reads, not on the input it
+                // varies (see lower_search).
+                if let Some(p) = pending_searches.borrow().last().filter(|p| p.cell == id) {
+                    cell.deps = p.frontier.clone();
+                }
                 order.push(id);
             }
         }
@@ -437,6 +446,20 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     let mut rank = vec![u32::MAX; n];
     for (r, &id) in order.iter().enumerate() {
         rank[id as usize] = r as u32;
+    }
+
+    // Searches: gather each one's sub-program, and make its cell depend on
+    // what the search reads rather than on the input it varies.
+    let searches = lower_search::finish(&cells, pending_searches.into_inner(), &code, &mut slots, temp_base);
+    if !searches.is_empty() {
+        for d in dependents.iter_mut() {
+            d.clear();
+        }
+        for (i, c) in cells.iter().enumerate() {
+            for &d in &c.deps {
+                dependents[d as usize].push(i as CellId);
+            }
+        }
     }
 
     let mut model = Model {
@@ -770,6 +793,9 @@ pub(super) struct Lowerer<'a> {
     pub(super) by_name: &'a HashMap<String, CellId>,
     pub(super) sources: &'a SourceMap,
     pub(super) ctx: Ctx,
+    /// The cell being lowered, and the searches met so far.
+    pub(super) current: CellId,
+    pub(super) searches: &'a std::cell::RefCell<Vec<lower_search::PendingSearch>>,
 }
 
 type R<T> = Result<T, Diagnostic>;
@@ -982,6 +1008,7 @@ impl Lowerer<'_> {
                 })
             }
             ExprKind::Binary(op, a, b) => self.binary(em, e, *op, a, b),
+            ExprKind::Search(s) => self.search(em, e, s),
         }
     }
 

@@ -572,6 +572,8 @@ impl Substituter<'_> {
                 }
                 None => format!("({})", self.expr(x, Pos::Top)),
             },
+            // A search is shown as written: its inputs take many values.
+            ExprKind::Search(_) => m.sources.slice(e.span).to_string(),
         }
     }
 

@@ -732,6 +732,59 @@ pub fn collect(engine: &Engine, axes: &[Axis], series: &[Series], title: Option<
     }
 }
 
+/// One input of a sweep request.
+#[derive(Clone, Debug)]
+pub struct AxisRequest<'a> {
+    /// `NAME=START..STOP`
+    pub range: &'a str,
+    /// Number of points (`DEFAULT_POINTS` when neither this nor `step`).
+    pub points: Option<usize>,
+    /// Distance between points, with a unit (`25 µF`).
+    pub step: Option<&'a str>,
+    pub log: bool,
+}
+
+/// A whole sweep in one call (for the interactive session and other
+/// library users; the CLI streams large CSV sweeps through `run`).
+#[derive(Clone, Debug)]
+pub struct SweepRequest<'a> {
+    /// One input, or two for a grid.
+    pub vary: Vec<AxisRequest<'a>>,
+    /// Cells, `cell.field`s or expressions.
+    pub show: Vec<&'a str>,
+    pub max_points: usize,
+}
+
+/// Run a sweep over `sheet` and keep every point.
+pub fn sweep(sheet: Sheet, req: &SweepRequest) -> Result<SweepResult, Failure> {
+    let exprs: Vec<(&str, &str)> = req.show.iter().map(|s| ("--show", *s)).collect();
+    let mut study = Study::new(sheet, &exprs)?;
+    if req.vary.is_empty() || req.vary.len() > 2 {
+        return Err(Failure::one(
+            &study.model().sources,
+            Diagnostic::unplaced(ErrorCode::BadRange, "a sweep varies one input, or two for a grid"),
+        ));
+    }
+    let mut axes = Vec::new();
+    for a in &req.vary {
+        axes.push(study.axis("--vary", a.range, a.points, a.step, a.log)?);
+    }
+    let fail = |d: Diagnostic| Failure::one(&study.model().sources, d);
+    if axes.len() == 2 && axes[0].cell == axes[1].cell {
+        return Err(fail(Diagnostic::unplaced(
+            ErrorCode::BadRange,
+            format!("`{}` is varied twice", axes[0].name),
+        )));
+    }
+    check_size(&axes, req.max_points).map_err(fail)?;
+    let mut series = Vec::new();
+    for s in &req.show {
+        series.push(study.series(s).map_err(fail)?);
+    }
+    let title = study.model().meta.get("title").map(str::to_string);
+    Ok(collect(&study.engine, &axes, &series, title))
+}
+
 // ---- solve ----
 
 /// What `solve` looks for.
@@ -939,7 +992,7 @@ pub fn explain(
         } => (
             format!("`{what}` never reaches {} for {range}", target.unwrap_or("the target")),
             format!(
-                "it comes closest at {input} = {} (off by {}); widen the range or check the target, and if the curve only touches the target, maximize or minimize it instead",
+                "it comes closest at {input} = {} (off by {}); widen the range or check the target, and if the curve only touches the target, look for its peak instead (`is largest` in a sheet, --maximize on the command line)",
                 x(closest_x),
                 crate::units::format::fmt_sig(closest_residual, 4)
             ),
@@ -965,4 +1018,69 @@ pub fn explain(
             "the curve may be too rough here; narrow the range".into(),
         ),
     }
+}
+
+/// The search form of a cell's formula, parsed again from its text.
+fn search_ast(m: &Model, id: CellId) -> Option<crate::syntax::ast::Search> {
+    let c = &m.cells[id as usize];
+    let file = crate::diag::FileId(u32::MAX);
+    match parse_line(&format!("x = {}", c.formula), file, 0, 1) {
+        Ok(Some(Stmt {
+            kind: StmtKind::Def(d), ..
+        })) => match d.expr.kind {
+            ExprKind::Search(s) => Some(*s),
+            _ => None,
+        },
+        _ => None,
+    }
+}
+
+/// The outcome of the in-sheet search in cell `id`, if it is one.
+pub fn search_outcome(engine: &Engine, id: CellId) -> Option<search::Outcome> {
+    let prog = &engine.model.program;
+    let k = prog.searches.iter().position(|s| s.cell == id)?;
+    Some(search::outcome(prog, k, engine.slots()))
+}
+
+/// Why the in-sheet search in cell `id` found no answer, as an error at
+/// its line; `None` if the cell is not a search or it found one.
+pub fn search_failure(engine: &Engine, id: CellId) -> Option<Diagnostic> {
+    let m = &engine.model;
+    let prog = &m.program;
+    let k = prog.searches.iter().position(|s| s.cell == id)?;
+    let search::Outcome::Failed(err) = search::outcome(prog, k, engine.slots()) else {
+        return None;
+    };
+    let sr = &prog.searches[k];
+    let ast = search_ast(m, id)?;
+    let c = &m.cells[id as usize];
+    let var = m.cell(&ast.var.name)?;
+    let q = var.quantity().unwrap_or(Quantity::PLAIN);
+    let style = crate::units::format::Style { digits: 4 };
+    let x = |v: f64| crate::units::format::format_value(C64::new(v, 0.0), q, var.display.as_ref(), style).rect;
+    // Spans of the re-parsed text are offsets into "x = formula".
+    let text = format!("x = {}", c.formula);
+    let slice = |e: &Expr| text.get(e.span.range()).unwrap_or("").trim().to_string();
+    let target = slice(&ast.target);
+    let value = match &ast.goal {
+        crate::syntax::ast::SearchGoal::Equals(v) => Some(slice(v)),
+        _ => None,
+    };
+    let (lo, hi) = (engine.slots()[sr.lo as usize].re, engine.slots()[sr.hi as usize].re);
+    let (lo, hi) = (lo.min(hi), lo.max(hi));
+    let (msg, hint) = explain(
+        &err,
+        sr.goal,
+        &ast.var.name,
+        &target,
+        value.as_deref(),
+        &x(lo),
+        &x(hi),
+        &x,
+    );
+    Some(
+        Diagnostic::error(ErrorCode::SearchFailed, c.stmt_span, msg)
+            .with_label(format!("`{}` has no value", c.name))
+            .with_hint(hint),
+    )
 }

@@ -73,6 +73,32 @@ pub enum ExprKind {
     Binary(BinOp, Box<Expr>, Box<Expr>),
     /// `(expr)` with an optional unit after it.
     Paren(Box<Expr>, Option<UnitRef>),
+    /// `C in 0 .. 2 mF where pf = 0.95`: the value of an input that brings
+    /// an expression to a target, or to its largest or smallest value.
+    /// Only the whole formula of a cell can be a search.
+    Search(Box<Search>),
+}
+
+/// `VAR in LO .. HI where TARGET = VALUE` or `… where TARGET is largest`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Search {
+    /// The varied input.
+    pub var: Ident,
+    pub lo: Expr,
+    pub hi: Expr,
+    /// The expression searched.
+    pub target: Expr,
+    pub goal: SearchGoal,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum SearchGoal {
+    /// `= VALUE`
+    Equals(Expr),
+    /// `is largest`
+    Largest,
+    /// `is smallest`
+    Smallest,
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -146,6 +172,13 @@ impl Expr {
             ExprKind::Call { args, .. } => 1 + args.iter().map(Expr::depth).max().unwrap_or(0),
             ExprKind::Unary(_, e) | ExprKind::Paren(e, _) => 1 + e.depth(),
             ExprKind::Binary(_, a, b) => 1 + a.depth().max(b.depth()),
+            ExprKind::Search(s) => {
+                let v = match &s.goal {
+                    SearchGoal::Equals(v) => v.depth(),
+                    _ => 0,
+                };
+                1 + s.lo.depth().max(s.hi.depth()).max(s.target.depth()).max(v)
+            }
         }
     }
 
@@ -160,6 +193,15 @@ impl Expr {
             ExprKind::Binary(_, a, b) => {
                 a.for_each_name(f);
                 b.for_each_name(f);
+            }
+            ExprKind::Search(s) => {
+                f(&s.var);
+                s.lo.for_each_name(f);
+                s.hi.for_each_name(f);
+                s.target.for_each_name(f);
+                if let SearchGoal::Equals(v) = &s.goal {
+                    v.for_each_name(f);
+                }
             }
         }
     }

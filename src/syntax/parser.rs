@@ -226,6 +226,10 @@ fn describe_rule(r: &Rule) -> Option<&'static str> {
         Rule::darg | Rule::dstring | Rule::dword => "an argument",
         Rule::neg | Rule::pos | Rule::prefix => "a sign",
         Rule::exponent => "an exponent",
+        Rule::kw_is => "`is largest` or `is smallest`",
+        Rule::search_eq => "`= value`",
+        Rule::kw_largest | Rule::kw_smallest => "`largest` or `smallest`",
+        Rule::kw_where => "`where`",
         _ => return None,
     })
 }
@@ -325,7 +329,7 @@ impl Cx<'_> {
             Rule::definition => {
                 let mut it = p.into_inner();
                 let name = self.ident(it.next().expect("name"));
-                let expr = self.expr(it.next().expect("expr"))?;
+                let expr = self.expr_or_search(it.next().expect("expr"))?;
                 let display = match it.next() {
                     Some(d) => {
                         let u = d.into_inner().next().expect("unit");
@@ -367,9 +371,46 @@ impl Cx<'_> {
                     .collect();
                 Ok(StmtKind::Directive(Directive { name, args }))
             }
-            Rule::bare_expr => Ok(StmtKind::Expr(self.expr(p.into_inner().next().expect("expr"))?)),
+            Rule::bare_expr => Ok(StmtKind::Expr(
+                self.expr_or_search(p.into_inner().next().expect("expr"))?,
+            )),
             r => unreachable!("statement rule {r:?}"),
         }
+    }
+
+    fn expr_or_search(&self, p: Pair<Rule>) -> R<Expr> {
+        if p.as_rule() != Rule::search {
+            return self.expr(p);
+        }
+        let span = self.span(&p);
+        let mut it = p
+            .into_inner()
+            .filter(|q| !matches!(q.as_rule(), Rule::kw_in | Rule::kw_where));
+        let var = self.ident(it.next().expect("var"));
+        let lo = self.expr(it.next().expect("lo"))?;
+        let hi = self.expr(it.next().expect("hi"))?;
+        let target = self.expr(it.next().expect("target"))?;
+        let g = it.next().expect("goal");
+        let goal = match g.as_rule() {
+            Rule::search_eq => SearchGoal::Equals(self.expr(g.into_inner().next().expect("value"))?),
+            _ => {
+                if g.into_inner().any(|w| w.as_rule() == Rule::kw_largest) {
+                    SearchGoal::Largest
+                } else {
+                    SearchGoal::Smallest
+                }
+            }
+        };
+        Ok(Expr {
+            kind: ExprKind::Search(Box::new(Search {
+                var,
+                lo,
+                hi,
+                target,
+                goal,
+            })),
+            span,
+        })
     }
 
     fn ident(&self, p: Pair<Rule>) -> Ident {
@@ -721,7 +762,49 @@ mod tests {
                 Some(u) => format!("{}[{}]", shape(e), u.unit.symbol),
                 None => shape(e),
             },
+            ExprKind::Search(s) => {
+                let goal = match &s.goal {
+                    SearchGoal::Equals(v) => format!("= {}", shape(v)),
+                    SearchGoal::Largest => "largest".into(),
+                    SearchGoal::Smallest => "smallest".into(),
+                };
+                format!(
+                    "[{} in {}..{} | {} {goal}]",
+                    s.var.name,
+                    shape(&s.lo),
+                    shape(&s.hi),
+                    shape(&s.target)
+                )
+            }
         }
+    }
+
+    #[test]
+    fn search_forms() {
+        assert_eq!(
+            shape(&expr_of("C in 0 .. 2 mF where pf = 0.95")),
+            "[C in 0..2[mF] | pf = 0.95]"
+        );
+        assert_eq!(
+            shape(&expr_of("C in 0..2mF where abs(V) is largest")),
+            "[C in 0..2[mF] | abs(V) largest]"
+        );
+        assert_eq!(
+            shape(&expr_of("f in 10Hz..1MHz where abs(Z) is smallest")),
+            "[f in 10[Hz]..1[MHz] | abs(Z) smallest]"
+        );
+        // A number without a unit before `where` or `is`.
+        assert_eq!(shape(&expr_of("x in 0 .. 2 where y = 1")), "[x in 0..2 | y = 1]");
+        assert_eq!(
+            shape(&expr_of("x in 0 .. 2 where y*2 is largest")),
+            "[x in 0..2 | (y * 2) largest]"
+        );
+        // `0..2` is two numbers, `0.5` still one.
+        assert_eq!(shape(&expr_of("x in 0.5..2.5 where y = 1")), "[x in 0.5..2.5 | y = 1]");
+        // Names that begin with the words are still names.
+        assert_eq!(shape(&expr_of("index * island")), "(index * island)");
+        let d = err_of("x = C in 0 .. 2 mF where pf is biggest");
+        assert!(d.label.contains("largest"), "{d:?}");
     }
 
     #[test]
