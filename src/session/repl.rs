@@ -14,7 +14,7 @@ use rustyline::highlight::{CmdKind, Highlighter};
 use rustyline::hint::{Hint, Hinter, HistoryHinter};
 use rustyline::history::DefaultHistory;
 use rustyline::validate::Validator;
-use rustyline::{Config, Context, Editor, Helper};
+use rustyline::{CompletionType, Config, Context, Editor, Helper};
 
 use super::show;
 use super::state::{plural, Action, Session, COMMANDS};
@@ -40,6 +40,7 @@ pub fn run(path: Option<PathBuf>) -> i32 {
         .auto_add_history(false)
         .history_ignore_space(true)
         .max_history_size(5000)
+        .map(|b| b.completion_type(CompletionType::List))
         .map(|b| b.build())
         .unwrap_or_default();
     let mut rl: Ed = match Editor::with_config(config) {
