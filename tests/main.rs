@@ -3,6 +3,7 @@
 
 mod common;
 
+mod block_lanes;
 mod check_cmd;
 mod cli_batch;
 mod cli_run;

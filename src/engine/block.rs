@@ -56,6 +56,18 @@ impl Block {
         C64::new(self.re[i], self.im[i])
     }
 
+    /// One slot's real and imaginary parts, one entry per lane.
+    pub fn lanes(&self, slot: u32) -> (&[f64], &[f64]) {
+        let s = slot as usize * LANES;
+        (&self.re[s..s + LANES], &self.im[s..s + LANES])
+    }
+
+    /// One slot's parts, to fill many lanes at once.
+    pub fn lanes_mut(&mut self, slot: u32) -> (&mut [f64], &mut [f64]) {
+        let s = slot as usize * LANES;
+        (&mut self.re[s..s + LANES], &mut self.im[s..s + LANES])
+    }
+
     pub fn n_slots(&self) -> usize {
         self.n_slots
     }
@@ -105,7 +117,7 @@ impl Block {
                     for l in 0..LANES {
                         let (ar, ai, br, bi) = (*re.add(a + l), *im.add(a + l), *re.add(b + l), *im.add(b + l));
                         let den = br * br + bi * bi;
-                        careful |= !(den.is_normal() && den < 1e300);
+                        careful |= !plain(den);
                         *re.add(d + l) = (ar * br + ai * bi) / den;
                         *im.add(d + l) = (ai * br - ar * bi) / den;
                     }
@@ -122,11 +134,12 @@ impl Block {
                         let sr = ar + br;
                         let si = ai + bi;
                         let den = sr * sr + si * si;
-                        // the same test as `ops::par_plain_ok`
+                        // the same test as `ops::par_plain_ok`, with `&` for
+                        // `&&` so the loop has no branches and vectorises
                         let ma = ar.abs().max(ai.abs());
                         let mb = br.abs().max(bi.abs());
-                        let plain = (1e-75..=1e75).contains(&ma) && (1e-75..=1e75).contains(&mb) && den.is_normal();
-                        careful |= !plain;
+                        let ok = (1e-75..=1e75).contains(&ma) & (1e-75..=1e75).contains(&mb) & normal(den);
+                        careful |= !ok;
                         *re.add(d + l) = (nr * sr + ni * si) / den;
                         *im.add(d + l) = (ni * sr - nr * si) / den;
                     }
@@ -169,7 +182,7 @@ impl Block {
                     for l in 0..LANES {
                         let (ar, ai) = (*re.add(a + l), *im.add(a + l));
                         let s = ar * ar + ai * ai;
-                        careful |= !(s.is_normal() && s < 1e300);
+                        careful |= !plain(s);
                         *re.add(d + l) = s.sqrt();
                         *im.add(d + l) = 0.0;
                     }
@@ -236,6 +249,20 @@ impl Block {
             }
         }
     }
+}
+
+/// `d.is_normal() && d < 1e300` (the test `ops::div` and `ops::abs` make)
+/// for a sum of squares, which is never negative: two comparisons, so the
+/// loops vectorise. NaN fails both.
+#[inline(always)]
+fn plain(d: f64) -> bool {
+    (f64::MIN_POSITIVE..1e300).contains(&d)
+}
+
+/// `d.is_normal()` for a value that is never negative.
+#[inline(always)]
+fn normal(d: f64) -> bool {
+    (f64::MIN_POSITIVE..f64::INFINITY).contains(&d)
 }
 
 /// Every slot a program names must exist; `Block::exec` relies on it.
