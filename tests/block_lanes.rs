@@ -42,7 +42,7 @@ fn every_lane_agrees_with_the_scalar_evaluator() {
     let mut pick = || {
         k += 1;
         let v = AWKWARD[(k * 7 + k / 3) % AWKWARD.len()];
-        if k % 3 == 0 {
+        if k.is_multiple_of(3) {
             0.5 + k as f64 * 0.01
         } else {
             v
