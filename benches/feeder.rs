@@ -119,7 +119,7 @@ fn ohmsheet_range(c: &Compiled, b: &mut Block, inp: &Inputs, lo: usize, hi: usiz
         for (k, &s) in c.outputs.iter().enumerate() {
             let (re, im) = b.lanes(s);
             let a = &mut acc[k];
-            for l in 0..LANES {
+            for l in 0..n {
                 a[l] += re[l] + im[l];
             }
         }

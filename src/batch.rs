@@ -68,6 +68,9 @@ pub struct Shown {
     pub scale: f64,
     /// The unit written in the header; empty for plain numbers.
     pub unit: String,
+    /// The value does not depend on any column of the cases: its text,
+    /// written once and copied into every row.
+    pub fixed: Option<Vec<u8>>,
 }
 
 /// Columns in, columns out, and the compiled sheet.
@@ -256,6 +259,7 @@ impl Plan {
                 real: real[slot as usize],
                 scale,
                 unit,
+                fixed: None,
             });
         };
         let fields = |id: CellId| match &m.cells[id as usize].shape {
@@ -310,12 +314,45 @@ impl Plan {
                 }
             }
         }
-        Ok(Plan {
+        let mut plan = Plan {
             model,
             columns,
             shown,
             form,
-        })
+        };
+        plan.fix_constants();
+        Ok(plan)
+    }
+
+    /// Format once the shown values that no column of the cases reaches.
+    fn fix_constants(&mut self) {
+        let m = &*self.model;
+        let mut varies = vec![false; m.cells.len()];
+        for c in &self.columns {
+            varies[c.cell as usize] = true;
+        }
+        for &id in &m.order {
+            if m.cells[id as usize].deps.iter().any(|&d| varies[d as usize]) {
+                varies[id as usize] = true;
+            }
+        }
+        let prog = &m.program;
+        let mut slots = prog.init.clone();
+        eval::run(&prog.code, prog, &mut slots);
+        let mut num = zmij::Buffer::new();
+        let mut fixed = Vec::new();
+        for s in &self.shown {
+            let z = slots[s.slot as usize];
+            let nan = z.re.is_nan() || z.im.is_nan();
+            fixed.push((!varies[s.cell as usize] && !nan).then(|| {
+                let mut text = Vec::new();
+                self.write_value(s, z, &mut text, &mut num);
+                text
+            }));
+        }
+        for (s, f) in self.shown.iter_mut().zip(fixed) {
+            s.fixed = f;
+        }
     }
 
     /// The header row of the results: the case's columns, then the shown
@@ -603,7 +640,7 @@ fn push_field(out: &mut Vec<u8>, f: &[u8]) {
 }
 
 /// A number written so it reads back to the same bits.
-fn push_num(out: &mut Vec<u8>, x: f64, buf: &mut ryu::Buffer) {
+fn push_num(out: &mut Vec<u8>, x: f64, buf: &mut zmij::Buffer) {
     if x.is_finite() {
         out.extend_from_slice(buf.format_finite(x).as_bytes());
     } else if x.is_nan() {
@@ -641,7 +678,7 @@ impl Plan {
     ) {
         let prog = &self.model.program;
         let ncols = self.columns.len();
-        let mut num = ryu::Buffer::new();
+        let mut num = zmij::Buffer::new();
         for (g, group) in rows.chunks(LANES).enumerate() {
             let mut ok = [true; LANES];
             for (lane, rec) in group.iter().enumerate() {
@@ -706,29 +743,13 @@ impl Plan {
                     out.push(b'\n');
                     continue;
                 }
-                let mut first = ncols == 0;
-                for s in &self.shown {
-                    let z = w.block.get(s.slot, lane);
-                    let mut put = |x: f64| {
-                        if !first {
-                            out.push(b',');
-                        }
-                        first = false;
-                        push_num(out, x, &mut num);
-                    };
-                    if s.real {
-                        put(z.re / s.scale);
-                        continue;
+                for (k, s) in self.shown.iter().enumerate() {
+                    if k > 0 || ncols > 0 {
+                        out.push(b',');
                     }
-                    match self.form {
-                        ComplexForm::Rect => {
-                            put(z.re / s.scale);
-                            put(z.im / s.scale);
-                        }
-                        ComplexForm::Polar => {
-                            put(ops::abs(z) / s.scale);
-                            put(z.im.atan2(z.re).to_degrees());
-                        }
+                    match &s.fixed {
+                        Some(text) => out.extend_from_slice(text),
+                        None => self.write_value(s, w.block.get(s.slot, lane), out, &mut num),
                     }
                 }
                 out.push(b'\n');
@@ -736,6 +757,23 @@ impl Plan {
         }
         // Errors in case order (value errors of a block come before its NaNs).
         errors.sort_by_key(|e| e.case);
+    }
+
+    /// One shown value: one number, or two joined by a comma.
+    #[inline]
+    fn write_value(&self, s: &Shown, z: C64, out: &mut Vec<u8>, num: &mut zmij::Buffer) {
+        // x / 1 is x: skip the division for values shown in SI units.
+        let scaled = |x: f64| if s.scale == 1.0 { x } else { x / s.scale };
+        if s.real {
+            return push_num(out, scaled(z.re), num);
+        }
+        let (a, b) = match self.form {
+            ComplexForm::Rect => (scaled(z.re), scaled(z.im)),
+            ComplexForm::Polar => (scaled(ops::abs(z)), z.im.atan2(z.re).to_degrees()),
+        };
+        push_num(out, a, num);
+        out.push(b',');
+        push_num(out, b, num);
     }
 
     /// The first shown value of `lane` that is NaN, with where the NaN was
@@ -1005,6 +1043,25 @@ mod tests {
         assert_eq!(plain_number("5."), Some((false, "5.")));
         for bad in ["", "-", ".", "e3", "1e", "inf", "NaN", "1.2.3", "4.7k", "--1", "1 V"] {
             assert_eq!(plain_number(bad), None, "{bad}");
+        }
+    }
+
+    #[test]
+    fn numbers_read_back_to_the_same_bits() {
+        let mut buf = zmij::Buffer::new();
+        for x in [
+            0.1,
+            -2.5e-300,
+            1.0 / 3.0,
+            6.02214076e23,
+            f64::MIN_POSITIVE,
+            5e-324,
+            -0.0,
+        ] {
+            let mut out = Vec::new();
+            push_num(&mut out, x, &mut buf);
+            let y: f64 = std::str::from_utf8(&out).unwrap().parse().unwrap();
+            assert_eq!(y.to_bits(), x.to_bits(), "{x}");
         }
     }
 

@@ -47,7 +47,8 @@ impl AtomicFile {
             live.insert(tmp_path.clone());
         }
         Ok(AtomicFile {
-            out: Some(BufWriter::with_capacity(1 << 20, tmp)),
+            // Small: callers that write large pieces go straight through.
+            out: Some(BufWriter::with_capacity(1 << 16, tmp)),
             tmp_path,
             dest: dest.to_path_buf(),
         })
