@@ -48,22 +48,37 @@ pub struct ParsedSheet {
     pub errors: Vec<Diagnostic>,
 }
 
+/// Sheets with more lines than this are parsed on all cores.
+const PARALLEL_LINES: usize = 2000;
+
 /// Parse a whole sheet. `text` must already be free of a leading BOM.
+/// Lines are independent, so a long sheet is parsed in parallel; the
+/// statements and errors come out in line order either way.
 pub fn parse_sheet(text: &str, file: FileId) -> ParsedSheet {
+    let mut lines = Vec::new();
+    let mut start = 0usize;
+    for (i, raw) in text.split('\n').enumerate() {
+        let line = raw.strip_suffix('\r').unwrap_or(raw);
+        lines.push(((i + 1) as u32, start, line));
+        start += raw.len() + 1;
+    }
+    let parse = |&(line_no, start, line): &(u32, usize, &str)| parse_line(line, file, start, line_no);
+    let results: Vec<_> = if lines.len() > PARALLEL_LINES {
+        use rayon::prelude::*;
+        lines.par_iter().with_min_len(256).map(parse).collect()
+    } else {
+        lines.iter().map(parse).collect()
+    };
     let mut out = ParsedSheet {
         file,
         ..Default::default()
     };
-    let mut start = 0usize;
-    for (i, raw) in text.split('\n').enumerate() {
-        let line_no = (i + 1) as u32;
-        let line = raw.strip_suffix('\r').unwrap_or(raw);
-        match parse_line(line, file, start, line_no) {
+    for r in results {
+        match r {
             Ok(Some(stmt)) => out.stmts.push(stmt),
             Ok(None) => {}
             Err(d) => out.errors.push(d),
         }
-        start += raw.len() + 1;
     }
     out
 }
