@@ -368,13 +368,13 @@ fn par(a: &Cv, b: &Cv) -> Cv {
         let sr = ar + br;
         let si = ai + bi;
         let d = sr * sr + si * si;
-        let special = (ar == 0.0) & (ai == 0.0)
-            | (br == 0.0) & (bi == 0.0)
-            | !((ar.abs() < f64::INFINITY)
-                & (ai.abs() < f64::INFINITY)
-                & (br.abs() < f64::INFINITY)
-                & (bi.abs() < f64::INFINITY));
-        careful |= special | !plain(d);
+        // ops::par_plain_ok, branch-free
+        let ma = ar.abs().max(ai.abs());
+        let mb = br.abs().max(bi.abs());
+        let ok = (1e-75..=1e75).contains(&ma)
+            & (1e-75..=1e75).contains(&mb)
+            & (f64::MIN_POSITIVE..f64::INFINITY).contains(&d);
+        careful |= !ok;
         o.re[l] = (nr * sr + ni * si) / d;
         o.im[l] = (ni * sr - nr * si) / d;
     }
@@ -506,7 +506,7 @@ fn thread_cpu_ns() -> Option<f64> {
     let mut t = libc::timespec { tv_sec: 0, tv_nsec: 0 };
     // SAFETY: clock_gettime writes the timespec it is given.
     let r = unsafe { libc::clock_gettime(libc::CLOCK_THREAD_CPUTIME_ID, &mut t) };
-    (r == 0).then(|| t.tv_sec as f64 * 1e9 + t.tv_nsec as f64)
+    (r == 0).then_some(t.tv_sec as f64 * 1e9 + t.tv_nsec as f64)
 }
 
 /// Median ns per case of each function, timed in turns (A B C A B C …) so

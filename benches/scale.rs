@@ -71,7 +71,7 @@ fn thread_cpu_ns() -> Option<f64> {
     let mut t = libc::timespec { tv_sec: 0, tv_nsec: 0 };
     // SAFETY: clock_gettime writes the timespec it is given.
     let r = unsafe { libc::clock_gettime(libc::CLOCK_THREAD_CPUTIME_ID, &mut t) };
-    (r == 0).then(|| t.tv_sec as f64 * 1e9 + t.tv_nsec as f64)
+    (r == 0).then_some(t.tv_sec as f64 * 1e9 + t.tv_nsec as f64)
 }
 
 /// Run `f`, returning its result and this thread's CPU time (or, where
