@@ -5,8 +5,9 @@ README, and the sheet text in the Rust tests. Run from the repository root:
 
     python3 fuzz/make_seeds.py
 
-It rewrites fuzz/seeds/sheets/ (for the parse and eval targets) and
-fuzz/seeds/units/ (for the units target). File names are content hashes,
+It rewrites fuzz/seeds/sheets/ (for the parse and eval targets),
+fuzz/seeds/units/ (units), fuzz/seeds/cases/ (cases tables for the sheet
+`CASES_SHEET` in src/harness.rs) and fuzz/seeds/session/ (typed lines). File names are content hashes,
 so re-running adds new seeds and never duplicates.
 """
 import glob
@@ -52,7 +53,7 @@ def unescape(s):
 
 
 def main():
-    for kind in ("sheets", "units"):
+    for kind in ("sheets", "units", "cases", "session"):
         shutil.rmtree(os.path.join(OUT, kind), ignore_errors=True)
         os.makedirs(os.path.join(OUT, kind))
     for p in sorted(glob.glob(os.path.join(ROOT, "sheets-demo", "*.ohm"))):
@@ -73,6 +74,29 @@ def main():
             s = unescape(m.group(1))
             if re.search(r"^\s*[A-Za-z_]\w*\s*=", s, re.M) or s.lstrip().startswith(("check ", "@")):
                 put("sheets", s if s.endswith("\n") else s + "\n")
+    # Cases tables for CASES_SHEET (inputs V, Z, f, th, k, C).
+    for t in [
+        "V,Z\n230,3+j4\n",
+        "V [kV],Z [Ω],f [Hz]\n0.23,5,50\n0.4,(3 + j4),60\n",
+        "V,th,k,C\n230 V,30°,2,10 µF\n120 V ∠ 10°,0.5 rad,1e3,4.7n\n",
+        "\ufeffV,Z\n\"230\",\"3 + j4 Ω\"\nabc,1\n,\n230 V,0 Ω\n",
+        "f [rad/s],k\n314,1\n1e999,2\n",
+        "V,V\n1,2\n",
+        "Z [Ω\n1\n",
+    ]:
+        put("cases", t)
+    for p in sorted(glob.glob(os.path.join(ROOT, "**", "*.csv"), recursive=True)):
+        if "/fuzz/" not in p and "/target/" not in p:
+            with open(p, "rb") as f:
+                put("cases", f.read())
+    # Typed session lines: sheet lines followed by commands.
+    for t in [
+        "R1 = 10 Ω\nR2 = 20 Ω\nR = R1 || R2\n/why R\n/feeds R1\nR1 = 30 Ω\n/back\n/cells\n",
+        "V = 230 V\nZ = (3 + j4) Ω\nI = V / Z\n/remove Z\nZ = 5 Ω\n/show polar\n/show digits 7\n/about I\n",
+        "a = 1\nb = a + 1\na = b\n/back\n/back\n/back\n/help\n/nosuch\ncheck b ~= 2 +- 1%\n",
+        "@amplitude peak\nV = 10 V\nP = V^2 / 5 Ω\n@include other.ohm\n/done\n",
+    ]:
+        put("session", t)
     # Unit expressions: every symbol with a few prefixes and compounds.
     syms = []
     table = open(os.path.join(ROOT, "src", "units", "table.rs"), encoding="utf-8").read()

@@ -18,12 +18,14 @@ secs="${1:-240}"
 shift || true
 targets=("$@")
 if [ ${#targets[@]} -eq 0 ]; then
-    targets=(parse eval units)
+    targets=(parse eval units cases session)
 fi
 export RUSTC_BOOTSTRAP=1
 seeds_of() {
     case "$1" in
         units) echo fuzz/seeds/units ;;
+        cases) echo fuzz/seeds/cases ;;
+        session) echo fuzz/seeds/session ;;
         *) echo fuzz/seeds/sheets ;;
     esac
 }

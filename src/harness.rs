@@ -155,3 +155,106 @@ pub fn unit_bytes(data: &[u8]) {
         assert!(!f.rect.is_empty());
     }
 }
+
+/// The sheet the `cases` target runs every table against: inputs of each
+/// kind a cases column can set (a voltage, an impedance, a frequency, an
+/// angle, a plain number, a capacitance) and cells computed from them.
+pub const CASES_SHEET: &str = "V = 230 V\nZ = (3 + j4) Ω\nf = 50 Hz\nth = 30°\nk = 2\nC = 10 µF\n\
+I = V / Z\nXc = 1 / (2 * pi * f * C)\nS = V * conj(I)\nW = V ∠ th\nr = k * Xc || Z\n\
+check abs(I) ~= 46 A +- 50%\n";
+
+/// Arbitrary bytes as a cases table (header and rows) for `CASES_SHEET`,
+/// through the same reader and streaming evaluator `ohmsheet batch` uses.
+/// The output must be well-formed CSV with one line per case, each as wide
+/// as the header.
+pub fn cases_bytes(data: &[u8]) {
+    use crate::batch::{run_stream, ComplexForm, Plan, StreamOptions};
+    use std::sync::Arc;
+    let model = compile(&Sheet::from_text("cases.ohm", CASES_SHEET));
+    assert!(!model.has_errors());
+    let mut cases = csv::ReaderBuilder::new()
+        .flexible(true)
+        .from_reader(std::io::Cursor::new(data.to_vec()));
+    let headers: Vec<String> = match cases.byte_headers() {
+        Ok(h) if h.iter().any(|f| !f.is_empty()) => h.iter().map(|f| String::from_utf8_lossy(f).into_owned()).collect(),
+        _ => return,
+    };
+    let form = if data.len() % 2 == 0 {
+        ComplexForm::Rect
+    } else {
+        ComplexForm::Polar
+    };
+    let Ok(plan) = Plan::new(Arc::new(model), &headers, None, form) else {
+        return;
+    };
+    let plan = Arc::new(plan);
+    let width = plan.out_header().len();
+    let mut out = Vec::new();
+    let mut bad = 0u64;
+    let mut on_errors = |rows: &[crate::batch::RowError]| {
+        bad += rows.len() as u64;
+        Ok(())
+    };
+    let opts = StreamOptions {
+        strict: false,
+        chunk_rows: 7,
+        in_flight: 2,
+    };
+    let Ok(summary) = run_stream(plan, cases, &mut out, &mut on_errors, &mut |_, _| {}, opts) else {
+        return;
+    };
+    assert!(summary.bad_rows <= summary.cases && bad >= summary.bad_rows);
+    let mut rd = csv::ReaderBuilder::new()
+        .has_headers(false)
+        .from_reader(out.as_slice());
+    let mut n = 0u64;
+    for rec in rd.byte_records() {
+        let rec = rec.expect("output is CSV");
+        assert_eq!(rec.len(), width, "output row {n} is not as wide as the header");
+        n += 1;
+    }
+    assert_eq!(n, summary.cases, "one output line per case");
+}
+
+/// Arbitrary bytes as lines typed into an interactive session (without a
+/// terminal, journal or file). After every line the session's
+/// incrementally updated values must equal a fresh compile and evaluation
+/// of the sheet text it would save. `/save` and `/open` lines are skipped:
+/// they touch files.
+pub fn session_bytes(data: &[u8]) {
+    use crate::session::Session;
+    let Ok(text) = std::str::from_utf8(data) else { return };
+    let Ok((mut s, _)) = Session::open(None, None, false) else {
+        panic!("an unnamed session always opens")
+    };
+    for line in text.split('\n').take(64) {
+        let t = line.trim_start();
+        if t.starts_with("/save") || t.starts_with("/open") {
+            continue;
+        }
+        let _ = s.handle(line);
+        let fresh = Engine::new(compile(&Sheet::from_text("fresh.ohm", &s.doc.text())));
+        let m = &s.engine.model;
+        for (id, c) in m.defs() {
+            if c.error.is_some() {
+                continue;
+            }
+            let Some(fid) = fresh.model.id(&c.name) else {
+                panic!("cell `{}` is in the session but not in its saved text", c.name)
+            };
+            if fresh.model.cells[fid as usize].error.is_some() {
+                continue;
+            }
+            let (a, b) = (s.engine.values(id), fresh.values(fid));
+            assert_eq!(a.len(), b.len(), "cell `{}` width", c.name);
+            for (x, y) in a.iter().zip(b) {
+                assert!(
+                    same(*x, *y),
+                    "cell `{}`: session {x:?} but a fresh evaluation {y:?}\nafter `{line}` in:\n{}",
+                    c.name,
+                    s.doc.text()
+                );
+            }
+        }
+    }
+}

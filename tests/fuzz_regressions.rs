@@ -48,6 +48,16 @@ fn units_regressions() {
 }
 
 #[test]
+fn cases_regressions() {
+    replay("cases", ohmsheet::harness::cases_bytes);
+}
+
+#[test]
+fn session_regressions() {
+    replay("session", ohmsheet::harness::session_bytes);
+}
+
+#[test]
 fn seed_corpus_passes_every_check() {
     let n = each_file(&repo("fuzz/seeds/sheets"), |_, data| {
         ohmsheet::harness::parse_bytes(data);
@@ -56,6 +66,10 @@ fn seed_corpus_passes_every_check() {
     assert!(n >= 50, "only {n} seeds");
     let n = each_file(&repo("fuzz/seeds/units"), |_, data| ohmsheet::harness::unit_bytes(data));
     assert!(n >= 20, "only {n} unit seeds");
+    let n = each_file(&repo("fuzz/seeds/cases"), |_, data| ohmsheet::harness::cases_bytes(data));
+    assert!(n >= 5, "only {n} cases seeds");
+    let n = each_file(&repo("fuzz/seeds/session"), |_, data| ohmsheet::harness::session_bytes(data));
+    assert!(n >= 4, "only {n} session seeds");
 }
 
 /// The harness does catch a broken invariant: a diagnostic whose span
