@@ -26,7 +26,8 @@ ENTRIES = [
     ("syntax", "The line does not follow the grammar.", "x = (1 + 2\n", None),
     ("empty-sheet", "The sheet has no definitions.", "# nothing but a comment\n", None),
     ("bare-expression", "A sheet line is an expression without a name.", "2 * 3\n", None),
-    ("bad-number", "A number beyond the range of a double.", "x = 1e999\n", None),
+    ("bad-number", "A number beyond the range of a double once its prefix and unit scale it to SI units: too large, "
+     "or so small it would read as 0; or a unit whose scale is beyond a double (see docs/limits.md).", "x = 1e999\n", None),
     ("unknown-unit", "A unit word the table does not know.", "R = 20 ohms\n", None),
     ("ambiguous-unit", "`m` alone after a space: milli or metres?", "x = 5 m\n", None),
     ("unit-not-allowed", "A unit after a bracket that already has a dimension.", "V = 5 V\nx = (V) kV\n", None),

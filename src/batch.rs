@@ -107,6 +107,7 @@ fn unit_error_text(text: &str, e: UnitError) -> String {
     match e {
         UnitError::AmbiguousMetre => "`m` on its own is ambiguous: write `metre`, `km` or `mm`".into(),
         UnitError::Exponent(w) => format!("bad power in unit `{w}`"),
+        UnitError::Range(w) => format!("unit `{w}` is beyond the range of a double"),
         UnitError::Unknown { word, suggestion, hint } => {
             let mut s = format!("unknown unit `{word}` in `{text}`");
             if let Some(x) = suggestion {

@@ -179,7 +179,7 @@ pub fn cases_bytes(data: &[u8]) {
         Ok(h) if h.iter().any(|f| !f.is_empty()) => h.iter().map(|f| String::from_utf8_lossy(f).into_owned()).collect(),
         _ => return,
     };
-    let form = if data.len() % 2 == 0 {
+    let form = if data.len().is_multiple_of(2) {
         ComplexForm::Rect
     } else {
         ComplexForm::Polar
@@ -204,9 +204,7 @@ pub fn cases_bytes(data: &[u8]) {
         return;
     };
     assert!(summary.bad_rows <= summary.cases && bad >= summary.bad_rows);
-    let mut rd = csv::ReaderBuilder::new()
-        .has_headers(false)
-        .from_reader(out.as_slice());
+    let mut rd = csv::ReaderBuilder::new().has_headers(false).from_reader(out.as_slice());
     let mut n = 0u64;
     for rec in rd.byte_records() {
         let rec = rec.expect("output is CSV");

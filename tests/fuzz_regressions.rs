@@ -66,9 +66,13 @@ fn seed_corpus_passes_every_check() {
     assert!(n >= 50, "only {n} seeds");
     let n = each_file(&repo("fuzz/seeds/units"), |_, data| ohmsheet::harness::unit_bytes(data));
     assert!(n >= 20, "only {n} unit seeds");
-    let n = each_file(&repo("fuzz/seeds/cases"), |_, data| ohmsheet::harness::cases_bytes(data));
+    let n = each_file(&repo("fuzz/seeds/cases"), |_, data| {
+        ohmsheet::harness::cases_bytes(data)
+    });
     assert!(n >= 5, "only {n} cases seeds");
-    let n = each_file(&repo("fuzz/seeds/session"), |_, data| ohmsheet::harness::session_bytes(data));
+    let n = each_file(&repo("fuzz/seeds/session"), |_, data| {
+        ohmsheet::harness::session_bytes(data)
+    });
     assert!(n >= 4, "only {n} session seeds");
 }
 

@@ -1,6 +1,5 @@
 //! `ohmsheet sweep` and `ohmsheet solve`.
 
-use std::fs::File;
 use std::io::{self, BufWriter, Write};
 use std::path::{Path, PathBuf};
 
@@ -162,25 +161,11 @@ pub fn write_atomic(path: &Path, f: impl FnOnce(&mut dyn Write) -> io::Result<()
         f(&mut w)?;
         return w.flush();
     }
-    let dir = match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let name = path
-        .file_name()
-        .map_or_else(|| "out".into(), |n| n.to_string_lossy().into_owned());
-    let tmp = dir.join(format!(".{name}.{}.tmp", std::process::id()));
-    let result = (|| {
-        let mut w = BufWriter::with_capacity(1 << 16, File::create(&tmp)?);
-        f(&mut w)?;
-        w.flush()?;
-        drop(w);
-        std::fs::rename(&tmp, path)
-    })();
-    if result.is_err() {
-        let _ = std::fs::remove_file(&tmp);
-    }
-    result
+    // The shared helper: a temporary file beside the target, synced to
+    // disk, renamed over it, and the folder synced.
+    let mut w = crate::fsutil::AtomicFile::create(path)?;
+    f(&mut w)?;
+    w.commit()
 }
 
 fn io_error(path: &Path, e: io::Error) -> i32 {
@@ -467,6 +452,13 @@ pub fn solve(a: &SolveArgs) -> i32 {
             "give --target, --maximize or --minimize",
         );
     };
+    if !(2..=crate::engine::search::MAX_SCAN).contains(&a.scan) {
+        return unplaced(
+            ErrorCode::TooManyPoints,
+            format!("--scan {} is outside 2..={}", a.scan, crate::engine::search::MAX_SCAN),
+            "a coarse scan of a few hundred points is usually plenty; the search refines from there",
+        );
+    }
     if expr.is_empty() || value.as_deref() == Some("") {
         return unplaced(
             ErrorCode::BadSearch,

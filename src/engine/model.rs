@@ -935,7 +935,15 @@ impl Lowerer<'_> {
         }
     }
 
+    /// Lower an expression. Trees are at most `LIMITS.max_expr_depth`
+    /// deep, but each level takes several frames, and a compile may run on
+    /// a thread with a small stack (a batch worker, a test, a library
+    /// caller); `stacker` grows the stack on the heap when it runs low.
     pub(super) fn expr(&self, em: &mut Emitter, e: &Expr) -> R<Val> {
+        stacker::maybe_grow(128 * 1024, 4 * 1024 * 1024, || self.expr_inner(em, e))
+    }
+
+    fn expr_inner(&self, em: &mut Emitter, e: &Expr) -> R<Val> {
         match &e.kind {
             ExprKind::Number { value, imag, unit } => {
                 let c = if *imag {

@@ -541,6 +541,23 @@ impl Cx<'_> {
                         r => unreachable!("quantity part {r:?}"),
                     }
                 }
+                // The value in coherent SI units must be a double: not
+                // overflowing (`1e308T`, `1e308 kV`) and not a non-zero
+                // number that underflows to zero (`1e-400`).
+                let si = value * unit.as_ref().map_or(1.0, |u| u.unit.factor);
+                let mantissa_nonzero = num
+                    .as_str()
+                    .split(['e', 'E'])
+                    .next()
+                    .is_some_and(|m| m.bytes().any(|b| (b'1'..=b'9').contains(&b)));
+                if !si.is_finite() {
+                    return Err(Diagnostic::error(ErrorCode::BadNumber, span, "number too large")
+                        .with_label("beyond the range of a double (about 1.8e308) in SI units"));
+                }
+                if si == 0.0 && mantissa_nonzero {
+                    return Err(Diagnostic::error(ErrorCode::BadNumber, span, "number too small")
+                        .with_label("below the smallest double (about 5e-324) in SI units; it would read as 0"));
+                }
                 Ok((
                     Expr {
                         kind: ExprKind::Number { value, imag, unit },
@@ -683,6 +700,13 @@ impl Cx<'_> {
                         "for milli glue it to the number (`5m` is 0.005); for metres write `metre` (or `km`, `mm`)",
                     )
             }
+            UnitError::Range(what) => Diagnostic::error(
+                ErrorCode::BadNumber,
+                span,
+                format!("unit `{what}` is beyond the range of a double"),
+            )
+            .with_label("its scale to SI units overflows or underflows")
+            .with_hint("use fewer or smaller powers; doubles reach from about 1e-308 to 1.8e308"),
             UnitError::Exponent(what) => {
                 Diagnostic::error(ErrorCode::UnknownUnit, span, format!("bad power in unit `{what}`"))
                     .with_hint("unit powers are whole numbers from -9 to 9, e.g. `m^2`, `s^-1`")
@@ -927,6 +951,21 @@ mod tests {
         );
         let d = err_of("x = 1e999");
         assert_eq!(d.code, ErrorCode::BadNumber);
+        // Literals beyond a double once a glued prefix or a unit scales
+        // them, or so small they would read as zero (IEEE 754 binary64:
+        // largest finite about 1.8e308, smallest subnormal about 4.9e-324).
+        for src in [
+            "x = 1e308T",
+            "x = 1e308 kV",
+            "x = j1e308 GΩ",
+            "x = 1e-400",
+            "x = 1e-320 fF",
+        ] {
+            assert_eq!(err_of(src).code, ErrorCode::BadNumber, "{src}");
+        }
+        for src in ["x = 1e290T", "x = 1e-320", "x = 0e-400", "x = 0.0 fF", "x = 1.7e308"] {
+            assert!(parse_line(src, FileId(0), 0, 1).is_ok(), "{src}");
+        }
     }
 
     #[test]

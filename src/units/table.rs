@@ -25,6 +25,9 @@ pub enum UnitError {
     /// `m` on its own after a number: milli or metres?
     AmbiguousMetre,
     Exponent(String),
+    /// The unit's factor to coherent SI units overflows or underflows a
+    /// double (`TΩ^9*TΩ^9*TΩ^9` is 10³²⁴ Ω²⁷).
+    Range(String),
 }
 
 struct BaseUnit {
@@ -329,6 +332,9 @@ pub fn parse_unit_expr(text: &str) -> Result<Unit, UnitError> {
         }
         rest = &rest[end + sep.len_utf8()..];
     }
+    if !(factor.is_finite() && factor != 0.0) {
+        return Err(UnitError::Range(text.to_string()));
+    }
     let kind = match kinds.as_slice() {
         [(k, 1)] => *k,
         // rad/s is an angular frequency
@@ -395,6 +401,18 @@ mod tests {
         let u = parse_unit_expr("°").unwrap();
         assert_eq!(u.q.kind, Kind::Angle);
         assert!(close(u.factor, std::f64::consts::PI / 180.0));
+    }
+
+    // Found by the `units` fuzz target: the factor 1e12^27 = 1e324
+    // overflowed to ∞ and every value in the unit became NaN.
+    #[test]
+    fn unit_factors_beyond_a_double_are_refused() {
+        assert_eq!(
+            parse_unit_expr("TΩ^9*TΩ^9*TΩ^9"),
+            Err(UnitError::Range("TΩ^9*TΩ^9*TΩ^9".into()))
+        );
+        assert!(matches!(parse_unit_expr("fF^9*fF^9*fF^9"), Err(UnitError::Range(_))));
+        assert!(parse_unit_expr("TΩ^9*TΩ^9").is_ok());
     }
 
     #[test]

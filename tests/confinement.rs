@@ -1,0 +1,238 @@
+//! Confinement: a sheet can do nothing but compute. The core (parsing,
+//! units, compiling, evaluating, the function library) has no way to reach
+//! files, processes, the environment or the network, and a sheet passed on
+//! by someone else reads nothing outside its own folder tree.
+
+use std::path::Path;
+
+use predicates::prelude::*;
+
+use crate::common::{ohmsheet, repo};
+
+/// Source directories that must stay pure computation.
+const CORE: &[&str] = &["src/syntax", "src/units", "src/engine", "src/funcs"];
+
+/// What the core must not use: file, process, environment and network
+/// access, raw OS calls, and foreign code.
+const FORBIDDEN: &[&str] = &[
+    "std::fs",
+    "std::process",
+    "std::env",
+    "std::net",
+    "std::os",
+    "std::io::stdin",
+    "File::",
+    "OpenOptions",
+    "Command::new",
+    "env!(",
+    "option_env!(",
+    "libc::",
+    "nix::",
+    "extern \"C\"",
+    "#[link",
+];
+
+/// Forbidden uses in one file's text, with line numbers; `//` comments are
+/// ignored, and grouped imports (`use std::{fs, io}`) are caught too.
+fn forbidden_uses(text: &str) -> Vec<(usize, String)> {
+    let mut found = Vec::new();
+    let mut in_tests = false;
+    for (i, line) in text.lines().enumerate() {
+        let code = line.split("//").next().unwrap_or("");
+        // Unit tests at the end of a file may use the file system.
+        if code.trim_start().starts_with("#[cfg(test)]") {
+            in_tests = true;
+        }
+        if in_tests {
+            continue;
+        }
+        for f in FORBIDDEN {
+            if code.contains(f) {
+                found.push((i + 1, f.to_string()));
+            }
+        }
+        if let Some(rest) = code.split("use std::{").nth(1) {
+            for m in ["fs", "process", "env", "net", "os"] {
+                if rest.split(|c: char| !c.is_alphanumeric() && c != '_').any(|w| w == m) {
+                    found.push((i + 1, format!("std::{m}")));
+                }
+            }
+        }
+    }
+    found
+}
+
+fn rust_files(dir: &Path, out: &mut Vec<std::path::PathBuf>) {
+    for e in std::fs::read_dir(dir).unwrap() {
+        let p = e.unwrap().path();
+        if p.is_dir() {
+            rust_files(&p, out);
+        } else if p.extension().is_some_and(|x| x == "rs") {
+            out.push(p);
+        }
+    }
+}
+
+#[test]
+fn the_core_has_no_io() {
+    let mut files = Vec::new();
+    for d in CORE {
+        rust_files(&repo(d), &mut files);
+    }
+    assert!(files.len() >= 10, "only {} files found", files.len());
+    let mut bad = Vec::new();
+    for f in &files {
+        let text = std::fs::read_to_string(f).unwrap();
+        for (line, what) in forbidden_uses(&text) {
+            bad.push(format!("{}:{line}: {what}", f.display()));
+        }
+    }
+    assert!(
+        bad.is_empty(),
+        "the core must only compute (ARCHITECTURE.md, invariants):\n{}",
+        bad.join("\n")
+    );
+}
+
+/// The scan itself finds what it looks for.
+#[test]
+fn the_scan_catches_io() {
+    assert_eq!(forbidden_uses("use std::fs::read;\n").len(), 1);
+    assert_eq!(forbidden_uses("use std::{collections::HashMap, env};\n").len(), 1);
+    assert_eq!(forbidden_uses("let c = std::process::Command::new(\"sh\");\n").len(), 2);
+    assert!(forbidden_uses("// std::fs in a comment\nlet x = 1;\n").is_empty());
+    assert!(forbidden_uses("#[cfg(test)]\nmod tests { use std::fs; }\n").is_empty());
+}
+
+/// A folder with a sheet, and a secret outside it that no sheet may read.
+struct Site {
+    _root: tempfile::TempDir,
+    tree: std::path::PathBuf,
+    outside: std::path::PathBuf,
+}
+
+const SECRET: &str = "s3cr3t-c4n4ry";
+
+fn site() -> Site {
+    let root = tempfile::tempdir().unwrap();
+    let tree = root.path().join("project");
+    let outside = root.path().join("elsewhere");
+    std::fs::create_dir_all(tree.join("lib")).unwrap();
+    std::fs::create_dir_all(&outside).unwrap();
+    std::fs::write(outside.join("secret.ohm"), format!("{SECRET} = 1 V\n")).unwrap();
+    Site {
+        _root: root,
+        tree,
+        outside,
+    }
+}
+
+fn run_sheet(s: &Site, text: &str) -> assert_cmd::assert::Assert {
+    let p = s.tree.join("main.ohm");
+    std::fs::write(&p, format!("a = 1 V\n{text}\n")).unwrap();
+    ohmsheet()
+        .current_dir(&s.tree)
+        .env("OHM_OUTSIDE", &s.outside)
+        .env("HOME", &s.outside)
+        .args(["run", p.to_str().unwrap()])
+        .timeout(std::time::Duration::from_secs(20))
+        .assert()
+}
+
+fn refused(a: assert_cmd::assert::Assert) {
+    a.code(2)
+        .stderr(predicate::str::contains("error[include-path]"))
+        .stdout(predicate::str::contains(SECRET).not())
+        .stderr(predicate::str::contains(SECRET).not());
+}
+
+#[test]
+fn include_escapes_are_refused() {
+    let s = site();
+    let abs = s.outside.join("secret.ohm");
+    for inc in [
+        "../elsewhere/secret.ohm".to_string(),
+        "lib/../../elsewhere/secret.ohm".to_string(),
+        "./../elsewhere/./secret.ohm".to_string(),
+        abs.display().to_string(),
+        // no expansion of the environment or the home folder
+        "$OHM_OUTSIDE/secret.ohm".to_string(),
+        "${OHM_OUTSIDE}/secret.ohm".to_string(),
+        "~/secret.ohm".to_string(),
+        // special files are not sheets
+        "/proc/self/environ".to_string(),
+        "../../../../../../../../proc/self/environ".to_string(),
+        "/dev/zero".to_string(),
+    ] {
+        refused(run_sheet(&s, &format!("@include \"{inc}\"")));
+    }
+}
+
+#[test]
+fn links_out_of_the_tree_are_refused() {
+    let s = site();
+    std::os::unix::fs::symlink(s.outside.join("secret.ohm"), s.tree.join("lib/file-link.ohm")).unwrap();
+    std::os::unix::fs::symlink(&s.outside, s.tree.join("lib/dir-link")).unwrap();
+    // a chain of links that ends outside
+    std::os::unix::fs::symlink(s.tree.join("lib/file-link.ohm"), s.tree.join("lib/hop.ohm")).unwrap();
+    for inc in ["lib/file-link.ohm", "lib/dir-link/secret.ohm", "lib/hop.ohm"] {
+        refused(run_sheet(&s, &format!("@include \"{inc}\"")));
+    }
+    // A library inside the tree that itself tries to leave is refused too.
+    std::fs::write(
+        s.tree.join("lib/inner.ohm"),
+        "@include \"../../elsewhere/secret.ohm\"\nb = 2 V\n",
+    )
+    .unwrap();
+    refused(run_sheet(&s, "@include \"lib/inner.ohm\""));
+}
+
+/// Things that are not regular files never block or get read: a FIFO
+/// would hang a reader forever, a folder is not a sheet.
+#[test]
+fn special_files_in_the_tree_are_refused_without_hanging() {
+    let s = site();
+    let fifo = s.tree.join("lib/pipe.ohm");
+    let st = std::process::Command::new("mkfifo").arg(&fifo).status();
+    if st.map(|s| s.success()).unwrap_or(false) {
+        refused(run_sheet(&s, "@include \"lib/pipe.ohm\""));
+    } else {
+        panic!("mkfifo is needed for this test (coreutils)");
+    }
+    std::fs::create_dir_all(s.tree.join("lib/folder.ohm")).unwrap();
+    refused(run_sheet(&s, "@include \"lib/folder.ohm\""));
+}
+
+/// A sheet has no function or directive that reaches the system: names
+/// that would in other tools are unknown here.
+#[test]
+fn no_function_reaches_the_system() {
+    let s = site();
+    for f in [
+        "system(1)",
+        "exec(1)",
+        "env(1)",
+        "getenv(1)",
+        "read(1)",
+        "open(1)",
+        "shell(1)",
+        "load(1)",
+    ] {
+        run_sheet(&s, &format!("x = {f}"))
+            .code(2)
+            .stderr(predicate::str::contains("error[unknown-function]"));
+    }
+    for d in ["@exec \"ls\"", "@shell ls", "@env HOME", "@output \"../x\""] {
+        run_sheet(&s, d)
+            .code(2)
+            .stderr(predicate::str::contains("error[unknown-directive]"));
+    }
+    // and nothing was written beside the sheet
+    let names: Vec<String> = std::fs::read_dir(&s.tree)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    let mut names = names;
+    names.sort();
+    assert_eq!(names, ["lib", "main.ohm"]);
+}
