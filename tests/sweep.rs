@@ -443,3 +443,28 @@ fn chart_draws_in_the_terminal_and_marks_undefined_points() {
         .stdout(predicate::str::contains("C [mF]"))
         .stdout(predicate::str::contains("undefined (NaN or ∞) at 1 point"));
 }
+
+#[test]
+fn the_demo_plot_is_the_tools_own_drawing() {
+    // sheets-demo/pump-station-bank-search.svg is what `ohmsheet sweep`
+    // draws for the sheet's declared sweep; redraw it and compare.
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("demo.svg");
+    ohmsheet()
+        .args([
+            "sweep",
+            crate::common::repo("sheets-demo/pump-station-bank-search.ohm")
+                .to_str()
+                .unwrap(),
+            "--plot",
+            out.to_str().unwrap(),
+        ])
+        .assert()
+        .code(0);
+    let fresh = std::fs::read_to_string(&out).unwrap();
+    let committed = std::fs::read_to_string(crate::common::repo("sheets-demo/pump-station-bank-search.svg")).unwrap();
+    assert!(
+        fresh == committed,
+        "regenerate it: ohmsheet sweep sheets-demo/pump-station-bank-search.ohm --plot sheets-demo/pump-station-bank-search.svg"
+    );
+}

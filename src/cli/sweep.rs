@@ -152,8 +152,8 @@ fn is_stdout(p: &Path) -> bool {
     p.as_os_str() == "-"
 }
 
-/// Write a file atomically: into a temporary file beside it, renamed over
-/// the target only when complete. `-` writes to standard output.
+/// Write a file atomically (`fsutil::AtomicFile`: a temporary file beside
+/// it, renamed over it only when complete). `-` writes to standard output.
 pub fn write_atomic(path: &Path, f: impl FnOnce(&mut dyn Write) -> io::Result<()>) -> io::Result<()> {
     if is_stdout(path) {
         let stdout = io::stdout();
@@ -161,6 +161,7 @@ pub fn write_atomic(path: &Path, f: impl FnOnce(&mut dyn Write) -> io::Result<()
         f(&mut w)?;
         return w.flush();
     }
+    crate::fsutil::remove_partial_files_on_interrupt();
     // The shared helper: a temporary file beside the target, synced to
     // disk, renamed over it, and the folder synced.
     let mut w = crate::fsutil::AtomicFile::create(path)?;

@@ -100,7 +100,10 @@ fn draw(lay: &Layout, width: usize, colour: bool) -> String {
             let lab = match row {
                 0 => ylabel(hi),
                 r if r == ROWS - 1 => ylabel(lo),
-                r if r == ROWS / 2 => ylabel(0.5 * (hi + lo)),
+                r if r == ROWS / 2 => {
+                    let mid = 0.5 * (hi + lo);
+                    ylabel(if mid.abs() < 1e-6 * (hi - lo) { 0.0 } else { mid })
+                }
                 _ => String::new(),
             };
             out.push_str(&format!("{lab:>label_w$} ┤"));

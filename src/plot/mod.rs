@@ -228,6 +228,9 @@ pub fn layout(r: &SweepResult, parts: Parts) -> Result<Layout, String> {
         let what = match part {
             Part::Value if one && real[members[0]] => name(members[0]),
             Part::Value if one => format!("|{}|", name(members[0])),
+            Part::Value if members.iter().all(|&k| real[k]) && members.len() <= 3 => {
+                members.iter().map(|&k| name(k)).collect::<Vec<_>>().join(", ")
+            }
             Part::Value if members.iter().all(|&k| real[k]) => "value".to_string(),
             Part::Value => "magnitude".to_string(),
             Part::Phase => "phase".to_string(),
