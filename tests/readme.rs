@@ -1,5 +1,6 @@
-//! The README's sheet examples are real sheets: each fenced block in the
-//! tour that defines cells must compile and its checks pass.
+//! The README's sheet examples are real sheets: each untagged (or `ohm`)
+//! fenced block that defines cells must compile and its checks pass.
+//! Blocks tagged `text` are transcripts, not sheets.
 
 use crate::common::{engine, repo};
 
@@ -9,14 +10,23 @@ fn readme_tour_sheet_runs_and_checks_pass() {
     let tour = text.split("## A short tour").nth(1).expect("tour section");
     let mut blocks = 0;
     for block in tour.split("```").skip(1).step_by(2) {
-        if !block.lines().any(|l| l.contains(" = ")) || block.contains("error[") {
+        let (tag, body) = block.split_once('\n').unwrap_or(("", block));
+        let tag = tag.trim();
+        if !(tag.is_empty() || tag == "ohm") || body.lines().any(|l| l.starts_with("ohmsheet ")) {
             continue;
         }
+        if !body.lines().any(|l| l.contains(" = ")) {
+            continue;
+        }
+        let block = body;
         blocks += 1;
         let e = engine(block);
         for row in ohmsheet::output::check_rows(&e, Default::default()) {
             assert!(row.passed, "README check failed: {}", row.expr);
         }
     }
-    assert!(blocks >= 1);
+    assert!(
+        blocks >= 2,
+        "expected the tour sheet and the sweep sheet, found {blocks}"
+    );
 }
