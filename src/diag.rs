@@ -10,7 +10,7 @@ use std::ops::Range;
 use std::path::PathBuf;
 
 use codespan_reporting::diagnostic::{Diagnostic as CsDiagnostic, Label};
-use codespan_reporting::files::SimpleFiles;
+use codespan_reporting::files::{self, Files};
 use codespan_reporting::term;
 use codespan_reporting::term::termcolor::{ColorChoice, StandardStream, WriteColor};
 
@@ -124,6 +124,46 @@ impl SourceMap {
     }
     pub fn line_of(&self, span: Span) -> usize {
         self.get(span.file).line_col(span.start as usize).0
+    }
+}
+
+/// Diagnostics are rendered straight from the source map, using the line
+/// starts each file already has.
+impl<'a> Files<'a> for SourceMap {
+    type FileId = usize;
+    type Name = &'a str;
+    type Source = &'a str;
+
+    fn name(&'a self, id: usize) -> Result<&'a str, files::Error> {
+        self.files
+            .get(id)
+            .map(|f| f.name.as_str())
+            .ok_or(files::Error::FileMissing)
+    }
+
+    fn source(&'a self, id: usize) -> Result<&'a str, files::Error> {
+        self.files
+            .get(id)
+            .map(|f| f.text.as_str())
+            .ok_or(files::Error::FileMissing)
+    }
+
+    fn line_index(&'a self, id: usize, byte_index: usize) -> Result<usize, files::Error> {
+        let f = self.files.get(id).ok_or(files::Error::FileMissing)?;
+        Ok(f.line_starts.binary_search(&byte_index).unwrap_or_else(|next| next - 1))
+    }
+
+    fn line_range(&'a self, id: usize, line_index: usize) -> Result<Range<usize>, files::Error> {
+        let f = self.files.get(id).ok_or(files::Error::FileMissing)?;
+        let start = |i: usize| match i.cmp(&f.line_starts.len()) {
+            std::cmp::Ordering::Less => Ok(f.line_starts[i]),
+            std::cmp::Ordering::Equal => Ok(f.text.len()),
+            std::cmp::Ordering::Greater => Err(files::Error::LineTooLarge {
+                given: i,
+                max: f.line_starts.len() - 1,
+            }),
+        };
+        Ok(start(line_index)?..start(line_index + 1)?)
     }
 }
 
@@ -276,11 +316,6 @@ impl Diagnostic {
     }
 
     fn emit(&self, sources: &SourceMap, out: &mut dyn WriteColor) {
-        let mut files = SimpleFiles::new();
-        let mut ids = Vec::new();
-        for f in sources.files() {
-            ids.push(files.add(f.name.clone(), f.text.clone()));
-        }
         let mut d = match self.severity {
             Severity::Error => CsDiagnostic::error(),
             Severity::Warning => CsDiagnostic::warning(),
@@ -289,17 +324,19 @@ impl Diagnostic {
         .with_message(&self.message);
         let mut labels = Vec::new();
         if let Some(sp) = self.span {
-            labels.push(Label::primary(ids[sp.file.0 as usize], sp.range()).with_message(&self.label));
+            labels.push(Label::primary(sp.file.0 as usize, sp.range()).with_message(&self.label));
         }
         for (sp, text) in &self.secondary {
-            labels.push(Label::secondary(ids[sp.file.0 as usize], sp.range()).with_message(text));
+            labels.push(Label::secondary(sp.file.0 as usize, sp.range()).with_message(text));
         }
         d = d.with_labels(labels);
         if let Some(h) = &self.hint {
             d = d.with_notes(vec![format!("hint: {h}")]);
         }
         let config = term::Config::default();
-        let _ = term::emit_to_write_style(out, &config, &files, &d);
+        // The source map itself is the file database: no copy of the
+        // sheet's text per message, however big the sheet.
+        let _ = term::emit_to_write_style(out, &config, sources, &d);
     }
 
     /// Render to stderr, in colour when stderr is a terminal.

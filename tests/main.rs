@@ -24,6 +24,7 @@ mod readme;
 mod reference;
 mod report;
 mod report_browser;
+mod scale_sheet;
 mod search_sheet;
 mod session_pty;
 mod sweep;

@@ -76,6 +76,8 @@ pub struct Engine {
     /// Cells re-evaluated by the last update (for tests and benchmarks).
     pub last_recomputed: Vec<CellId>,
     pub(super) queued: Vec<bool>,
+    /// The dirty queue, by rank; kept between updates to save allocating.
+    heap: BinaryHeap<Reverse<(u32, CellId)>>,
 }
 
 impl Engine {
@@ -88,6 +90,7 @@ impl Engine {
             slots,
             last_recomputed: Vec::new(),
             queued: vec![false; n],
+            heap: BinaryHeap::new(),
         }
     }
 
@@ -129,43 +132,40 @@ impl Engine {
 
     pub(super) fn propagate(&mut self, from: CellId, changes: &mut Vec<Change>) {
         let m = &self.model;
-        let mut heap: BinaryHeap<Reverse<(u32, CellId)>> = BinaryHeap::new();
-        for &d in &m.dependents[from as usize] {
-            if m.rank[d as usize] != u32::MAX && !self.queued[d as usize] {
-                self.queued[d as usize] = true;
-                heap.push(Reverse((m.rank[d as usize], d)));
-            }
-        }
+        let heap = &mut self.heap;
+        heap.clear();
+        enqueue(m, &mut self.queued, heap, from);
+        let same = |a: &C64, b: &C64| a.re.to_bits() == b.re.to_bits() && a.im.to_bits() == b.im.to_bits();
         while let Some(Reverse((_, id))) = heap.pop() {
             self.queued[id as usize] = false;
             self.last_recomputed.push(id);
             let c = &m.cells[id as usize];
             let range = c.slot as usize..(c.slot + c.width) as usize;
-            let before: Vec<C64> = self.slots[range.clone()].to_vec();
+            // The old value, on the stack for the usual single slot.
+            let mut small = [C64::new(0.0, 0.0); 4];
+            let big;
+            let before: &[C64] = if range.len() <= small.len() {
+                small[..range.len()].copy_from_slice(&self.slots[range.clone()]);
+                &small[..range.len()]
+            } else {
+                big = self.slots[range.clone()].to_vec();
+                &big
+            };
             run(
                 &m.program.code[c.code.start as usize..c.code.end as usize],
                 &m.program,
                 &mut self.slots,
             );
             let after = &self.slots[range];
-            let same = before
-                .iter()
-                .zip(after)
-                .all(|(a, b)| a.re.to_bits() == b.re.to_bits() && a.im.to_bits() == b.im.to_bits());
-            if same {
+            if before.iter().zip(after).all(|(a, b)| same(a, b)) {
                 continue;
             }
             changes.push(Change {
                 cell: id,
-                old: before,
+                old: before.to_vec(),
                 new: after.to_vec(),
             });
-            for &d in &m.dependents[id as usize] {
-                if m.rank[d as usize] != u32::MAX && !self.queued[d as usize] {
-                    self.queued[d as usize] = true;
-                    heap.push(Reverse((m.rank[d as usize], d)));
-                }
-            }
+            enqueue(m, &mut self.queued, heap, id);
         }
     }
 
@@ -179,6 +179,16 @@ impl Engine {
             .copied()
             .filter(|&id| is_nan(id) && !self.model.cells[id as usize].deps.iter().any(|&d| is_nan(d)))
             .collect()
+    }
+}
+
+/// Queue the dependents of `of` that are not queued yet, by rank.
+fn enqueue(m: &Model, queued: &mut [bool], heap: &mut BinaryHeap<Reverse<(u32, CellId)>>, of: CellId) {
+    for &d in &m.dependents[of as usize] {
+        if m.rank[d as usize] != u32::MAX && !queued[d as usize] {
+            queued[d as usize] = true;
+            heap.push(Reverse((m.rank[d as usize], d)));
+        }
     }
 }
 

@@ -26,6 +26,10 @@ mod lower_search;
 
 pub type CellId = u32;
 
+/// Cell names to ids. A fast non-cryptographic hash: the names come from
+/// the user's own sheet, and a 100,000-cell sheet looks each up twice.
+pub type NameMap = HashMap<String, CellId, rustc_hash::FxBuildHasher>;
+
 /// Names that cannot be cells.
 pub const RESERVED: &[&str] = &["j", "pi", "check"];
 
@@ -144,7 +148,7 @@ pub struct Model {
     pub rank: Vec<u32>,
     /// For each cell, the cells that use it directly.
     pub dependents: Vec<Vec<CellId>>,
-    pub by_name: HashMap<String, CellId>,
+    pub by_name: NameMap,
     pub program: Program,
     pub meta: Meta,
     pub ctx: Ctx,
@@ -206,7 +210,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     let mut diags = sheet.errors.clone();
     let mut cells: Vec<Cell> = Vec::new();
     let mut pending: Vec<Pending> = Vec::new();
-    let mut by_name: HashMap<String, CellId> = HashMap::new();
+    let mut by_name = NameMap::default();
     let mut meta = Meta::default();
     let mut ctx = Ctx::default();
     let mut amplitude_seen: Option<Span> = None;
@@ -365,13 +369,17 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     let mut max_temps = 0u32;
     let pending_searches = std::cell::RefCell::new(Vec::new());
     let mut order = Vec::with_capacity(n);
+    // Which cells have an error, packed: checking a cell's dependencies
+    // here then costs no cache miss per dependency on a big sheet.
+    let mut failed: Vec<bool> = cells.iter().map(|c| c.error.is_some()).collect();
     for &id in &topo {
         let i = id as usize;
-        if cells[i].error.is_some() {
+        if failed[i] {
             continue;
         }
-        if let Some(&bad) = cells[i].deps.iter().find(|&&d| cells[d as usize].error.is_some()) {
+        if let Some(&bad) = cells[i].deps.iter().find(|&&d| failed[d as usize]) {
             cells[i].error = Some(CellError::Upstream(bad));
+            failed[i] = true;
             continue;
         }
         let start = code.len() as u32;
@@ -403,6 +411,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
             Err(d) => {
                 code.truncate(start as usize);
                 cells[i].error = Some(CellError::Own);
+                failed[i] = true;
                 diags.push(d);
             }
             Ok(val) => {
@@ -571,7 +580,7 @@ fn place_result(cell: &mut Cell, val: Val, slots: &mut SlotSpace, code: &mut Vec
 }
 
 /// Every `@note` must name a cell of the sheet.
-fn check_note_targets(meta: &Meta, by_name: &HashMap<String, CellId>, diags: &mut Vec<Diagnostic>) {
+fn check_note_targets(meta: &Meta, by_name: &NameMap, diags: &mut Vec<Diagnostic>) {
     for n in &meta.notes {
         let Some(cell) = &n.cell else { continue };
         if by_name.contains_key(cell) {
@@ -734,8 +743,18 @@ fn report_cycles(cells: &mut [Cell], topo: &[CellId], diags: &mut Vec<Diagnostic
             if state[cur] == 1 {
                 let at = path.iter().position(|&p| p == cur).unwrap_or(0);
                 let cyc: Vec<usize> = path[at..].to_vec();
-                let mut names: Vec<&str> = cyc.iter().map(|&c| cells[c].name.as_str()).collect();
-                names.push(&cells[cur].name);
+                // A long loop is named by its first and last few cells.
+                const SHOWN: usize = 8;
+                let name = |c: usize| cells[c].name.as_str();
+                let mut names: Vec<String> = Vec::new();
+                if cyc.len() <= 2 * SHOWN {
+                    names.extend(cyc.iter().map(|&c| name(c).to_string()));
+                } else {
+                    names.extend(cyc[..SHOWN].iter().map(|&c| name(c).to_string()));
+                    names.push(format!("… {} more …", cyc.len() - 2 * SHOWN));
+                    names.extend(cyc[cyc.len() - SHOWN..].iter().map(|&c| name(c).to_string()));
+                }
+                names.push(cells[cur].name.clone());
                 let first = cyc[0];
                 let mut d = Diagnostic::error(
                     ErrorCode::Cycle,
@@ -743,7 +762,7 @@ fn report_cycles(cells: &mut [Cell], topo: &[CellId], diags: &mut Vec<Diagnostic
                     format!("circular definition: {}", names.join(" → ")),
                 )
                 .with_label(format!("`{}` depends on itself through this loop", cells[first].name));
-                for &c in &cyc[1..] {
+                for &c in cyc[1..].iter().take(SHOWN) {
                     let line = sources.line_of(cells[c].name_span);
                     d = d.with_secondary(
                         cells[c].name_span,
@@ -790,7 +809,7 @@ fn report_cycles(cells: &mut [Cell], topo: &[CellId], diags: &mut Vec<Diagnostic
 
 pub(super) struct Lowerer<'a> {
     pub(super) cells: &'a [Cell],
-    pub(super) by_name: &'a HashMap<String, CellId>,
+    pub(super) by_name: &'a NameMap,
     pub(super) sources: &'a SourceMap,
     pub(super) ctx: Ctx,
     /// The cell being lowered, and the searches met so far.
