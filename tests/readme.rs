@@ -1,6 +1,6 @@
 //! The README's sheet examples are real sheets: each untagged (or `ohm`)
 //! fenced block that defines cells must compile and its checks pass.
-//! Blocks tagged `text` are transcripts, not sheets.
+//! Blocks tagged `text` show terminal output, not sheets.
 
 use crate::common::{engine, repo};
 
