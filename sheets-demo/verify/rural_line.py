@@ -5,18 +5,7 @@ the sheet's `check` lines record. The scenario and numbers are invented."""
 import cmath
 import math
 
-J = 1j
-SQ3 = math.sqrt(3)
-
-
-def tanphi(pf):
-    """tan φ of a signed power factor (+ lagging, − leading)."""
-    t = math.sqrt(1 - pf * pf) / abs(pf)
-    return t if pf > 0 else -t
-
-
-def par(*zs):
-    return 1 / sum(1 / z for z in zs)
+from formulas import J, SQ3, par, tanphi  # noqa: F401
 
 
 def rural_line():
