@@ -13,7 +13,8 @@
 //! element), the generators keep to the region where it is well posed and
 //! the comment says why.
 //!
-//! Case counts are small so the whole module runs in a few seconds.
+//! Case counts are small so the whole module runs in a few seconds; set
+//! PROPTEST_CASES to run more (`PROPTEST_CASES=5000 cargo test properties`).
 
 use num_complex::Complex64 as C64;
 use proptest::prelude::*;
@@ -29,7 +30,10 @@ const CASES: u32 = 128;
 
 fn cfg() -> ProptestConfig {
     ProptestConfig {
-        cases: CASES,
+        cases: std::env::var("PROPTEST_CASES")
+            .ok()
+            .and_then(|s| s.parse().ok())
+            .unwrap_or(CASES),
         failure_persistence: None,
         ..ProptestConfig::default()
     }
@@ -203,8 +207,10 @@ proptest! {
     }
 }
 
-/// Quantities whose printed unit the language reads back, with a unit to
-/// write test values in.
+/// Quantities whose printed unit the language reads back. Left out: a
+/// dimension with no unit of its own prints in base units with
+/// superscripts (`kg·m²·s⁻³`, `s⁻¹`), which the unit parser does not read
+/// (it takes `m^2`, `s^-1`) — a known gap, not a wrong number.
 const PRINTABLE: &[(Dim, Kind)] = &[
     (Dim::IMPEDANCE, Kind::Plain),
     (Dim::ADMITTANCE, Kind::Plain),
