@@ -207,10 +207,9 @@ proptest! {
     }
 }
 
-/// Quantities whose printed unit the language reads back. Left out: a
-/// dimension with no unit of its own prints in base units with
-/// superscripts (`kg·m²·s⁻³`, `s⁻¹`), which the unit parser does not read
-/// (it takes `m^2`, `s^-1`) — a known gap, not a wrong number.
+/// Quantities with a unit of their own, and three without one, which
+/// print in base units with superscripts (`s⁻¹`, `m·s⁻¹`,
+/// `kg²·m⁴·s⁻⁶·A⁻²`) and must read back too.
 const PRINTABLE: &[(Dim, Kind)] = &[
     (Dim::IMPEDANCE, Kind::Plain),
     (Dim::ADMITTANCE, Kind::Plain),
@@ -227,6 +226,9 @@ const PRINTABLE: &[(Dim, Kind)] = &[
     (Dim::NONE, Kind::PerUnit),
     (Dim::TIME, Kind::Plain),
     (Dim::CHARGE, Kind::Plain),
+    (Dim::FREQUENCY, Kind::Plain),
+    (Dim([1, 0, -1, 0]), Kind::Plain),
+    (Dim([4, 2, -6, -2]), Kind::Plain),
 ];
 
 /// Bound on the error of a part printed with `digits` significant digits:

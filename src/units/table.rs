@@ -292,6 +292,37 @@ fn unknown(word: &str) -> UnitError {
     }
 }
 
+/// `V^2` → (`V`, 2); `s⁻¹` → (`s`, -1), the superscript form ohmsheet
+/// prints; `Ω` → (`Ω`, 1). Powers are whole numbers from -9 to 9, not 0.
+fn split_power(item: &str) -> Result<(&str, i32), UnitError> {
+    const SUP: [char; 10] = ['⁰', '¹', '²', '³', '⁴', '⁵', '⁶', '⁷', '⁸', '⁹'];
+    let bad = || UnitError::Exponent(item.to_string());
+    let (word, n) = if let Some((w, p)) = item.split_once('^') {
+        (w, p.parse::<i32>().map_err(|_| bad())?)
+    } else if let Some(at) = item.find(|c: char| c == '⁻' || SUP.contains(&c)) {
+        let (w, p) = item.split_at(at);
+        let (neg, digits) = match p.strip_prefix('⁻') {
+            Some(d) => (true, d),
+            None => (false, p),
+        };
+        let mut n: i32 = 0;
+        for c in digits.chars() {
+            let d = SUP.iter().position(|&s| s == c).ok_or_else(bad)? as i32;
+            n = n.checked_mul(10).and_then(|n| n.checked_add(d)).ok_or_else(bad)?;
+        }
+        if digits.is_empty() {
+            return Err(bad());
+        }
+        (w, if neg { -n } else { n })
+    } else {
+        (item, 1)
+    };
+    if n == 0 || n.abs() > 9 {
+        return Err(bad());
+    }
+    Ok((word, n))
+}
+
 /// Parse a unit expression as written after a number or inside `[ ]`:
 /// factors joined by `*`, `·` or `/`, each with an optional integer power.
 /// Everything after the first `/` is in the denominator (`W/m/s` is W/(m·s)).
@@ -307,16 +338,7 @@ pub fn parse_unit_expr(text: &str) -> Result<Unit, UnitError> {
     loop {
         let end = rest.find(['*', '/', '·']).unwrap_or(rest.len());
         let item = &rest[..end];
-        let (word, power) = match item.split_once('^') {
-            Some((w, p)) => {
-                let n: i32 = p.parse().map_err(|_| UnitError::Exponent(item.to_string()))?;
-                if n == 0 || n.abs() > 9 {
-                    return Err(UnitError::Exponent(item.to_string()));
-                }
-                (w, n)
-            }
-            None => (item, 1),
-        };
+        let (word, power) = split_power(item)?;
         let u = lookup_unit(word)?;
         let p = if denominator { -power } else { power };
         factor *= u.factor.powi(p);
@@ -394,6 +416,20 @@ mod tests {
         assert!(close(u.factor, 1e-6));
         let u = parse_unit_expr("V*A").unwrap();
         assert_eq!(u.q.dim, Dim::POWER);
+    }
+
+    // The form ohmsheet prints a dimension without a unit of its own in
+    // reads back: kg·m²·s⁻³·A⁻¹ is the volt (SI Brochure, 9th ed., Table 4).
+    #[test]
+    fn superscript_powers() {
+        let u = parse_unit_expr("kg·m²·s⁻³·A⁻¹").unwrap();
+        assert_eq!(u.q.dim, Dim::VOLTAGE);
+        assert!(close(u.factor, 1.0));
+        assert_eq!(parse_unit_expr("s⁻¹").unwrap().q.dim, Dim::FREQUENCY);
+        assert_eq!(parse_unit_expr("mm²").unwrap().factor, parse_unit_expr("mm^2").unwrap().factor);
+        for bad in ["s⁻", "s⁰", "s¹⁰", "s²x"] {
+            assert!(parse_unit_expr(bad).is_err(), "{bad}");
+        }
     }
 
     #[test]
