@@ -426,7 +426,10 @@ mod tests {
         assert_eq!(u.q.dim, Dim::VOLTAGE);
         assert!(close(u.factor, 1.0));
         assert_eq!(parse_unit_expr("s⁻¹").unwrap().q.dim, Dim::FREQUENCY);
-        assert_eq!(parse_unit_expr("mm²").unwrap().factor, parse_unit_expr("mm^2").unwrap().factor);
+        assert_eq!(
+            parse_unit_expr("mm²").unwrap().factor,
+            parse_unit_expr("mm^2").unwrap().factor
+        );
         for bad in ["s⁻", "s⁰", "s¹⁰", "s²x"] {
             assert!(parse_unit_expr(bad).is_err(), "{bad}");
         }
