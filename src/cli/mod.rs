@@ -98,7 +98,7 @@ impl LoadArgs {
 #[derive(Args, Debug)]
 #[command(
     after_help = "Each column of the cases table names an input of the sheet; its header may give \
-the unit of plain numbers (`Vll [kV]`), or the values carry their own (`13.8 kV`, `6+j10 Ω`).\n\
+the unit of plain numbers (`Vll [kV]`), or the values carry their own (`13.8 kV`, `(6+j10) Ω`).\n\
 Rows that cannot be computed are listed in RESULTS.errors.csv and left empty in the results.\n\
 Exit status: 0 every row computed, 1 some rows bad, 2 nothing written."
 )]
