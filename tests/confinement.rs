@@ -236,3 +236,46 @@ fn no_function_reaches_the_system() {
     names.sort();
     assert_eq!(names, ["lib", "main.ohm"]);
 }
+
+/// A sheet from someone else cannot put markup into an HTML report: every
+/// string it controls (directives, notes, comments, sweep titles) is
+/// escaped, so opening the report runs nothing.
+#[test]
+fn report_html_escapes_what_the_sheet_says() {
+    let d = tempfile::tempdir().unwrap();
+    let sheet = d.path().join("x.ohm");
+    std::fs::write(
+        &sheet,
+        "@title \"<script>alert(1)</script> T\"\n\
+         @project \"<img src=x onerror=alert(2)>\"\n\
+         @note I \"<script>alert(3)</script>\"\n\
+         V = 230 V   # <script>alert(4)</script> <a href=\"javascript:alert(6)\">x</a>\n\
+         C = 100 µF\n\
+         I = V * 377 rad/s * C\n\
+         @sweep \"<script>alert(5)</script>\" C = 10 µF .. 100 µF, 11 points : I\n",
+    )
+    .unwrap();
+    let out = d.path().join("x.html");
+    ohmsheet()
+        .args([
+            "report",
+            sheet.to_str().unwrap(),
+            "--format",
+            "html",
+            "-o",
+            out.to_str().unwrap(),
+        ])
+        .assert()
+        .code(0);
+    let html = std::fs::read_to_string(&out).unwrap();
+    for n in 1..=6 {
+        assert!(
+            html.contains(&format!("alert({n})")),
+            "alert({n}) should be shown as text"
+        );
+    }
+    let lower = html.to_lowercase();
+    for markup in ["<script", "<img", "<a href"] {
+        assert!(!lower.contains(markup), "the report contains `{markup}`");
+    }
+}
