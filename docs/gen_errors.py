@@ -82,6 +82,11 @@ ENTRIES = [
     ("bad-search", "A search that cannot be set up: an expression that does not depend on the varied "
      "input, a range or target value that changes with it, or (`ohmsheet solve`) a target without `=`.",
      "C = 1 mF\nK = 5\nc = C in 0 .. 2 mF where K = 3\n", None),
+    ("control-character", "A control character (ESC, NUL, U+009B …) or an invisible bidirectional control "
+     "(U+202A–U+202E, U+2066–U+2069) in a sheet: it could drive the terminal the sheet is shown on, or make a "
+     "formula display differently from how it computes. Tabs and line ends are fine.", None,
+     "A sheet line `x = 1 # ` followed by the byte 0x1B (ESC), or a comment holding U+202E. Messages that quote "
+     "such text show `?` in its place."),
     ("io", "The file cannot be read or written.", None, "`ohmsheet run missing.ohm`."),
 ]
 

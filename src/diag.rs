@@ -236,7 +236,79 @@ error_codes! {
     TooManyPoints => "too-many-points",
     SearchFailed => "search-failed",
     BadSearch => "bad-search",
+    ControlCharacter => "control-character",
     Io => "io",
+}
+
+/// Whether a character may not reach a terminal or be hidden in a sheet:
+/// C0 controls other than tab and newline, DEL, C1 controls (U+0080 to
+/// U+009F; U+009B starts a control sequence like ESC [), and the
+/// bidirectional overrides and isolates that make text display in another
+/// order than it is read (Unicode TR9; the "Trojan Source" attack,
+/// CVE-2021-42574).
+pub fn is_unsafe_char(c: char) -> bool {
+    (c < ' ' && c != '\t' && c != '\n')
+        || ('\u{7f}'..='\u{9f}').contains(&c)
+        || ('\u{202a}'..='\u{202e}').contains(&c)
+        || ('\u{2066}'..='\u{2069}').contains(&c)
+}
+
+/// `s` with every unsafe character (see `is_unsafe_char`) replaced by as
+/// many `?` as it has bytes, so byte offsets into it stay valid.
+pub fn terminal_safe(s: &str) -> std::borrow::Cow<'_, str> {
+    if !s.chars().any(is_unsafe_char) {
+        return std::borrow::Cow::Borrowed(s);
+    }
+    let mut out = String::with_capacity(s.len());
+    for c in s.chars() {
+        if is_unsafe_char(c) {
+            out.extend(std::iter::repeat_n('?', c.len_utf8()));
+        } else {
+            out.push(c);
+        }
+    }
+    std::borrow::Cow::Owned(out)
+}
+
+/// A writer that passes colour changes through and filters text with
+/// `terminal_safe`.
+struct SafeText<'a>(&'a mut dyn WriteColor);
+
+impl std::io::Write for SafeText<'_> {
+    fn write(&mut self, buf: &[u8]) -> std::io::Result<usize> {
+        match std::str::from_utf8(buf) {
+            Ok(s) => self.0.write_all(terminal_safe(s).as_bytes())?,
+            Err(_) => {
+                let b: Vec<u8> = buf
+                    .iter()
+                    .map(|&b| {
+                        if (b < b' ' && b != b'\t' && b != b'\n') || b == 0x7f {
+                            b'?'
+                        } else {
+                            b
+                        }
+                    })
+                    .collect();
+                self.0.write_all(&b)?
+            }
+        }
+        Ok(buf.len())
+    }
+    fn flush(&mut self) -> std::io::Result<()> {
+        self.0.flush()
+    }
+}
+
+impl WriteColor for SafeText<'_> {
+    fn supports_color(&self) -> bool {
+        self.0.supports_color()
+    }
+    fn set_color(&mut self, spec: &codespan_reporting::term::termcolor::ColorSpec) -> std::io::Result<()> {
+        self.0.set_color(spec)
+    }
+    fn reset(&mut self) -> std::io::Result<()> {
+        self.0.reset()
+    }
 }
 
 /// A message about a place in the source.
@@ -316,6 +388,13 @@ impl Diagnostic {
     }
 
     fn emit(&self, sources: &SourceMap, out: &mut dyn WriteColor) {
+        // Whatever a message quotes from a file goes through a filter, so a
+        // sheet cannot send control sequences to the user's terminal.
+        let mut out = SafeText(out);
+        self.emit_raw(sources, &mut out);
+    }
+
+    fn emit_raw(&self, sources: &SourceMap, out: &mut dyn WriteColor) {
         let mut d = match self.severity {
             Severity::Error => CsDiagnostic::error(),
             Severity::Warning => CsDiagnostic::warning(),

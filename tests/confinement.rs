@@ -279,3 +279,61 @@ fn report_html_escapes_what_the_sheet_says() {
         assert!(!lower.contains(markup), "the report contains `{markup}`");
     }
 }
+
+/// Nothing a sheet or a cases table holds reaches the terminal as a
+/// control sequence: a sheet with one is refused, and every message that
+/// quotes it shows `?` instead. (ESC ] … BEL sets a terminal's title; other
+/// sequences clear the screen, move the cursor or, on some terminals,
+/// write the clipboard.)
+#[test]
+fn no_control_sequences_reach_the_terminal() {
+    let d = tempfile::tempdir().unwrap();
+    let sheet = d.path().join("t.ohm");
+    std::fs::write(
+        &sheet,
+        "V = 230 V # \x1b]0;owned\x07\x1b[2J\nZ = 5 Ω\nI = V / Z \u{9b}31m\n@amplitude \x1b[5m\n",
+    )
+    .unwrap();
+    let a = ohmsheet().args(["run", sheet.to_str().unwrap()]).assert().code(2);
+    let out = a.get_output();
+    for stream in [&out.stdout, &out.stderr] {
+        let text = String::from_utf8_lossy(stream);
+        assert!(
+            !text.chars().any(ohmsheet::diag::is_unsafe_char),
+            "a control character reached the output:\n{text:?}"
+        );
+    }
+    assert!(String::from_utf8_lossy(&out.stderr).contains("error[control-character]"));
+
+    // A cases table's bad values are quoted on stderr, filtered too.
+    std::fs::write(&sheet, "V = 230 V\nZ = 5 Ω\nI = V / Z\n").unwrap();
+    let cases = d.path().join("c.csv");
+    std::fs::write(&cases, "V\n\x1b]0;owned\x07 V\n\u{202e}1 V\n").unwrap();
+    let res = d.path().join("r.csv");
+    let a = ohmsheet()
+        .args([
+            "batch",
+            sheet.to_str().unwrap(),
+            "--cases",
+            cases.to_str().unwrap(),
+            "--out",
+            res.to_str().unwrap(),
+        ])
+        .assert()
+        .code(1);
+    let err = String::from_utf8_lossy(&a.get_output().stderr).into_owned();
+    assert!(err.contains("case 1"), "{err}");
+    assert!(!err.chars().any(ohmsheet::diag::is_unsafe_char), "{err:?}");
+}
+
+/// The filter itself: unsafe characters become `?`, one per byte, so
+/// offsets into the text stay valid; ordinary text is untouched.
+#[test]
+fn terminal_safe_keeps_offsets() {
+    use ohmsheet::diag::terminal_safe;
+    assert_eq!(terminal_safe("Z = 5 Ω\t# µF ∠ 30°"), "Z = 5 Ω\t# µF ∠ 30°");
+    let s = "a\x1bb\u{9b}c\u{202e}d";
+    let t = terminal_safe(s);
+    assert_eq!(t, "a?b??c???d");
+    assert_eq!(t.len(), s.len());
+}

@@ -139,3 +139,13 @@ fn include_cycle_and_name_clash() {
         .code(2)
         .stderr(predicate::str::contains("error[name-clash]"));
 }
+
+#[test]
+fn control_character() {
+    // ESC in a comment, and U+202E (right-to-left override) in a formula
+    for bytes in [&b"x = 1 # \x1b[2J\n"[..], "y = 2 \u{202E} + 1\n".as_bytes()] {
+        run_sheet_bytes(bytes)
+            .code(2)
+            .stderr(predicate::str::contains("error[control-character]"));
+    }
+}

@@ -119,6 +119,8 @@ pub fn batch(a: &BatchArgs) -> i32 {
                     format!(" column `{}`:", e.column)
                 };
                 let msg = format!("{cases_name}:{}: case {}:{col} {}", e.line, e.case, e.reason);
+                // the value quoted comes from the cases file: no control sequences to the terminal
+                let msg = crate::diag::terminal_safe(&msg).into_owned();
                 match &bar {
                     Some(b) => b.suspend(|| eprintln!("{msg}")),
                     None => eprintln!("{msg}"),

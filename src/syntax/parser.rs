@@ -100,6 +100,28 @@ pub fn parse_line(line: &str, file: FileId, offset: usize, line_no: u32) -> Resu
         .with_label("too long from here")
         .with_hint("split the formula into several named cells"));
     }
+    if let Some((i, c)) = line.char_indices().find(|&(_, c)| crate::diag::is_unsafe_char(c)) {
+        let bidi = c > '\u{9f}';
+        return Err(Diagnostic::error(
+            ErrorCode::ControlCharacter,
+            sp(i, i + c.len_utf8()),
+            format!(
+                "{} U+{:04X} in the sheet",
+                if bidi {
+                    "invisible bidirectional control"
+                } else {
+                    "control character"
+                },
+                c as u32
+            ),
+        )
+        .with_label(if bidi {
+            "it makes the line display in another order than it is read"
+        } else {
+            "not plain text"
+        })
+        .with_hint("sheets are plain text: delete the character (an editor that shows invisible characters helps)"));
+    }
     bracket_scan(line, file, offset)?;
     let pairs = match SheetGrammar::parse(Rule::line, line) {
         Ok(p) => p,
