@@ -170,3 +170,43 @@ fn sweep_results_survive_sigkill() {
     assert!(old > 0, "no run was killed before it finished writing");
     only_hidden_leftovers(d.path(), &["s.ohm", "sweep.csv"]);
 }
+
+/// Every file the tool writes goes through `fsutil` (temporary file,
+/// fsync, rename, fsync of the folder): nothing in src/ outside fsutil.rs
+/// creates or truncates a file itself. The session journal is the one
+/// exception by design: it is appended to, line by line, and its reader
+/// stops at a torn last line.
+#[test]
+fn all_writes_go_through_fsutil() {
+    fn walk(dir: &Path, out: &mut Vec<PathBuf>) {
+        for e in std::fs::read_dir(dir).unwrap() {
+            let p = e.unwrap().path();
+            if p.is_dir() {
+                walk(&p, out);
+            } else if p.extension().is_some_and(|x| x == "rs") {
+                out.push(p);
+            }
+        }
+    }
+    let src = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("src");
+    let mut files = Vec::new();
+    walk(&src, &mut files);
+    let allowed = [src.join("fsutil.rs"), src.join("session/journal.rs")];
+    let mut bad = Vec::new();
+    for f in files.iter().filter(|f| !allowed.contains(f)) {
+        let text = std::fs::read_to_string(f).unwrap();
+        for (i, line) in text.lines().enumerate() {
+            if line.trim_start().starts_with("#[cfg(test)]") {
+                break;
+            }
+            let code = line.split("//").next().unwrap_or("").replace("AtomicFile::create", "");
+            for w in ["fs::write", "File::create", "OpenOptions", "fs::copy", "fs::rename", "NamedTempFile"] {
+                if code.contains(w) {
+                    bad.push(format!("{}:{}: {w}", f.display(), i + 1));
+                }
+            }
+        }
+    }
+    assert!(bad.is_empty(), "write through fsutil::AtomicFile or write_atomic:\n{}", bad.join("\n"));
+    assert!(files.len() > 20);
+}
