@@ -200,13 +200,24 @@ fn all_writes_go_through_fsutil() {
                 break;
             }
             let code = line.split("//").next().unwrap_or("").replace("AtomicFile::create", "");
-            for w in ["fs::write", "File::create", "OpenOptions", "fs::copy", "fs::rename", "NamedTempFile"] {
+            for w in [
+                "fs::write",
+                "File::create",
+                "OpenOptions",
+                "fs::copy",
+                "fs::rename",
+                "NamedTempFile",
+            ] {
                 if code.contains(w) {
                     bad.push(format!("{}:{}: {w}", f.display(), i + 1));
                 }
             }
         }
     }
-    assert!(bad.is_empty(), "write through fsutil::AtomicFile or write_atomic:\n{}", bad.join("\n"));
+    assert!(
+        bad.is_empty(),
+        "write through fsutil::AtomicFile or write_atomic:\n{}",
+        bad.join("\n")
+    );
     assert!(files.len() > 20);
 }
