@@ -159,15 +159,7 @@ fn l_parts(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
 }
 
 pub fn funcs() -> Vec<Builtin> {
-    let f = |name, summary, params, returns, ty: TypeFn, lower: LowerFn| Builtin {
-        name,
-        summary,
-        params,
-        variadic: false,
-        returns,
-        ty,
-        imp: Impl::Lower(lower),
-    };
+    let f = lowered;
     vec![
         f("re", "real part (of a power: P, in W)", Z, "as z", re_type, l_re),
         f("im", "imaginary part (of a power: Q, in var)", Z, "as z", im_type, l_im),
