@@ -92,6 +92,13 @@ impl Cell {
             _ => None,
         }
     }
+    /// For a check: the quantity of the values it compares.
+    pub fn checked_quantity(&self) -> Quantity {
+        match &self.shape {
+            Some(Shape::Record(f)) if self.role == Role::Check => f[0].1,
+            _ => Quantity::PLAIN,
+        }
+    }
     pub fn is_check(&self) -> bool {
         self.role == Role::Check
     }

@@ -149,10 +149,7 @@ pub fn check_rows(engine: &Engine, style: Style) -> Vec<CheckRow> {
             continue;
         }
         let r = check_result(m, id, engine.values(id));
-        let q = match &c.shape {
-            Some(Shape::Record(f)) => f[0].1,
-            _ => Quantity::PLAIN,
-        };
+        let q = c.checked_quantity();
         let show = |z: C64| format_value(z, q, c.display.as_ref(), style).rect;
         rows.push(CheckRow {
             expr: c.formula.clone(),

@@ -326,10 +326,7 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
             continue;
         }
         let r = check_result(m, id, engine.values(id));
-        let q = match &c.shape {
-            Some(Shape::Record(f)) => f[0].1,
-            _ => Quantity::PLAIN,
-        };
+        let q = c.checked_quantity();
         // Shown in the unit the sheet chose for the value checked: the
         // display unit of a cell checked by name, else the unit written on
         // the reference value (`2.3 %`).
