@@ -5,7 +5,8 @@
     in memory, and `ohmsheet batch` end-to-end from a cases CSV to a results
     CSV;
   * the same formulas written by hand in Rust, one case at a time and in
-    blocks the compiler vectorises (benches/feeder.rs);
+    blocks the compiler vectorises (benches/feeder.rs), and end to end from
+    CSV to CSV (`feeder csv`: the practical limit for the batch command);
   * the same formulas in Python: a plain loop with cmath, and numpy.
 
 Both a portable build and a `-C target-cpu=native` build are measured.
@@ -130,7 +131,7 @@ def main():
         rows[("python_loop", "-", 1)] = r["ns_per_case"]
 
         # End to end, CSV to CSV, in turns.
-        e2e = {k: ([], []) for k in list(builds) + ["python"]}
+        e2e = {k: ([], []) for k in list(builds) + ["hand " + b for b in builds] + ["python"]}
         peak = {}
         results = os.path.join(work, "results.csv")
         for rep in range(args.repeats):
@@ -142,8 +143,19 @@ def main():
                 e2e[name][0].append(wall * 1e9 / args.cases)
                 e2e[name][1].append(cpu * 1e9 / args.cases)
                 peak[name] = max(peak.get(name, 0), rss)
-            if rep == 0:
-                subprocess.run([PY, os.path.join(BENCH, "feeder.py"), "check", cases, results, "2000"], check=True)
+                if rep == 0:
+                    subprocess.run([PY, os.path.join(BENCH, "feeder.py"), "check", cases, results, "2000"],
+                                   check=True)
+                # The same formulas by hand in Rust, end to end: the practical limit.
+                log(f"end to end, hand-written Rust ({name}), run {rep + 1}")
+                os.remove(results)
+                wall, cpu, rss = run_child([b["bench"], "csv", cases, results], stdout=subprocess.DEVNULL)
+                e2e["hand " + name][0].append(wall * 1e9 / args.cases)
+                e2e["hand " + name][1].append(cpu * 1e9 / args.cases)
+                peak["hand " + name] = max(peak.get("hand " + name, 0), rss)
+                if rep == 0:
+                    subprocess.run([PY, os.path.join(BENCH, "feeder.py"), "check", cases, results, "2000"],
+                                   check=True)
             log(f"end to end, Python loop, run {rep + 1}")
             pyout = os.path.join(work, "py.csv")
             r = json_lines(subprocess.run([PY, os.path.join(BENCH, "feeder.py"), "loop-csv", cases, pyout,
@@ -195,6 +207,9 @@ def main():
     for name in builds:
         w, c = med(e2e[name][0]), med(e2e[name][1])
         print(f"| ohmsheet batch ({name}) | {w:.0f} | {c:.0f} | {peak[name] / 1024:.0f} MiB | {pw / w:.0f}× faster |")
+        h = "hand " + name
+        w, c = med(e2e[h][0]), med(e2e[h][1])
+        print(f"| hand-written Rust ({name}) | {w:.0f} | {c:.0f} | {peak[h] / 1024:.0f} MiB | {pw / w:.0f}× faster |")
     print(f"| Python loop, csv module | {pw:.0f} | {med(e2e['python'][1]):.0f} | | 1× |")
     if big:
         rss_small, rss_big, wall, show = big

@@ -6,6 +6,14 @@
 //!   cargo bench --bench feeder -- [CASES] [REPEATS]
 //! Prints one JSON object per line: variant, threads, median ns per case.
 //!
+//!   cargo bench --bench feeder -- csv CASES.csv RESULTS.csv
+//! The same formulas written by hand end to end, as the practical limit for
+//! `ohmsheet batch`: the cases table read with the `csv` crate, each value
+//! read with `str::parse`, the 41 result numbers written with the same
+//! shortest round-trip writer (`zmij`) and in the same columns, a reader
+//! thread, the cases computed and formatted on all cores in chunks, and a
+//! writer thread keeping the input order. Prints wall and CPU time.
+//!
 //! Every variant reads the five case inputs from arrays and consumes every
 //! computed value (23 per case) by adding it to per-value accumulators, so
 //! nothing can be optimised away and no variant writes 1e6 × 23 values to
@@ -539,8 +547,169 @@ fn max_rel(a: &[C64], b: &[C64]) -> f64 {
         .fold(0.0, f64::max)
 }
 
+/// One result line per case: the case's fields as read, then every
+/// computed value (complex ones as real and imaginary parts), `%` values
+/// divided by 0.01 as ohmsheet shows them.
+fn hand_csv_rows(k: &K, rows: &[csv::ByteRecord], out: &mut Vec<u8>) {
+    // Column units to SI: kV, °, km, Ω, mH, µF.
+    const SCALE: [f64; 6] = [1e3, std::f64::consts::PI / 180.0, 1e3, 1.0, 1e-3, 1e-6];
+    let mut num = zmij::Buffer::new();
+    let mut push = |out: &mut Vec<u8>, x: f64| {
+        out.push(b',');
+        out.extend_from_slice(num.format(x).as_bytes());
+    };
+    for rec in rows {
+        let mut v = [0.0; 6];
+        for (j, f) in rec.iter().enumerate().take(6) {
+            let t = std::str::from_utf8(f).expect("UTF-8 case");
+            v[j] = t.trim().parse::<f64>().expect("a number") * SCALE[j];
+            if j > 0 {
+                out.push(b',');
+            }
+            out.extend_from_slice(f);
+        }
+        let r = hand_case(k, v[0], v[1], v[2], v[3], v[4], v[5]);
+        for (j, z) in r.iter().enumerate() {
+            // w, Qcap, Ploss, pf_src, pf_load, Vdrop, eff are real.
+            match j {
+                0 | 18..=21 => push(out, z.re),
+                22 | 23 => push(out, z.re / 0.01),
+                _ => {
+                    push(out, z.re);
+                    push(out, z.im);
+                }
+            }
+        }
+        out.push(b'\n');
+    }
+}
+
+/// The hand-written program end to end, CSV to CSV (see the top of the file).
+fn hand_csv(cases: &str, results: &str) {
+    use std::io::Write;
+    use std::sync::mpsc::sync_channel;
+    const ROWS: usize = 1024; // rows per task
+    const GROUP: usize = 16; // tasks read, computed and written together
+    let (t0, c0) = (Instant::now(), process_cpu_ns());
+    let k = constants();
+    let mut rdr = csv::ReaderBuilder::new()
+        .buffer_capacity(1 << 20)
+        .from_path(cases)
+        .expect("cases file");
+    let header = rdr.byte_headers().expect("header").clone();
+    let (rows_tx, rows_rx) = sync_channel::<Vec<Vec<csv::ByteRecord>>>(2);
+    let (out_tx, out_rx) = sync_channel::<Vec<Vec<u8>>>(2);
+    let reader = std::thread::spawn(move || loop {
+        let mut group = Vec::with_capacity(GROUP);
+        let mut eof = false;
+        while group.len() < GROUP && !eof {
+            let mut chunk = Vec::with_capacity(ROWS);
+            let mut rec = csv::ByteRecord::new();
+            while chunk.len() < ROWS {
+                if !rdr.read_byte_record(&mut rec).expect("cases row") {
+                    eof = true;
+                    break;
+                }
+                chunk.push(rec.clone());
+            }
+            if !chunk.is_empty() {
+                group.push(chunk);
+            }
+        }
+        if !group.is_empty() && rows_tx.send(group).is_err() {
+            return;
+        }
+        if eof {
+            return;
+        }
+    });
+    let file = std::fs::File::create(results).expect("results file");
+    let writer = std::thread::spawn(move || {
+        let mut w = std::io::BufWriter::with_capacity(1 << 20, file);
+        let mut names: Vec<String> = header.iter().map(|h| String::from_utf8_lossy(h).into_owned()).collect();
+        let outputs = [
+            ("w", "rad/s", true),
+            ("Vs", "V", false),
+            ("Zline", "Ω", false),
+            ("Zload", "Ω", false),
+            ("Zcap", "Ω", false),
+            ("Zshunt", "Ω", false),
+            ("Zmag", "Ω", false),
+            ("Zsec", "Ω", false),
+            ("Zbus", "Ω", false),
+            ("Ztot", "Ω", false),
+            ("I", "A", false),
+            ("Vbus", "V", false),
+            ("Isec", "A", false),
+            ("Vload", "V", false),
+            ("Iload", "A", false),
+            ("Icap", "A", false),
+            ("Ssrc", "VA", false),
+            ("Sload", "VA", false),
+            ("Qcap", "var", true),
+            ("Ploss", "W", true),
+            ("pf_src", "", true),
+            ("pf_load", "", true),
+            ("Vdrop", "%", true),
+            ("eff", "%", true),
+        ];
+        for (name, unit, real) in outputs {
+            let u = if unit.is_empty() {
+                String::new()
+            } else {
+                format!(" [{unit}]")
+            };
+            if real {
+                names.push(format!("{name}{u}"));
+            } else {
+                names.push(format!("{name}.re{u}"));
+                names.push(format!("{name}.im{u}"));
+            }
+        }
+        writeln!(w, "{}", names.join(",")).expect("write");
+        for group in out_rx {
+            for buf in group {
+                w.write_all(&buf).expect("write");
+            }
+        }
+        w.into_inner().expect("flush").sync_all().expect("sync");
+    });
+    for group in rows_rx {
+        let outs: Vec<Vec<u8>> = group
+            .par_iter()
+            .map(|rows| {
+                let mut out = Vec::with_capacity(rows.len() * 900);
+                hand_csv_rows(&k, rows, &mut out);
+                out
+            })
+            .collect();
+        out_tx.send(outs).expect("writer");
+    }
+    drop(out_tx);
+    reader.join().expect("reader");
+    writer.join().expect("writer");
+    let wall = t0.elapsed().as_secs_f64();
+    let cpu = process_cpu_ns().zip(c0).map_or(f64::NAN, |(b, a)| (b - a) / 1e9);
+    println!("{{\"variant\":\"hand_csv\",\"wall_s\":{wall:.4},\"cpu_s\":{cpu:.4}}}");
+}
+
+/// CPU time of the whole process, in ns.
+fn process_cpu_ns() -> Option<f64> {
+    let mut t = libc::timespec { tv_sec: 0, tv_nsec: 0 };
+    // SAFETY: clock_gettime writes the timespec it is given.
+    let r = unsafe { libc::clock_gettime(libc::CLOCK_PROCESS_CPUTIME_ID, &mut t) };
+    (r == 0).then_some(t.tv_sec as f64 * 1e9 + t.tv_nsec as f64)
+}
+
 fn main() {
     let args: Vec<String> = std::env::args().skip(1).filter(|a| !a.starts_with('-')).collect();
+    if args.first().map(String::as_str) == Some("csv") {
+        let (Some(cases), Some(results)) = (args.get(1), args.get(2)) else {
+            eprintln!("usage: feeder csv CASES.csv RESULTS.csv");
+            std::process::exit(2);
+        };
+        return hand_csv(cases, results);
+    }
     let n: usize = args.first().and_then(|a| a.parse().ok()).unwrap_or(1_000_000);
     let repeats: usize = args.get(1).and_then(|a| a.parse().ok()).unwrap_or(7);
     let inp = make_inputs(n);
