@@ -123,9 +123,11 @@ pub fn parse_line(line: &str, file: FileId, offset: usize, line_no: u32) -> Resu
         .with_hint("sheets are plain text: delete the character (an editor that shows invisible characters helps)"));
     }
     bracket_scan(line, file, offset)?;
-    let pairs = match SheetGrammar::parse(Rule::line, line) {
+    let comment_at = find_comment_start(line);
+    let code = &line[..comment_at.unwrap_or(line.len())];
+    let pairs = match SheetGrammar::parse(Rule::line, code) {
         Ok(p) => p,
-        Err(e) => return Err(syntax_error(line, e, file, offset)),
+        Err(e) => return Err(syntax_error(code, e, file, offset)),
     };
     let cx = Cx { file, offset, line };
     let line_pair = pairs.into_iter().next().expect("line rule");
@@ -134,7 +136,7 @@ pub fn parse_line(line: &str, file: FileId, offset: usize, line_no: u32) -> Resu
     };
     let span = cx.span(&stmt_pair);
     let kind = cx.statement(stmt_pair)?;
-    let comment = find_comment(line).map(|c| c.trim().to_string());
+    let comment = comment_at.map(|i| line[i + 1..].trim().to_string());
     Ok(Some(Stmt {
         kind,
         span,
@@ -163,10 +165,6 @@ pub fn find_comment_start(line: &str) -> Option<usize> {
         }
     }
     None
-}
-
-fn find_comment(line: &str) -> Option<&str> {
-    find_comment_start(line).map(|i| &line[i + 1..])
 }
 
 /// Check bracket depth before handing the line to the recursive-descent
@@ -591,33 +589,28 @@ impl Cx<'_> {
             Rule::name_ref => {
                 let mut it = p.into_inner();
                 let id = self.ident(it.next().expect("name"));
-                let base = Expr {
-                    span: id.span,
-                    kind: ExprKind::Name(id),
+                let mut next = it.next();
+                let Some(call) = next.take_if(|a| a.as_rule() == Rule::call) else {
+                    let base = Expr {
+                        span: id.span,
+                        kind: ExprKind::Name(id),
+                    };
+                    return Ok(self.with_field(base, next, span));
                 };
-                Ok(self.with_field(base, it.next(), span))
-            }
-            Rule::call => {
-                let mut it = p.into_inner().peekable();
-                let func = self.ident(it.next().expect("name"));
                 let mut args = Vec::new();
                 let mut depth = 1;
-                let mut field = None;
-                for a in it {
-                    if a.as_rule() == Rule::field {
-                        field = Some(a);
-                        break;
-                    }
+                for a in call.into_inner() {
                     let e = self.expr(a)?;
                     depth = depth.max(1 + e.depth());
                     args.push(e);
                 }
+                let field = it.next();
                 let call_span = match &field {
                     Some(f) => Span::new(self.file, span.start as usize, self.span(f).start as usize),
                     None => span,
                 };
                 let base = Expr {
-                    kind: ExprKind::Call { func, args },
+                    kind: ExprKind::Call { func: id, args },
                     span: call_span,
                 };
                 let (e, d) = self.with_field(base, field, span);
