@@ -1057,12 +1057,119 @@ pub fn chunks_in_flight(opts: &StreamOptions) -> usize {
 /// each chunk is written.
 pub fn run_stream<R: Read + Send + 'static>(
     plan: Arc<Plan>,
-    mut cases: csv::Reader<R>,
+    cases: csv::Reader<R>,
     out: &mut dyn Write,
     on_errors: &mut dyn FnMut(&[RowError]) -> io::Result<()>,
     progress: &mut dyn FnMut(u64, u64),
     opts: StreamOptions,
 ) -> Result<Summary, StreamError> {
+    stream(plan, cases, Sink::Stream(out), on_errors, progress, opts)
+}
+
+/// [`run_stream`] into a file, the result lines starting at byte `start`:
+/// each chunk is written at its place by the thread that computed it, while
+/// its bytes are still in that core's cache, and the writes of different
+/// chunks go on in parallel. The file then holds exactly what `run_stream`
+/// would have written from `start` on (nothing is written after the last
+/// line). On an error or a `--strict` stop the file holds a part of the
+/// results, possibly with gaps: it is meant to be a temporary file that is
+/// then discarded.
+#[cfg(unix)]
+pub fn run_stream_at<R: Read + Send + 'static>(
+    plan: Arc<Plan>,
+    cases: csv::Reader<R>,
+    file: std::fs::File,
+    start: u64,
+    on_errors: &mut dyn FnMut(&[RowError]) -> io::Result<()>,
+    progress: &mut dyn FnMut(u64, u64),
+    opts: StreamOptions,
+) -> Result<Summary, StreamError> {
+    let at = Arc::new(Placed {
+        file,
+        order: std::sync::Mutex::new(Order {
+            next: 0,
+            offset: start,
+            parked: BTreeMap::new(),
+        }),
+    });
+    stream(plan, cases, Sink::At(at), on_errors, progress, opts)
+}
+
+/// Where the result lines go.
+enum Sink<'a> {
+    /// Written in order by the calling thread.
+    Stream(&'a mut dyn Write),
+    /// Written at their offsets in a file by the workers.
+    #[cfg(unix)]
+    At(Arc<Placed>),
+}
+
+/// A file the workers write chunks into at their places.
+#[cfg(unix)]
+struct Placed {
+    file: std::fs::File,
+    order: std::sync::Mutex<Order>,
+}
+
+/// Which chunk gets the next place in the file, and where that is.
+#[cfg(unix)]
+struct Order {
+    next: u64,
+    offset: u64,
+    /// Chunks done before the one in front of them: they wait here, and
+    /// the worker that places their predecessor places them too.
+    parked: BTreeMap<u64, Box<Chunk>>,
+}
+
+#[cfg(unix)]
+impl Placed {
+    /// Place `c` (and any parked chunks it lets through) and write them;
+    /// each written chunk is reported to `done`.
+    fn place(&self, c: Box<Chunk>, done: &mpsc::Sender<Msg>) {
+        use std::os::unix::fs::FileExt;
+        let ready = {
+            let mut o = self.order.lock().unwrap_or_else(|e| e.into_inner());
+            if c.seq != o.next {
+                o.parked.insert(c.seq, c);
+                return;
+            }
+            let mut ready = Vec::new();
+            let mut c = c;
+            loop {
+                let at = o.offset;
+                o.offset += c.out.len() as u64;
+                o.next += 1;
+                ready.push((c, at));
+                let next = o.next;
+                match o.parked.remove(&next) {
+                    Some(p) => c = p,
+                    None => break,
+                }
+            }
+            ready
+        };
+        for (c, at) in ready {
+            let _ = done.send(match self.file.write_all_at(&c.out, at) {
+                Ok(()) => Msg::Done(c),
+                Err(e) => Msg::Failed(StreamError::Write(e)),
+            });
+        }
+    }
+}
+
+fn stream<R: Read + Send + 'static>(
+    plan: Arc<Plan>,
+    mut cases: csv::Reader<R>,
+    mut sink: Sink<'_>,
+    on_errors: &mut dyn FnMut(&[RowError]) -> io::Result<()>,
+    progress: &mut dyn FnMut(u64, u64),
+    opts: StreamOptions,
+) -> Result<Summary, StreamError> {
+    #[cfg(unix)]
+    let placed = match &sink {
+        Sink::At(p) => Some(p.clone()),
+        Sink::Stream(_) => None,
+    };
     let (pool_tx, pool_rx) = mpsc::channel::<Chunk>();
     for _ in 0..chunks_in_flight(&opts) {
         let _ = pool_tx.send(Chunk {
@@ -1117,6 +1224,8 @@ pub fn run_stream<R: Read + Send + 'static>(
                     case += chunk.len as u64;
                     let plan = plan.clone();
                     let done = done_tx.clone();
+                    #[cfg(unix)]
+                    let placed = placed.clone();
                     rayon::spawn(move || {
                         let r = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
                             let mut c = chunk;
@@ -1127,10 +1236,20 @@ pub fn run_stream<R: Read + Send + 'static>(
                             c.worker = Some(w);
                             c
                         }));
-                        let _ = done.send(match r {
-                            Ok(c) => Msg::Done(Box::new(c)),
-                            Err(_) => Msg::Failed(StreamError::Internal("a worker panicked".into())),
-                        });
+                        match r {
+                            #[cfg(unix)]
+                            Ok(c) if placed.is_some() => {
+                                if let Some(p) = &placed {
+                                    p.place(Box::new(c), &done);
+                                }
+                            }
+                            Ok(c) => {
+                                let _ = done.send(Msg::Done(Box::new(c)));
+                            }
+                            Err(_) => {
+                                let _ = done.send(Msg::Failed(StreamError::Internal("a worker panicked".into())));
+                            }
+                        }
                     });
                 }
                 if eof {
@@ -1170,7 +1289,9 @@ pub fn run_stream<R: Read + Send + 'static>(
                 on_errors(&[first]).map_err(StreamError::Write)?;
                 return Ok(summary);
             }
-            out.write_all(&c.out).map_err(StreamError::Write)?;
+            if let Sink::Stream(out) = &mut sink {
+                out.write_all(&c.out).map_err(StreamError::Write)?;
+            }
             if !c.errors.is_empty() {
                 let mut rows: Vec<u64> = c.errors.iter().map(|e| e.case).collect();
                 rows.dedup();

@@ -4,7 +4,7 @@
 //! the destination as it was.
 
 use std::collections::HashSet;
-use std::io::{self, BufWriter, Write};
+use std::io::{self, BufWriter, Seek, Write};
 use std::path::{Path, PathBuf};
 use std::sync::{Mutex, OnceLock};
 
@@ -20,6 +20,9 @@ pub struct AtomicFile {
     out: Option<BufWriter<tempfile::NamedTempFile>>,
     tmp_path: PathBuf,
     dest: PathBuf,
+    /// Bytes may have been written at offsets past the cursor (`placed`):
+    /// the next write goes to the end of the file.
+    placed: bool,
 }
 
 impl AtomicFile {
@@ -51,7 +54,29 @@ impl AtomicFile {
             out: Some(BufWriter::with_capacity(1 << 16, tmp)),
             tmp_path,
             dest: dest.to_path_buf(),
+            placed: false,
         })
+    }
+
+    /// The temporary file (a second handle) and the length written so far,
+    /// for writing the rest at known offsets from several threads
+    /// (`FileExt::write_all_at`). What is written through `self` afterwards
+    /// goes to the end of the file.
+    pub fn placed(&mut self) -> io::Result<(std::fs::File, u64)> {
+        let out = self.out.as_mut().expect("not yet committed");
+        out.flush()?;
+        let f = out.get_mut().as_file_mut();
+        let at = f.stream_position()?;
+        self.placed = true;
+        Ok((f.try_clone()?, at))
+    }
+
+    fn out(&mut self) -> io::Result<&mut BufWriter<tempfile::NamedTempFile>> {
+        let out = self.out.as_mut().expect("not yet committed");
+        if std::mem::take(&mut self.placed) {
+            out.seek(io::SeekFrom::End(0))?;
+        }
+        Ok(out)
     }
 
     pub fn dest(&self) -> &Path {
@@ -90,13 +115,13 @@ impl AtomicFile {
 
 impl Write for AtomicFile {
     fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
-        self.out.as_mut().expect("not yet committed").write(buf)
+        self.out()?.write(buf)
     }
     fn write_all(&mut self, buf: &[u8]) -> io::Result<()> {
-        self.out.as_mut().expect("not yet committed").write_all(buf)
+        self.out()?.write_all(buf)
     }
     fn flush(&mut self) -> io::Result<()> {
-        self.out.as_mut().expect("not yet committed").flush()
+        self.out()?.flush()
     }
 }
 

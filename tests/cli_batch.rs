@@ -439,3 +439,66 @@ fn an_interrupted_run_leaves_no_results_file() {
     assert!(!dir.path().join("r.errors.csv").exists());
     assert_eq!(partial(), 0, "temporary files removed");
 }
+
+/// Chunks written at their places by the workers (what the command does)
+/// make the same file, byte for byte, as chunks written in order, with
+/// small chunks, bad rows and more chunks in flight than threads; and a
+/// header written before stays in front.
+#[cfg(unix)]
+#[test]
+fn chunks_written_at_their_places_equal_the_stream_in_order() {
+    use ohmsheet::batch::run_stream_at;
+    let dir = tempfile::tempdir().unwrap();
+    let mut table = String::from("Vs [kV],Zl,theta [°],k\n");
+    for i in 0..5_000 {
+        let [vs, zl, th, k] = case(i);
+        // every 97th row is bad: a value that does not read
+        let vs = if i % 97 == 5 { "4.8 kV kV".to_string() } else { vs.0 };
+        table.push_str(&format!("{vs},\"{}\",{},{}\n", zl.0, th.0, k.0));
+    }
+    let m = Arc::new(model(FEEDER));
+    let run = |placed: bool| -> (Vec<u8>, Vec<RowError>) {
+        let mut reader = csv::Reader::from_reader(std::io::Cursor::new(table.clone().into_bytes()));
+        let headers: Vec<String> = reader.headers().unwrap().iter().map(str::to_string).collect();
+        let plan = Arc::new(Plan::new(m.clone(), &headers, None, ComplexForm::Polar).unwrap());
+        let opts = StreamOptions {
+            strict: false,
+            chunk_rows: 37,
+            in_flight: 9,
+        };
+        let mut errors = Vec::new();
+        let mut on_errors = |e: &[RowError]| {
+            errors.extend_from_slice(e);
+            Ok(())
+        };
+        let header = b"a header line\n";
+        let out = if placed {
+            let path = dir.path().join("placed.csv");
+            let mut f = std::fs::File::create(&path).unwrap();
+            f.write_all(header).unwrap();
+            let s = run_stream_at(
+                plan,
+                reader,
+                f,
+                header.len() as u64,
+                &mut on_errors,
+                &mut |_, _| {},
+                opts,
+            );
+            assert_eq!(s.unwrap().cases, 5_000);
+            std::fs::read(&path).unwrap()
+        } else {
+            let mut out = header.to_vec();
+            let s = run_stream(plan, reader, &mut out, &mut on_errors, &mut |_, _| {}, opts);
+            assert_eq!(s.unwrap().cases, 5_000);
+            out
+        };
+        (out, errors)
+    };
+    let (a, ea) = run(false);
+    let (b, eb) = run(true);
+    assert_eq!(ea.len(), 5_000 / 97 + 1, "bad rows: {}", ea.len());
+    assert_eq!(ea, eb);
+    assert_eq!(a.iter().filter(|&&c| c == b'\n').count(), 5_001);
+    assert!(a == b, "files differ");
+}

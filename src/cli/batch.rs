@@ -7,7 +7,11 @@ use std::sync::Arc;
 use std::time::Instant;
 
 use super::{load_model, report, BatchArgs, ComplexArg, EXIT_CHECK_FAILED, EXIT_ERROR, EXIT_OK};
-use crate::batch::{csv_line, run_stream, ComplexForm, Plan, RowError, StreamOptions};
+#[cfg(not(unix))]
+use crate::batch::run_stream;
+#[cfg(unix)]
+use crate::batch::run_stream_at;
+use crate::batch::{csv_line, ComplexForm, Plan, RowError, StreamOptions};
 use crate::diag::{Diagnostic, ErrorCode, SourceMap};
 use crate::fsutil::{remove_partial_files_on_interrupt, same_file, AtomicFile};
 
@@ -139,6 +143,14 @@ pub fn batch(a: &BatchArgs) -> i32 {
         strict: a.strict,
         ..StreamOptions::default()
     };
+    // Workers write their chunks straight into the temporary file, each at
+    // its place, where the platform allows; otherwise in order from here.
+    #[cfg(unix)]
+    let result = match out.placed() {
+        Ok((file, start)) => run_stream_at(plan, cases, file, start, &mut on_errors, &mut progress, opts),
+        Err(e) => return fail(format!("cannot write `{}`: {e}", a.out.display())),
+    };
+    #[cfg(not(unix))]
     let result = run_stream(plan, cases, &mut out, &mut on_errors, &mut progress, opts);
     if let Some(b) = &bar {
         b.finish_and_clear();
