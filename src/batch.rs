@@ -1067,9 +1067,9 @@ pub fn run_stream<R: Read + Send + 'static>(
 }
 
 /// [`run_stream`] into a file, the result lines starting at byte `start`:
-/// each chunk is written at its place by the thread that computed it, while
-/// its bytes are still in that core's cache, and the writes of different
-/// chunks go on in parallel. The file then holds exactly what `run_stream`
+/// each chunk is written at its place by the worker that computed it, so
+/// the copying into the file is shared by the workers instead of falling
+/// on one thread, and the writes of different chunks go on in parallel. The file then holds exactly what `run_stream`
 /// would have written from `start` on (nothing is written after the last
 /// line). On an error or a `--strict` stop the file holds a part of the
 /// results, possibly with gaps: it is meant to be a temporary file that is
@@ -1236,20 +1236,18 @@ fn stream<R: Read + Send + 'static>(
                             c.worker = Some(w);
                             c
                         }));
-                        match r {
-                            #[cfg(unix)]
-                            Ok(c) if placed.is_some() => {
-                                if let Some(p) = &placed {
-                                    p.place(Box::new(c), &done);
-                                }
-                            }
-                            Ok(c) => {
-                                let _ = done.send(Msg::Done(Box::new(c)));
-                            }
+                        let c = match r {
+                            Ok(c) => Box::new(c),
                             Err(_) => {
                                 let _ = done.send(Msg::Failed(StreamError::Internal("a worker panicked".into())));
+                                return;
                             }
+                        };
+                        #[cfg(unix)]
+                        if let Some(p) = &placed {
+                            return p.place(c, &done);
                         }
+                        let _ = done.send(Msg::Done(c));
                     });
                 }
                 if eof {
