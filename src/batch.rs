@@ -1090,6 +1090,8 @@ pub fn run_stream_at<R: Read + Send + 'static>(
             next: 0,
             offset: start,
             parked: BTreeMap::new(),
+            ready: Default::default(),
+            writing: false,
         }),
     });
     stream(plan, cases, Sink::At(at), on_errors, progress, opts)
@@ -1119,41 +1121,52 @@ struct Order {
     /// Chunks done before the one in front of them: they wait here, and
     /// the worker that places their predecessor places them too.
     parked: BTreeMap<u64, Box<Chunk>>,
+    /// Placed chunks not yet written, in file order.
+    ready: std::collections::VecDeque<(Box<Chunk>, u64)>,
+    /// A worker is writing `ready` out.
+    writing: bool,
 }
 
 #[cfg(unix)]
 impl Placed {
-    /// Place `c` (and any parked chunks it lets through) and write them;
-    /// each written chunk is reported to `done`.
+    /// Place `c` (and any parked chunks it lets through) and see them
+    /// written; each written chunk is reported to `done`. One worker
+    /// writes at a time, taking every chunk placed meanwhile; the others
+    /// go back to computing rather than wait on the file (two writers of
+    /// one file only queue behind the kernel's lock on it).
     fn place(&self, c: Box<Chunk>, done: &mpsc::Sender<Msg>) {
         use std::os::unix::fs::FileExt;
-        let ready = {
-            let mut o = self.order.lock().unwrap_or_else(|e| e.into_inner());
-            if c.seq != o.next {
-                o.parked.insert(c.seq, c);
-                return;
+        let lock = || self.order.lock().unwrap_or_else(|e| e.into_inner());
+        let mut o = lock();
+        if c.seq != o.next {
+            o.parked.insert(c.seq, c);
+            return;
+        }
+        let mut c = c;
+        loop {
+            let at = o.offset;
+            o.offset += c.out.len() as u64;
+            o.next += 1;
+            o.ready.push_back((c, at));
+            let next = o.next;
+            match o.parked.remove(&next) {
+                Some(p) => c = p,
+                None => break,
             }
-            let mut ready = Vec::new();
-            let mut c = c;
-            loop {
-                let at = o.offset;
-                o.offset += c.out.len() as u64;
-                o.next += 1;
-                ready.push((c, at));
-                let next = o.next;
-                match o.parked.remove(&next) {
-                    Some(p) => c = p,
-                    None => break,
-                }
-            }
-            ready
-        };
-        for (c, at) in ready {
+        }
+        if o.writing {
+            return;
+        }
+        o.writing = true;
+        while let Some((c, at)) = o.ready.pop_front() {
+            drop(o);
             let _ = done.send(match self.file.write_all_at(&c.out, at) {
                 Ok(()) => Msg::Done(c),
                 Err(e) => Msg::Failed(StreamError::Write(e)),
             });
+            o = lock();
         }
+        o.writing = false;
     }
 }
 
