@@ -8,6 +8,14 @@
 //! hash of the text the changes apply to; each further line is one change
 //! as the user made it (`{"line":"R2 = 30 Ω"}`, `{"remove":"R2"}`,
 //! `"back"`). A last line cut short by a crash is ignored.
+//!
+//! A session holds a lock (`flock` on `<journal>.lock`) for as long as it
+//! runs. A second session on the same sheet finds the lock taken and keeps
+//! a journal of its own beside the sheet's (`<journal name>.<pid>-<k>.journal`),
+//! so neither truncates nor removes the other's. A side journal left by a
+//! session that was killed is taken over by the next session that holds
+//! the sheet's lock and finds the sheet's own journal empty, and offered
+//! like any other.
 
 use std::fs::{self, File, OpenOptions};
 use std::io::{self, Write};
@@ -116,12 +124,98 @@ pub fn read(path: &Path) -> Option<Recovered> {
     Some(Recovered { header, entries })
 }
 
+fn lock_path(journal: &Path) -> PathBuf {
+    let mut name = journal.file_name().unwrap_or_default().to_os_string();
+    name.push(".lock");
+    journal.with_file_name(name)
+}
+
+/// Take the lock of the journal at `path` for this session: `Some` when
+/// taken, `None` while another live session holds it. The lock goes with
+/// the returned file (and with the process, however it ends).
+fn try_lock(path: &Path) -> io::Result<Option<File>> {
+    if let Some(dir) = path.parent() {
+        fs::create_dir_all(dir)?;
+    }
+    let lp = lock_path(path);
+    // A session that ends removes its lock file before it lets go of the
+    // lock: a lock won on a file that was removed meanwhile is no lock.
+    for _ in 0..16 {
+        let f = OpenOptions::new()
+            .read(true)
+            .write(true)
+            .create(true)
+            .truncate(false)
+            .open(&lp)?;
+        match f.try_lock() {
+            Ok(()) if still_at(&f, &lp) => return Ok(Some(f)),
+            Ok(()) => continue,
+            Err(fs::TryLockError::WouldBlock) => return Ok(None),
+            Err(fs::TryLockError::Error(e)) => return Err(e),
+        }
+    }
+    Err(io::Error::other("the journal's lock file keeps being replaced"))
+}
+
+/// Is `f` still the file at `path`?
+fn still_at(f: &File, path: &Path) -> bool {
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::MetadataExt;
+        match (f.metadata(), fs::metadata(path)) {
+            (Ok(a), Ok(b)) => a.dev() == b.dev() && a.ino() == b.ino(),
+            _ => false,
+        }
+    }
+    #[cfg(not(unix))]
+    {
+        let _ = (f, path);
+        true
+    }
+}
+
+/// `site.ohm-<hash>.journal` → `site.ohm-<hash>.`: what the names of the
+/// side journals beside it start with.
+fn side_prefix(primary: &Path) -> String {
+    let stem = primary.file_stem().unwrap_or_default().to_string_lossy();
+    format!("{stem}.")
+}
+
+/// Side journals beside `primary` whose sessions have ended (their lock is
+/// free), with the lock now held, oldest first.
+fn abandoned(primary: &Path) -> Vec<(PathBuf, File)> {
+    let (Some(dir), prefix) = (primary.parent(), side_prefix(primary)) else {
+        return Vec::new();
+    };
+    let Ok(entries) = fs::read_dir(dir) else {
+        return Vec::new();
+    };
+    let mut found: Vec<(std::time::SystemTime, PathBuf)> = entries
+        .flatten()
+        .filter_map(|e| {
+            let name = e.file_name().to_string_lossy().into_owned();
+            let side = name.starts_with(&prefix) && name.ends_with(".journal");
+            let at = e.metadata().and_then(|m| m.modified()).ok()?;
+            side.then(|| (at, e.path()))
+        })
+        .collect();
+    found.sort();
+    found
+        .into_iter()
+        .filter_map(|(_, p)| Some((p.clone(), try_lock(&p).ok()??)))
+        .collect()
+}
+
 /// The journal a session writes to. The file is made on the first change.
 #[derive(Debug)]
 pub struct Journal {
     pub path: PathBuf,
     pub header: Header,
     file: Option<File>,
+    /// The sheet's own journal path (`path` is a side journal when they differ).
+    primary: PathBuf,
+    /// This session's lock on `path`, when locks work here.
+    lock: Option<File>,
 }
 
 impl Journal {
@@ -130,6 +224,7 @@ impl Journal {
             .duration_since(std::time::UNIX_EPOCH)
             .map_or(0, |d| d.as_secs());
         Journal {
+            primary: path.clone(),
             path,
             header: Header {
                 journal: 1,
@@ -138,7 +233,53 @@ impl Journal {
                 started,
             },
             file: None,
+            lock: None,
         }
+    }
+
+    /// The journal of a session on a sheet whose own journal is at
+    /// `primary`, with its lock held: the sheet's own journal when no other
+    /// live session holds it, else a side journal of this session's own.
+    /// Holding the sheet's journal, a session takes over a side journal
+    /// left by a killed session when the sheet's own has nothing in it.
+    /// Where locks cannot be taken (a file system without them), the
+    /// sheet's own journal, unlocked, as before locks were kept.
+    pub fn claim(primary: PathBuf, sheet: Option<&Path>, base_text: &str) -> Journal {
+        let mut j = Journal::new(primary.clone(), sheet, base_text);
+        match try_lock(&primary) {
+            Ok(Some(lock)) => {
+                j.lock = Some(lock);
+                if read(&primary).is_none() {
+                    // Taken over whole, by renaming it into place; the
+                    // remaining side journals wait for their turn.
+                    if let Some((side, lock)) = abandoned(&primary).into_iter().find(|(p, _)| read(p).is_some()) {
+                        if fs::rename(&side, &primary).is_ok() {
+                            let _ = fs::remove_file(lock_path(&side));
+                        }
+                        drop(lock);
+                    }
+                }
+            }
+            Ok(None) => {
+                let dir = primary.parent().unwrap_or(Path::new("."));
+                for k in 0..64 {
+                    let side = dir.join(format!("{}{}-{k}.journal", side_prefix(&primary), std::process::id()));
+                    if let Ok(Some(lock)) = try_lock(&side) {
+                        j.path = side;
+                        j.lock = Some(lock);
+                        break;
+                    }
+                }
+            }
+            Err(_) => {}
+        }
+        j
+    }
+
+    /// Another live session holds the sheet's own journal: this one keeps
+    /// a side journal.
+    pub fn is_side(&self) -> bool {
+        self.path != self.primary
     }
 
     /// Append one change and flush it to the disk.
@@ -173,10 +314,15 @@ impl Journal {
     }
 
     /// Start over with a new base text (after saving): the old journal
-    /// is removed.
-    pub fn rebase(&mut self, sheet: Option<&Path>, path: PathBuf, base_text: &str) -> io::Result<()> {
+    /// is removed. `primary` is the saved sheet's own journal path; the
+    /// lock is kept when it is the same sheet, else claimed anew.
+    pub fn rebase(&mut self, sheet: Option<&Path>, primary: PathBuf, base_text: &str) -> io::Result<()> {
         self.discard()?;
-        *self = Journal::new(path, sheet, base_text);
+        if primary == self.primary {
+            self.header = Journal::new(primary, sheet, base_text).header.clone();
+        } else {
+            *self = Journal::claim(primary, sheet, base_text);
+        }
         Ok(())
     }
 
@@ -186,6 +332,19 @@ impl Journal {
         match fs::remove_file(&self.path) {
             Err(e) if e.kind() != io::ErrorKind::NotFound => Err(e),
             _ => Ok(()),
+        }
+    }
+}
+
+impl Drop for Journal {
+    fn drop(&mut self) {
+        // The lock file goes with the session that holds it: removed while
+        // still locked (the lock is released after this, with the field),
+        // so a session starting meanwhile either met the lock and keeps a
+        // side journal, or makes a new lock file. The journal itself stays
+        // if it holds unsaved work.
+        if self.lock.is_some() {
+            let _ = fs::remove_file(lock_path(&self.path));
         }
     }
 }
@@ -241,5 +400,76 @@ mod tests {
         // "" -> cbf29ce484222325, "a" -> af63dc4c8601ec8c.
         assert_eq!(fnv64(b""), 0xcbf29ce484222325);
         assert_eq!(fnv64(b"a"), 0xaf63dc4c8601ec8c);
+    }
+
+    fn lines(j: &Path) -> Vec<Entry> {
+        read(j).map(|r| r.entries).unwrap_or_default()
+    }
+
+    #[test]
+    fn a_second_session_on_a_sheet_keeps_a_journal_of_its_own() {
+        let dir = tempfile::tempdir().unwrap();
+        let p = journal_path(dir.path(), Some(Path::new("site.ohm")));
+        let mut a = Journal::claim(p.clone(), None, "x = 1");
+        let mut b = Journal::claim(p.clone(), None, "x = 1");
+        assert!(!a.is_side());
+        assert!(b.is_side());
+        assert_ne!(a.path, b.path);
+        a.append(&Entry::Line("a = 1".into())).unwrap();
+        b.append(&Entry::Line("b = 2".into())).unwrap();
+        // B's first change did not truncate A's journal, nor the reverse.
+        a.append(&Entry::Line("a = 3".into())).unwrap();
+        assert_eq!(
+            lines(&a.path),
+            [Entry::Line("a = 1".into()), Entry::Line("a = 3".into())]
+        );
+        assert_eq!(lines(&b.path), [Entry::Line("b = 2".into())]);
+        // A saves (its journal goes): B's unsaved change is still on disk.
+        a.discard().unwrap();
+        assert_eq!(lines(&b.path), [Entry::Line("b = 2".into())]);
+        // A third session is a side session too while A lives.
+        let c = Journal::claim(p.clone(), None, "x = 1");
+        assert!(c.is_side() && c.path != b.path);
+    }
+
+    #[test]
+    fn a_killed_side_sessions_journal_is_offered_to_the_next_session() {
+        let dir = tempfile::tempdir().unwrap();
+        let p = journal_path(dir.path(), Some(Path::new("site.ohm")));
+        let a = Journal::claim(p.clone(), None, "x = 1");
+        let mut b = Journal::claim(p.clone(), None, "x = 1");
+        b.append(&Entry::Line("b = 2".into())).unwrap();
+        b.append(&Entry::Back).unwrap();
+        let side = b.path.clone();
+        // Both end without saving; B's work is only in its side journal.
+        drop(b);
+        drop(a);
+        let c = Journal::claim(p.clone(), None, "x = 1");
+        assert!(!c.is_side());
+        assert_eq!(lines(&p), [Entry::Line("b = 2".into()), Entry::Back]);
+        assert!(!side.exists(), "taken over by renaming");
+        // Nothing is left beside the sheet's journal but its lock file.
+        let mut names: Vec<String> = fs::read_dir(p.parent().unwrap())
+            .unwrap()
+            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+            .collect();
+        names.sort();
+        let own = p.file_name().unwrap().to_string_lossy().into_owned();
+        assert_eq!(names, [own.clone(), format!("{own}.lock")]);
+    }
+
+    #[test]
+    fn a_live_side_session_is_not_taken_over() {
+        let dir = tempfile::tempdir().unwrap();
+        let p = journal_path(dir.path(), Some(Path::new("site.ohm")));
+        let a = Journal::claim(p.clone(), None, "x = 1");
+        let mut b = Journal::claim(p.clone(), None, "x = 1");
+        b.append(&Entry::Line("b = 2".into())).unwrap();
+        drop(a);
+        // A new session gets the sheet's journal, but B is still running.
+        let c = Journal::claim(p.clone(), None, "x = 1");
+        assert!(!c.is_side());
+        assert!(read(&p).is_none());
+        assert_eq!(lines(&b.path), [Entry::Line("b = 2".into())]);
     }
 }

@@ -136,7 +136,7 @@ impl Session {
         let engine = Engine::new(model);
         let journal = data_dir
             .as_ref()
-            .map(|d| Journal::new(journal::journal_path(d, path), path, &doc.text()));
+            .map(|d| Journal::claim(journal::journal_path(d, path), path, &doc.text()));
         let s = Session {
             path: path.map(Path::to_path_buf),
             doc,
@@ -168,6 +168,12 @@ impl Session {
                 "{name}: {cells} cell{}, {checks} check{}\n",
                 plural(cells),
                 plural(checks)
+            ));
+        }
+        if let Some(j) = s.journal.as_ref().filter(|j| j.is_side()) {
+            greet.push_str(&format!(
+                "note: {name} is open in another session too; this session's changes are journalled on their own ({}), and whichever session saves last writes the file\n",
+                j.path.display()
             ));
         }
         for d in sorted(&m.diagnostics) {
@@ -910,6 +916,7 @@ I = Vs / Rt\n\
 P = re(Vs * conj(I))\n"
         );
         // Saving cleared the journal: nothing to recover.
+        drop(s);
         assert!(f.open().recovery().is_none());
     }
 
@@ -990,7 +997,37 @@ P = re(Vs * conj(I))\n"
         let mut c = f.open();
         assert!(c.recovery().is_some());
         c.discard_journal();
+        drop(c);
         assert!(f.open().recovery().is_none());
+    }
+
+    /// Two sessions on one sheet: one saves and leaves, the other is
+    /// killed with unsaved changes; the next session offers those changes.
+    #[test]
+    fn two_sessions_on_one_sheet_lose_nothing() {
+        let f = Fixture::new(SITE);
+        let mut a = f.open();
+        let (mut b, greet) = Session::open(Some(&f.path), Some(f.data()), false).unwrap();
+        assert!(greet.contains("open in another session"), "{greet}");
+        ok(&mut a, "R2 = 30 Ω");
+        ok(&mut b, "R1 = 5 Ω");
+        ok(&mut b, "Vs = 400 V");
+        ok(&mut a, "/save");
+        drop(a);
+        // B dies here without saving.
+        drop(b);
+        let mut c = f.open();
+        let rec = c.recovery().expect("B's changes are offered");
+        assert_eq!(
+            rec.entries,
+            [
+                journal::Entry::Line("R1 = 5 Ω".into()),
+                journal::Entry::Line("Vs = 400 V".into())
+            ]
+        );
+        // They apply to the sheet A saved: 400 V across 5 Ω + 30 Ω.
+        c.restore(&rec);
+        assert_eq!(val(&c, "I"), C64::new(400.0 / 35.0, 0.0));
     }
 
     #[test]
