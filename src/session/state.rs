@@ -93,6 +93,11 @@ pub const COMMANDS: &[(&str, &str, &str)] = &[
     ("about", "NAME", "a function, unit or cell explained"),
     ("open", "FILE", "work on another sheet"),
     ("save", "[FILE]", "write the sheet (to FILE, or where it came from)"),
+    (
+        "save!",
+        "",
+        "write the sheet over its file even though the file changed since it was read",
+    ),
     ("done", "", "leave (asks first if changes are unsaved)"),
     ("help", "", "this list"),
 ];
@@ -115,6 +120,9 @@ pub struct Session {
     pub color: bool,
     /// A journal could not be written: said once, not on every line.
     journal_warned: bool,
+    /// The sheet file as this session last read or wrote it (a hash of its
+    /// bytes), to notice another session or an editor saving it meanwhile.
+    on_disk: Option<u64>,
 }
 
 impl Session {
@@ -152,6 +160,7 @@ impl Session {
             polar: false,
             color,
             journal_warned: false,
+            on_disk: path.and_then(disk_hash),
         };
         let mut greet = String::new();
         let m = &s.engine.model;
@@ -172,7 +181,7 @@ impl Session {
         }
         if let Some(j) = s.journal.as_ref().filter(|j| j.is_side()) {
             greet.push_str(&format!(
-                "note: {name} is open in another session too; this session's changes are journalled on their own ({}), and whichever session saves last writes the file\n",
+                "note: {name} is open in another session too; this session's changes are journalled on their own ({}); a save never writes over the other session's saved work unseen\n",
                 j.path.display()
             ));
         }
@@ -576,6 +585,11 @@ impl Session {
                 Ok(t) => Reply::ok(t),
                 Err(t) => Reply::refused(t),
             },
+            "save!" if arg.is_empty() => match self.save_over() {
+                Ok(t) => Reply::ok(t),
+                Err(t) => Reply::refused(t),
+            },
+            "save!" => Reply::refused("/save! takes no file name: it writes the sheet's own file\n"),
             "done" => Reply {
                 text: String::new(),
                 action: Action::Leave,
@@ -696,9 +710,32 @@ impl Session {
     /// Write the sheet (to `to`, or where it came from), atomically. The
     /// journal is cleared: the work is safe on disk.
     pub fn save(&mut self, to: Option<PathBuf>) -> Result<String, String> {
+        let own = to.is_none() || to == self.path;
         let Some(path) = to.or_else(|| self.path.clone()) else {
             return Err("this sheet has no file yet: /save FILE\n".into());
         };
+        // Its own file, changed on disk since this session read or wrote
+        // it: writing would throw that other work away unseen.
+        if own && path.exists() && disk_hash(&path) != self.on_disk {
+            return Err(format!(
+                "{} was changed on disk since this session read it (another session or an editor saved it); nothing was written\n  \
+                 hint: /save FILE writes this session's sheet under another name; /save! writes over the file\n",
+                path.display()
+            ));
+        }
+        self.write_sheet(path)
+    }
+
+    /// `/save!`: write the sheet's own file even though it changed on
+    /// disk since this session read it.
+    pub fn save_over(&mut self) -> Result<String, String> {
+        let Some(path) = self.path.clone() else {
+            return Err("this sheet has no file yet: /save FILE\n".into());
+        };
+        self.write_sheet(path)
+    }
+
+    fn write_sheet(&mut self, path: PathBuf) -> Result<String, String> {
         let text = self.doc.text();
         if let Err(e) = crate::fsutil::write_atomic(&path, text.as_bytes()) {
             return Err(format!(
@@ -707,6 +744,7 @@ impl Session {
             ));
         }
         let moved = self.path.as_deref() != Some(path.as_path());
+        self.on_disk = Some(journal::fnv64(text.as_bytes()));
         self.path = Some(path.clone());
         self.saved_version = self.version;
         self.entries.clear();
@@ -729,6 +767,11 @@ impl Session {
     pub fn cell_names(&self) -> impl Iterator<Item = &str> {
         self.engine.model.by_name.keys().map(String::as_str)
     }
+}
+
+/// A hash of a file's bytes, or `None` when it cannot be read.
+fn disk_hash(path: &Path) -> Option<u64> {
+    std::fs::read(path).ok().map(|b| journal::fnv64(&b))
 }
 
 fn plain_line(text: &str, stmt: Stmt) -> DocLine {
@@ -999,6 +1042,36 @@ P = re(Vs * conj(I))\n"
         c.discard_journal();
         drop(c);
         assert!(f.open().recovery().is_none());
+    }
+
+    /// A sheet saved by someone else meanwhile is not written over unseen.
+    #[test]
+    fn a_file_changed_on_disk_is_not_written_over_unseen() {
+        let f = Fixture::new(SITE);
+        let mut a = f.open();
+        let mut b = f.open();
+        ok(&mut a, "R2 = 30 Ω");
+        ok(&mut b, "R1 = 5 Ω");
+        ok(&mut a, "/save");
+        let saved_by_a = std::fs::read_to_string(&f.path).unwrap();
+        let r = b.handle("/save");
+        assert!(r.refused, "{}", r.text);
+        assert!(r.text.contains("changed on disk"), "{}", r.text);
+        assert_eq!(std::fs::read_to_string(&f.path).unwrap(), saved_by_a);
+        assert!(b.dirty(), "B's change is still unsaved, and journalled");
+        // Under another name, or over the file on purpose.
+        let other = f.dir.path().join("site-b.ohm");
+        ok(&mut b, &format!("/save {}", other.display()));
+        assert!(std::fs::read_to_string(&other).unwrap().contains("R1 = 5 Ω"));
+        // B now works on site-b.ohm; A's file is A's. A saves again freely.
+        ok(&mut a, "R2 = 35 Ω");
+        ok(&mut a, "/save");
+        // An editor changes A's file; A is told, then writes over it.
+        std::fs::write(&f.path, "R1 = 1 Ω\n").unwrap();
+        ok(&mut a, "R2 = 40 Ω");
+        assert!(a.handle("/save").refused);
+        ok(&mut a, "/save!");
+        assert!(std::fs::read_to_string(&f.path).unwrap().contains("R2 = 40 Ω"));
     }
 
     /// Two sessions on one sheet: one saves and leaves, the other is
