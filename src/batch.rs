@@ -1067,9 +1067,9 @@ pub fn run_stream<R: Read + Send + 'static>(
 }
 
 /// [`run_stream`] into a file, the result lines starting at byte `start`:
-/// each chunk is written at its place by the worker that computed it, so
-/// the copying into the file is shared by the workers instead of falling
-/// on one thread, and the writes of different chunks go on in parallel. The file then holds exactly what `run_stream`
+/// the workers write finished chunks at their places themselves (one
+/// worker at a time, taking every chunk placed meanwhile, while the others
+/// go on computing) instead of handing them to a writing thread. The file then holds exactly what `run_stream`
 /// would have written from `start` on (nothing is written after the last
 /// line). On an error or a `--strict` stop the file holds a part of the
 /// results, possibly with gaps: it is meant to be a temporary file that is
