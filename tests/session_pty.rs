@@ -367,3 +367,52 @@ fn the_thevenin_walkthrough_in_the_docs_is_true() {
     let vth = num_complex::Complex64::new(227.70934256055364, -12.955017301038051);
     crate::assert_close!(crate::common::value(&e, "Vth"), vth, 1e-12);
 }
+
+/// Two sessions on one sheet at once: the second says so and journals
+/// apart; the first saves; the second is refused a save over it and keeps
+/// its change. Re-opening the sheet in the first is not a second session.
+#[test]
+fn two_sessions_on_one_sheet_neither_loses_the_others_work() {
+    let env = Env::new();
+    let sheet = env.sheet(DIVIDER);
+    let mut a = env.spawn(Some(&sheet));
+    a.prompt();
+    let mut b = env.spawn(Some(&sheet));
+    b.expect("open in another session too");
+    b.prompt();
+
+    a.line("R2 = 30 Ω");
+    a.prompt();
+    b.line("R1 = 5 Ω");
+    b.prompt();
+    a.line("/save");
+    a.expect("saved");
+    a.prompt();
+    b.line("/save");
+    b.expect("changed on disk since this session read it");
+    b.prompt();
+    let after_a = std::fs::read_to_string(&sheet).unwrap();
+    assert!(
+        after_a.contains("R2 = 30 Ω") && !after_a.contains("R1 = 5 Ω"),
+        "{after_a}"
+    );
+
+    // A opens its sheet again: no other session is claimed to hold it.
+    a.line("/open feeder.ohm");
+    let before = a.expect("5 cells, 0 checks");
+    let after = a.prompt();
+    let greet = format!("{before}{after}");
+    assert!(!greet.contains("another session"), "{greet}");
+    a.line("/done");
+    a.eof();
+
+    // B writes its sheet under another name; both files are whole.
+    b.line("/save feeder-b.ohm");
+    b.expect("saved");
+    b.prompt();
+    b.line("/done");
+    b.eof();
+    let mine = std::fs::read_to_string(env.dir.path().join("feeder-b.ohm")).unwrap();
+    assert!(mine.contains("R1 = 5 Ω") && mine.contains("R2 = 20 Ω"), "{mine}");
+    assert_eq!(std::fs::read_to_string(&sheet).unwrap(), after_a);
+}

@@ -91,6 +91,9 @@ pub fn run(path: Option<PathBuf>) -> i32 {
                     Action::Open(p) => {
                         if ready_to_leave(&mut rl, &shared, false) {
                             let color = shared.borrow().color;
+                            // Let go of this sheet's journal first: opening
+                            // the same sheet again is not a second session.
+                            shared.borrow_mut().release_journal();
                             match Session::open(Some(&p), data_dir.clone(), color) {
                                 Ok((s, greet)) => {
                                     let (style, polar) = {
@@ -107,7 +110,10 @@ pub fn run(path: Option<PathBuf>) -> i32 {
                                         return EXIT_OK;
                                     }
                                 }
-                                Err(t) => say(&t),
+                                Err(t) => {
+                                    say(&t);
+                                    shared.borrow_mut().claim_journal();
+                                }
                             }
                         }
                     }

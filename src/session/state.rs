@@ -255,6 +255,22 @@ impl Session {
         out
     }
 
+    /// Let go of the journal and its lock (before opening another sheet,
+    /// or the same one again). Changes made after this are not journalled
+    /// until `claim_journal`.
+    pub fn release_journal(&mut self) {
+        self.journal = None;
+    }
+
+    /// Take up a journal again after `release_journal` (opening another
+    /// sheet failed and this session goes on).
+    pub fn claim_journal(&mut self) {
+        if let (None, Some(d)) = (&self.journal, &self.data_dir) {
+            let path = self.path.as_deref();
+            self.journal = Some(Journal::claim(journal::journal_path(d, path), path, &self.doc.text()));
+        }
+    }
+
     /// Forget unsaved work: the journal is removed.
     pub fn discard_journal(&mut self) {
         if let Some(j) = &mut self.journal {
