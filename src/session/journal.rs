@@ -194,7 +194,7 @@ fn abandoned(primary: &Path) -> Vec<(PathBuf, File)> {
         .flatten()
         .filter_map(|e| {
             let name = e.file_name().to_string_lossy().into_owned();
-            let side = name.starts_with(&prefix) && name.ends_with(".journal");
+            let side = name.starts_with(&prefix) && name.ends_with(".journal") && e.path() != primary;
             let at = e.metadata().and_then(|m| m.modified()).ok()?;
             side.then(|| (at, e.path()))
         })
