@@ -565,6 +565,30 @@ fn decimal_value(b: &[u8]) -> Option<f64> {
     }
 }
 
+/// Does the digits part of a plain number have a non-zero digit before its
+/// exponent? (`0.0e5` is zero; `1e-400` is not, though it reads as 0.)
+fn mantissa_nonzero(digits: &[u8]) -> bool {
+    digits
+        .iter()
+        .take_while(|&&b| b != b'e' && b != b'E')
+        .any(|b| (b'1'..=b'9').contains(b))
+}
+
+/// A plain number `v` (its digits part `digits`) times a unit's `factor`,
+/// in coherent SI units, when that is a double: not overflowing
+/// (`1e308 kV`) and not a non-zero number that underflows to zero
+/// (`1e-400`), the same rule as for numbers in a sheet.
+fn si_value(v: f64, factor: f64, digits: &[u8]) -> Result<f64, &'static str> {
+    let si = v * factor;
+    if !si.is_finite() {
+        Err("beyond the range of a double (about 1.8e308) in SI units")
+    } else if si == 0.0 && mantissa_nonzero(digits) {
+        Err("below the smallest double (about 5e-324) in SI units; it would read as 0")
+    } else {
+        Ok(si)
+    }
+}
+
 impl ValueReader {
     /// The value of `text` for column `k` of the plan, in coherent SI
     /// units, or the reason it cannot set that input.
@@ -576,11 +600,9 @@ impl ValueReader {
         // words the errors.
         if let (Some(factor), Some((neg, digits))) = (col.plain_factor, plain_number_bytes(bytes.trim_ascii())) {
             let v = decimal_value(digits).or_else(|| std::str::from_utf8(digits).ok()?.parse::<f64>().ok());
-            if let Some(v) = v {
-                if v.is_finite() {
-                    let z = C64::new(v, 0.0) * factor;
-                    return Ok(if neg { -z } else { z });
-                }
+            if let Some(Ok(si)) = v.map(|v| si_value(v, factor, digits)) {
+                let z = C64::new(si, 0.0);
+                return Ok(if neg { -z } else { z });
             }
         }
         let Ok(text) = std::str::from_utf8(bytes) else {
@@ -593,13 +615,12 @@ impl ValueReader {
         // A plain number: the header's unit applies, as in `13.8 kV`.
         if let Some((neg, digits)) = plain_number(text) {
             let v: f64 = digits.parse().map_err(|_| format!("`{text}` is not a number"))?;
-            if !v.is_finite() {
-                return Err(format!("`{text}` is beyond the range of a double (about 1.8e308)"));
-            }
-            let (z, q) = match &col.unit {
-                Some(u) => (C64::new(v, 0.0) * u.factor, u.q),
-                None => (C64::new(v, 0.0), Quantity::PLAIN),
+            let (factor, q) = match &col.unit {
+                Some(u) => (u.factor, u.q),
+                None => (1.0, Quantity::PLAIN),
             };
+            let si = si_value(v, factor, digits.as_bytes()).map_err(|why| format!("`{text}` is {why}"))?;
+            let z = C64::new(si, 0.0);
             return finish(col, text, if neg { -z } else { z }, q);
         }
         // `number unit`, with the unit read once per distinct spelling.
@@ -608,8 +629,10 @@ impl ValueReader {
             if let (Some((neg, digits)), false) = (plain_number(num), unit.contains(char::is_whitespace)) {
                 if let Some(u) = self.unit(unit) {
                     let v: f64 = digits.parse().map_err(|_| format!("`{text}` is not a number"))?;
-                    if v.is_finite() {
-                        let z = C64::new(v, 0.0) * u.factor;
+                    // Out of range: the sheet language's own reading
+                    // (below) words the error.
+                    if let Ok(si) = si_value(v, u.factor, digits.as_bytes()) {
+                        let z = C64::new(si, 0.0);
                         return finish(col, text, if neg { -z } else { z }, u.q);
                     }
                 }

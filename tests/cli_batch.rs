@@ -502,3 +502,35 @@ fn chunks_written_at_their_places_equal_the_stream_in_order() {
     assert_eq!(a.iter().filter(|&&c| c == b'\n').count(), 5_001);
     assert!(a == b, "files differ");
 }
+
+/// A value that is not a double in SI units is a bad row, as the same
+/// number is an error in a sheet: too large once the unit is applied,
+/// or a non-zero number too small to be anything but 0 (the limits of an
+/// IEEE 754 double: about 1.8e308 and 4.9e-324). An exact zero is fine.
+#[test]
+fn values_beyond_a_double_are_bad_rows_not_infinity_or_zero() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = write(dir.path(), "s.ohm", "V = 120 V\nR = 10 Ω\nI = V / R\n");
+    let cases = write(
+        dir.path(),
+        "c.csv",
+        "V [kV],R\n1e306,10 Ω\n0.12,1e-400 Ω\n1e-400,10 Ω\n0.0e-400,10 Ω\n0.12,1e400 Ω\n0.12,10 Ω\n",
+    );
+    let out = dir.path().join("r.csv");
+    ohmsheet()
+        .args(["batch", s(&sheet), "--cases", s(&cases), "--out", s(&out), "-q"])
+        .assert()
+        .code(1);
+    let rows = read_csv(&out);
+    assert_eq!(rows.len(), 7);
+    assert_eq!(rows[4][2], "0.0", "0 V / 10 Ω: an exact zero is a value");
+    assert_eq!(rows[6][2], "12.0", "120 V / 10 Ω");
+    let errs = read_csv(&dir.path().join("r.errors.csv"));
+    let got: Vec<(&str, &str)> = errs[1..].iter().map(|r| (r[0].as_str(), r[2].as_str())).collect();
+    assert_eq!(got, [("1", "V [kV]"), ("2", "R"), ("3", "V [kV]"), ("5", "R")]);
+    assert!(errs[1][4].contains("beyond the range of a double"), "{:?}", errs[1]);
+    assert!(errs[3][4].contains("below the smallest double"), "{:?}", errs[3]);
+    for e in &errs[1..] {
+        assert!(!e[4].is_empty(), "{e:?}");
+    }
+}
