@@ -206,6 +206,33 @@ fn abandoned(primary: &Path) -> Vec<(PathBuf, File)> {
         .collect()
 }
 
+/// Remove the lock files of side sessions that ended before writing any
+/// change (killed ones leave their lock file; their journal never was).
+fn sweep_side_locks(primary: &Path) {
+    let (Some(dir), prefix) = (primary.parent(), side_prefix(primary)) else {
+        return;
+    };
+    let Ok(entries) = fs::read_dir(dir) else { return };
+    for e in entries.flatten() {
+        let name = e.file_name().to_string_lossy().into_owned();
+        let Some(journal) = name.strip_suffix(".lock") else {
+            continue;
+        };
+        if !name.starts_with(&prefix) || !journal.ends_with(".journal") {
+            continue;
+        }
+        let journal = dir.join(journal);
+        if journal == primary || journal.exists() {
+            continue;
+        }
+        // Held while removed, so no live session loses its lock file.
+        if let Ok(Some(lock)) = try_lock(&journal) {
+            let _ = fs::remove_file(lock_path(&journal));
+            drop(lock);
+        }
+    }
+}
+
 /// The journal a session writes to. The file is made on the first change.
 #[derive(Debug)]
 pub struct Journal {
@@ -259,6 +286,7 @@ impl Journal {
                         drop(lock);
                     }
                 }
+                sweep_side_locks(&primary);
             }
             Ok(None) => {
                 let dir = primary.parent().unwrap_or(Path::new("."));
@@ -456,6 +484,33 @@ mod tests {
         names.sort();
         let own = p.file_name().unwrap().to_string_lossy().into_owned();
         assert_eq!(names, [own.clone(), format!("{own}.lock")]);
+    }
+
+    #[test]
+    fn lock_files_of_side_sessions_killed_early_are_swept() {
+        let dir = tempfile::tempdir().unwrap();
+        let p = journal_path(dir.path(), Some(Path::new("site.ohm")));
+        let a = Journal::claim(p.clone(), None, "x = 1");
+        let mut b = Journal::claim(p.clone(), None, "x = 1");
+        let live = Journal::claim(p.clone(), None, "x = 1");
+        assert!(b.is_side() && live.is_side());
+        // B is killed before any change: the process lets go of its lock,
+        // but nothing removes its lock file.
+        let b_lock = lock_path(&b.path);
+        drop(b.lock.take());
+        std::mem::forget(b);
+        drop(a);
+        assert!(b_lock.exists());
+        let c = Journal::claim(p.clone(), None, "x = 1");
+        assert!(!c.is_side());
+        assert!(!b_lock.exists(), "swept");
+        assert!(
+            lock_path(&live.path).exists(),
+            "a live side session keeps its lock file"
+        );
+        assert!(lock_path(&p).exists());
+        drop(live);
+        drop(c);
     }
 
     #[test]
