@@ -492,77 +492,48 @@ fn plain_number_bytes(s: &[u8]) -> Option<(bool, &[u8])> {
     (i == b.len()).then_some((neg, b))
 }
 
-/// The value of the digits part of a plain number (what
-/// [`plain_number_bytes`] accepted, without its sign), bit for bit what
-/// `str::parse::<f64>` gives, or `None` to ask `str::parse`.
+/// A plain decimal in one pass, `[+-]?(digits[.digits*] | .digits)`
+/// with no exponent: (negative, magnitude), the magnitude bit for bit what
+/// `str::parse::<f64>` gives; `None` for anything else, or where this fast
+/// reading does not apply (the general path then reads it).
 ///
 /// Clinger's fast path: when the digits, read as one integer `m`, are at
-/// most 2^53 and the power of ten `e` is within ±22, both `m` and `10^|e|`
-/// are exact doubles, so one multiplication or division, rounded once, is
-/// the correctly rounded value — the same bits `str::parse` returns.
-/// Case tables are mostly such numbers (`13.8`, `0.477742181`).
-fn decimal_value(b: &[u8]) -> Option<f64> {
+/// most 2^53 and there are at most 22 after the point, both `m` and
+/// `10^frac` are exact doubles, so one division, rounded once, is the
+/// correctly rounded value. Case tables are mostly such numbers (`13.8`,
+/// `0.477742181`).
+fn plain_decimal(s: &[u8]) -> Option<(bool, f64)> {
     const POW10: [f64; 23] = [
         1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19,
         1e20, 1e21, 1e22,
     ];
+    let (neg, b) = match s.first()? {
+        b'-' => (true, &s[1..]),
+        b'+' => (false, &s[1..]),
+        _ => (false, s),
+    };
     let mut m: u64 = 0;
-    let mut digits = 0u32;
-    let mut frac = 0i32;
     let mut i = 0;
-    let mut seen_point = false;
-    while i < b.len() {
-        match b[i] {
-            c @ b'0'..=b'9' => {
-                if m == 0 && c == b'0' {
-                    // leading zeros add no digit
-                } else {
-                    digits += 1;
-                    if digits > 19 {
-                        return None;
-                    }
-                    m = m * 10 + u64::from(c - b'0');
-                }
-                if seen_point {
-                    frac += 1;
-                }
-            }
-            b'.' => seen_point = true,
-            _ => break,
-        }
+    while i < b.len() && b[i].is_ascii_digit() {
+        m = m.wrapping_mul(10).wrapping_add(u64::from(b[i] - b'0'));
         i += 1;
     }
-    let mut e = -frac;
-    if i < b.len() {
-        // `e`/`E`, an optional sign and digits (checked by plain_number_bytes)
+    let int_digits = i;
+    let mut frac = 0;
+    if i < b.len() && b[i] == b'.' {
         i += 1;
-        let neg = match b.get(i) {
-            Some(b'-') => {
-                i += 1;
-                true
-            }
-            Some(b'+') => {
-                i += 1;
-                false
-            }
-            _ => false,
-        };
-        let mut x: i32 = 0;
-        for &c in &b[i..] {
-            x = x.checked_mul(10)?.checked_add(i32::from(c.wrapping_sub(b'0')))?;
+        let start = i;
+        while i < b.len() && b[i].is_ascii_digit() {
+            m = m.wrapping_mul(10).wrapping_add(u64::from(b[i] - b'0'));
+            i += 1;
         }
-        e = e.checked_add(if neg { -x } else { x })?;
+        frac = i - start;
     }
-    if m > 1 << 53 {
+    // At most 19 digits in all, so `m` did not wrap (10^19 < 2^64).
+    if i != b.len() || int_digits + frac == 0 || int_digits + frac > 19 || frac > 22 || m > 1 << 53 {
         return None;
     }
-    let m = m as f64;
-    match e {
-        0..=22 => Some(m * POW10[e as usize]),
-        -22..=-1 => Some(m / POW10[(-e) as usize]),
-        _ if m == 0.0 => Some(0.0),
-        _ => None,
-    }
+    Some((neg, m as f64 / POW10[frac]))
 }
 
 /// Does the digits part of a plain number have a non-zero digit before its
@@ -598,9 +569,11 @@ impl ValueReader {
         // that this column accepts. Anything else (or a number beyond the
         // range of a double) takes the general path below, which also
         // words the errors.
-        if let (Some(factor), Some((neg, digits))) = (col.plain_factor, plain_number_bytes(bytes.trim_ascii())) {
-            let v = decimal_value(digits).or_else(|| std::str::from_utf8(digits).ok()?.parse::<f64>().ok());
-            if let Some(Ok(si)) = v.map(|v| si_value(v, factor, digits)) {
+        if let (Some(factor), Some((neg, v))) = (col.plain_factor, plain_decimal(bytes.trim_ascii())) {
+            // In range in SI units (as `si_value` checks; `v` is 0 only
+            // for a zero mantissa).
+            let si = v * factor;
+            if si.is_finite() && (si != 0.0 || v == 0.0) {
                 let z = C64::new(si, 0.0);
                 return Ok(if neg { -z } else { z });
             }
@@ -1359,7 +1332,7 @@ mod tests {
     /// The fast path gives exactly what `str::parse` gives (the standard
     /// library's correctly rounded reading is the reference).
     #[test]
-    fn decimal_values_match_the_standard_library_bit_for_bit() {
+    fn plain_decimals_match_the_standard_library_bit_for_bit() {
         let mut rng = 0x9E37_79B9_7F4A_7C15u64;
         let mut next = |n: u64| {
             rng ^= rng << 13;
@@ -1409,13 +1382,23 @@ mod tests {
             cases.push(t);
         }
         for t in &cases {
-            let (neg, digits) = plain_number_bytes(t.as_bytes()).expect(t);
-            assert!(!neg);
+            assert!(plain_number(t).is_some(), "{t}");
             let want: f64 = t.parse().unwrap();
-            if let Some(got) = decimal_value(digits) {
+            if let Some((neg, got)) = plain_decimal(t.as_bytes()) {
                 fast += 1;
+                assert!(!neg);
                 assert_eq!(got.to_bits(), want.to_bits(), "{t}");
             }
+            // Signed, and never taking what the language would not read.
+            if let Some((neg, got)) = plain_decimal(format!("-{t}").as_bytes()) {
+                assert!(neg);
+                assert_eq!(got.to_bits(), want.to_bits(), "-{t}");
+            }
+        }
+        for bad in [
+            "", ".", "-", "+", "1.2.3", "1e3", "1,5", " 1", "1 ", "--1", "0x10", "١٢",
+        ] {
+            assert_eq!(plain_decimal(bad.as_bytes()), None, "{bad:?}");
         }
         // most of them take the fast path, or this test checks little
         assert!(fast > cases.len() / 2, "{fast} of {}", cases.len());
