@@ -745,13 +745,13 @@ fn push_field(out: &mut Vec<u8>, f: &[u8]) {
 #[inline(always)]
 fn push_short(out: &mut Vec<u8>, s: &[u8]) {
     let n = s.len();
-    if !(4..=32).contains(&n) {
+    if !(1..=32).contains(&n) {
         out.extend_from_slice(s);
         return;
     }
     out.reserve(n);
     // SAFETY: `reserve` made room for `n` more bytes after `len`; every copy
-    // reads inside `s` (n >= 4, and each copy of k <= n bytes starts at 0 or
+    // reads inside `s` (n >= 1, and each copy of k <= n bytes starts at 0 or
     // at n - k) and writes inside the reserved room, and as k <= n <= 2k the
     // two copies cover all `n` bytes before `set_len` exposes them.
     unsafe {
@@ -767,8 +767,12 @@ fn push_short(out: &mut Vec<u8>, s: &[u8]) {
             two(16)
         } else if n >= 8 {
             two(8)
-        } else {
+        } else if n >= 4 {
             two(4)
+        } else if n >= 2 {
+            two(2)
+        } else {
+            two(1)
         }
         out.set_len(out.len() + n);
     }
@@ -1402,6 +1406,17 @@ mod tests {
         }
         // most of them take the fast path, or this test checks little
         assert!(fast > cases.len() / 2, "{fast} of {}", cases.len());
+    }
+
+    #[test]
+    fn short_copies_append_exactly_the_bytes() {
+        let src: Vec<u8> = (0..40u8).map(|b| b'A' + b).collect();
+        for n in 0..=40 {
+            let mut out = b"xy".to_vec();
+            push_short(&mut out, &src[..n]);
+            assert_eq!(&out[..2], b"xy");
+            assert_eq!(&out[2..], &src[..n], "{n} bytes");
+        }
     }
 
     #[test]
