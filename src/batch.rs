@@ -549,11 +549,12 @@ fn mantissa_nonzero(digits: &[u8]) -> bool {
 /// in coherent SI units, when that is a double: not overflowing
 /// (`1e308 kV`) and not a non-zero number that underflows to zero
 /// (`1e-400`), the same rule as for numbers in a sheet.
-fn si_value(v: f64, factor: f64, digits: &[u8]) -> Result<f64, &'static str> {
+/// `nonzero`: the literal's mantissa has a non-zero digit.
+fn si_value(v: f64, factor: f64, nonzero: bool) -> Result<f64, &'static str> {
     let si = v * factor;
     if !si.is_finite() {
         Err("beyond the range of a double (about 1.8e308) in SI units")
-    } else if si == 0.0 && mantissa_nonzero(digits) {
+    } else if si == 0.0 && nonzero {
         Err("below the smallest double (about 5e-324) in SI units; it would read as 0")
     } else {
         Ok(si)
@@ -570,10 +571,8 @@ impl ValueReader {
         // range of a double) takes the general path below, which also
         // words the errors.
         if let (Some(factor), Some((neg, v))) = (col.plain_factor, plain_decimal(bytes.trim_ascii())) {
-            // In range in SI units (as `si_value` checks; `v` is 0 only
-            // for a zero mantissa).
-            let si = v * factor;
-            if si.is_finite() && (si != 0.0 || v == 0.0) {
+            // Read exactly, `v` is 0 only for a zero mantissa.
+            if let Ok(si) = si_value(v, factor, v != 0.0) {
                 let z = C64::new(si, 0.0);
                 return Ok(if neg { -z } else { z });
             }
@@ -592,7 +591,8 @@ impl ValueReader {
                 Some(u) => (u.factor, u.q),
                 None => (1.0, Quantity::PLAIN),
             };
-            let si = si_value(v, factor, digits.as_bytes()).map_err(|why| format!("`{text}` is {why}"))?;
+            let si =
+                si_value(v, factor, mantissa_nonzero(digits.as_bytes())).map_err(|why| format!("`{text}` is {why}"))?;
             let z = C64::new(si, 0.0);
             return finish(col, text, if neg { -z } else { z }, q);
         }
@@ -604,7 +604,7 @@ impl ValueReader {
                     let v: f64 = digits.parse().map_err(|_| format!("`{text}` is not a number"))?;
                     // Out of range: the sheet language's own reading
                     // (below) words the error.
-                    if let Ok(si) = si_value(v, u.factor, digits.as_bytes()) {
+                    if let Ok(si) = si_value(v, u.factor, mantissa_nonzero(digits.as_bytes())) {
                         let z = C64::new(si, 0.0);
                         return finish(col, text, if neg { -z } else { z }, u.q);
                     }

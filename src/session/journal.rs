@@ -181,23 +181,30 @@ fn side_prefix(primary: &Path) -> String {
     format!("{stem}.")
 }
 
-/// Side journals beside `primary` whose sessions have ended (their lock is
-/// free), with the lock now held, oldest first.
-fn abandoned(primary: &Path) -> Vec<(PathBuf, File)> {
+/// What lies beside `primary` for side sessions on the same sheet: side
+/// journals and their lock files, as (file name, path).
+fn side_entries(primary: &Path) -> Vec<(String, PathBuf)> {
     let (Some(dir), prefix) = (primary.parent(), side_prefix(primary)) else {
         return Vec::new();
     };
     let Ok(entries) = fs::read_dir(dir) else {
         return Vec::new();
     };
-    let mut found: Vec<(std::time::SystemTime, PathBuf)> = entries
+    let own_lock = lock_path(primary);
+    entries
         .flatten()
-        .filter_map(|e| {
-            let name = e.file_name().to_string_lossy().into_owned();
-            let side = name.starts_with(&prefix) && name.ends_with(".journal") && e.path() != primary;
-            let at = e.metadata().and_then(|m| m.modified()).ok()?;
-            side.then(|| (at, e.path()))
-        })
+        .map(|e| (e.file_name().to_string_lossy().into_owned(), e.path()))
+        .filter(|(name, path)| name.starts_with(&prefix) && *path != primary && *path != own_lock)
+        .collect()
+}
+
+/// Side journals beside `primary` whose sessions have ended (their lock is
+/// free), with the lock now held, oldest first.
+fn abandoned(primary: &Path) -> Vec<(PathBuf, File)> {
+    let mut found: Vec<(std::time::SystemTime, PathBuf)> = side_entries(primary)
+        .into_iter()
+        .filter(|(name, _)| name.ends_with(".journal"))
+        .filter_map(|(_, path)| Some((fs::metadata(&path).and_then(|m| m.modified()).ok()?, path)))
         .collect();
     found.sort();
     found
@@ -209,20 +216,12 @@ fn abandoned(primary: &Path) -> Vec<(PathBuf, File)> {
 /// Remove the lock files of side sessions that ended before writing any
 /// change (killed ones leave their lock file; their journal never was).
 fn sweep_side_locks(primary: &Path) {
-    let (Some(dir), prefix) = (primary.parent(), side_prefix(primary)) else {
-        return;
-    };
-    let Ok(entries) = fs::read_dir(dir) else { return };
-    for e in entries.flatten() {
-        let name = e.file_name().to_string_lossy().into_owned();
-        let Some(journal) = name.strip_suffix(".lock") else {
+    for (name, path) in side_entries(primary) {
+        let Some(journal) = name.strip_suffix(".lock").filter(|j| j.ends_with(".journal")) else {
             continue;
         };
-        if !name.starts_with(&prefix) || !journal.ends_with(".journal") {
-            continue;
-        }
-        let journal = dir.join(journal);
-        if journal == primary || journal.exists() {
+        let journal = path.with_file_name(journal);
+        if journal.exists() {
             continue;
         }
         // Held while removed, so no live session loses its lock file.
