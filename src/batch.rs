@@ -17,8 +17,10 @@ use std::io::{self, Read, Write};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::{mpsc, Arc};
 
-use csv::ByteRecord;
 use num_complex::Complex64 as C64;
+
+mod cases;
+pub use cases::{Cases, Row, Rows};
 
 use crate::diag::{did_you_mean, Diagnostic, ErrorCode};
 use crate::engine::block::{Block, LANES};
@@ -810,7 +812,7 @@ impl Plan {
     pub fn eval_rows(
         &self,
         w: &mut Worker,
-        rows: &[ByteRecord],
+        rows: &Rows,
         first_case: u64,
         out: &mut Vec<u8>,
         errors: &mut Vec<RowError>,
@@ -818,11 +820,12 @@ impl Plan {
         let prog = &self.model.program;
         let ncols = self.columns.len();
         let mut num = zmij::Buffer::new();
-        for (g, group) in rows.chunks(LANES).enumerate() {
+        for (g, first) in (0..rows.len()).step_by(LANES).enumerate() {
+            let group = || (first..rows.len().min(first + LANES)).map(|i| rows.row(i)).enumerate();
             let mut ok = [true; LANES];
-            for (lane, rec) in group.iter().enumerate() {
+            for (lane, rec) in group() {
                 let case = first_case + (g * LANES + lane) as u64 + 1;
-                let line = rec.position().map_or(0, |p| p.line());
+                let line = rec.line();
                 let mut bad = |column: &str, value: &[u8], reason: String| {
                     errors.push(RowError {
                         case,
@@ -842,38 +845,45 @@ impl Plan {
                     continue;
                 }
                 for (k, col) in self.columns.iter().enumerate() {
-                    match w.reader.read(self, k, &rec[k]) {
+                    let text = rec.get(k).unwrap_or_default();
+                    match w.reader.read(self, k, text) {
                         Ok(z) => w.block.set(col.slot, lane, z),
                         Err(reason) => {
                             ok[lane] = false;
-                            bad(&col.header, &rec[k], reason);
+                            bad(&col.header, text, reason);
                         }
                     }
                 }
             }
             w.block.run(&prog.code, prog);
             let suspect = self.suspect_lanes(&w.block);
-            for (lane, rec) in group.iter().enumerate() {
+            for (lane, rec) in group() {
                 if ok[lane] && suspect & (1 << lane) != 0 {
                     if let Some(e) = self.nan_in_lane(&w.block, lane) {
                         ok[lane] = false;
                         let case = first_case + (g * LANES + lane) as u64 + 1;
-                        let line = rec.position().map_or(0, |p| p.line());
                         errors.push(RowError {
                             case,
-                            line,
+                            line: rec.line(),
                             column: e.0,
                             value: String::new(),
                             reason: e.1,
                         });
                     }
                 }
-                for k in 0..ncols {
-                    if k > 0 {
-                        out.push(b',');
-                    }
-                    if let Some(f) = rec.get(k) {
-                        push_field(out, f);
+                // The case's own fields: as written, where that is how
+                // they are written back.
+                match rec.plain_text() {
+                    Some(text) if rec.len() == ncols => push_short(out, text),
+                    _ => {
+                        for k in 0..ncols {
+                            if k > 0 {
+                                out.push(b',');
+                            }
+                            if let Some(f) = rec.get(k) {
+                                push_field(out, f);
+                            }
+                        }
                     }
                 }
                 if !ok[lane] {
@@ -1012,7 +1022,7 @@ pub struct Summary {
 /// A run that could not go on.
 #[derive(Debug)]
 pub enum StreamError {
-    Read(csv::Error),
+    Read(io::Error),
     Write(io::Error),
     Internal(String),
 }
@@ -1030,8 +1040,7 @@ impl std::fmt::Display for StreamError {
 struct Chunk {
     seq: u64,
     first_case: u64,
-    rows: Vec<ByteRecord>,
-    len: usize,
+    rows: Rows,
     /// Byte offset in the cases file after this chunk.
     end_byte: u64,
     out: Vec<u8>,
@@ -1057,7 +1066,7 @@ pub fn chunks_in_flight(opts: &StreamOptions) -> usize {
 /// each chunk is written.
 pub fn run_stream<R: Read + Send + 'static>(
     plan: Arc<Plan>,
-    cases: csv::Reader<R>,
+    cases: Cases<R>,
     out: &mut dyn Write,
     on_errors: &mut dyn FnMut(&[RowError]) -> io::Result<()>,
     progress: &mut dyn FnMut(u64, u64),
@@ -1077,7 +1086,7 @@ pub fn run_stream<R: Read + Send + 'static>(
 #[cfg(unix)]
 pub fn run_stream_at<R: Read + Send + 'static>(
     plan: Arc<Plan>,
-    cases: csv::Reader<R>,
+    cases: Cases<R>,
     file: std::fs::File,
     start: u64,
     on_errors: &mut dyn FnMut(&[RowError]) -> io::Result<()>,
@@ -1172,7 +1181,7 @@ impl Placed {
 
 fn stream<R: Read + Send + 'static>(
     plan: Arc<Plan>,
-    mut cases: csv::Reader<R>,
+    mut cases: Cases<R>,
     mut sink: Sink<'_>,
     on_errors: &mut dyn FnMut(&[RowError]) -> io::Result<()>,
     progress: &mut dyn FnMut(u64, u64),
@@ -1188,8 +1197,7 @@ fn stream<R: Read + Send + 'static>(
         let _ = pool_tx.send(Chunk {
             seq: 0,
             first_case: 0,
-            rows: Vec::new(),
-            len: 0,
+            rows: Rows::default(),
             end_byte: 0,
             out: Vec::new(),
             errors: Vec::new(),
@@ -1213,28 +1221,15 @@ fn stream<R: Read + Send + 'static>(
                 let Ok(mut chunk) = pool_rx.recv() else { return };
                 chunk.seq = seq;
                 chunk.first_case = case;
-                chunk.len = 0;
-                let mut eof = false;
-                while chunk.len < chunk_rows {
-                    if chunk.rows.len() == chunk.len {
-                        chunk.rows.push(ByteRecord::new());
-                    }
-                    match cases.read_byte_record(&mut chunk.rows[chunk.len]) {
-                        Ok(true) => chunk.len += 1,
-                        Ok(false) => {
-                            eof = true;
-                            break;
-                        }
-                        Err(e) => {
-                            let _ = done_tx.send(Msg::Failed(StreamError::Read(e)));
-                            return;
-                        }
-                    }
+                if let Err(e) = cases.next_chunk(chunk_rows, &mut chunk.rows) {
+                    let _ = done_tx.send(Msg::Failed(StreamError::Read(e)));
+                    return;
                 }
-                chunk.end_byte = cases.position().byte();
-                if chunk.len > 0 {
+                chunk.end_byte = cases.byte();
+                let eof = chunk.rows.is_empty();
+                if !eof {
                     seq += 1;
-                    case += chunk.len as u64;
+                    case += chunk.rows.len() as u64;
                     let plan = plan.clone();
                     let done = done_tx.clone();
                     #[cfg(unix)]
@@ -1245,7 +1240,8 @@ fn stream<R: Read + Send + 'static>(
                             c.out.clear();
                             c.errors.clear();
                             let mut w = c.worker.take().unwrap_or_else(|| Worker::new(&plan));
-                            plan.eval_rows(&mut w, &c.rows[..c.len], c.first_case, &mut c.out, &mut c.errors);
+                            c.rows.split_fields();
+                            plan.eval_rows(&mut w, &c.rows, c.first_case, &mut c.out, &mut c.errors);
                             c.worker = Some(w);
                             c
                         }));
@@ -1289,7 +1285,7 @@ fn stream<R: Read + Send + 'static>(
             Err(_) => return fail(StreamError::Internal("the reader stopped".into()), &stop),
         }
         while let Some(c) = waiting.remove(&next) {
-            summary.cases += c.len as u64;
+            summary.cases += c.rows.len() as u64;
             if opts.strict && !c.errors.is_empty() {
                 // Only the rows before the first bad one count as done.
                 let first = c.errors[0].clone();

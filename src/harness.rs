@@ -168,15 +168,15 @@ check abs(I) ~= 46 A +- 50%\n";
 /// The output must be well-formed CSV with one line per case, each as wide
 /// as the header.
 pub fn cases_bytes(data: &[u8]) {
-    use crate::batch::{run_stream, ComplexForm, Plan, StreamOptions};
+    use crate::batch::{run_stream, Cases, ComplexForm, Plan, StreamOptions};
     use std::sync::Arc;
     let model = compile(&Sheet::from_text("cases.ohm", CASES_SHEET));
     assert!(!model.has_errors());
-    let mut cases = csv::ReaderBuilder::new()
-        .flexible(true)
-        .from_reader(std::io::Cursor::new(data.to_vec()));
-    let headers: Vec<String> = match cases.byte_headers() {
-        Ok(h) if h.iter().any(|f| !f.is_empty()) => h.iter().map(|f| String::from_utf8_lossy(f).into_owned()).collect(),
+    let mut cases = Cases::with_buffer(std::io::Cursor::new(data.to_vec()), 64);
+    let headers: Vec<String> = match cases.header() {
+        Ok(Some(h)) if h.iter().any(|f| !f.is_empty()) => {
+            h.iter().map(|f| String::from_utf8_lossy(f).into_owned()).collect()
+        }
         _ => return,
     };
     let form = if data.len().is_multiple_of(2) {

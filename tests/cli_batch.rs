@@ -8,7 +8,13 @@ use std::sync::atomic::{AtomicU64, Ordering};
 use std::sync::Arc;
 
 use num_complex::Complex64 as C64;
-use ohmsheet::batch::{run_stream, ComplexForm, Plan, RowError, StreamOptions};
+use ohmsheet::batch::{run_stream, Cases, ComplexForm, Plan, RowError, StreamOptions};
+
+/// The names in the first record of a cases table.
+fn header_names<R: std::io::Read>(cases: &mut Cases<R>) -> Vec<String> {
+    let h = cases.header().unwrap().expect("a header");
+    h.iter().map(|f| String::from_utf8(f.clone()).unwrap()).collect()
+}
 use predicates::prelude::*;
 
 use crate::assert_close;
@@ -356,8 +362,8 @@ fn streaming_keeps_order_and_bounded_rows_in_flight() {
         pos: 0,
         produced: produced.clone(),
     };
-    let mut reader = csv::ReaderBuilder::new().buffer_capacity(4096).from_reader(gen);
-    let headers: Vec<String> = reader.headers().unwrap().iter().map(str::to_string).collect();
+    let mut reader = Cases::with_buffer(gen, 4096);
+    let headers = header_names(&mut reader);
     let plan = Arc::new(Plan::new(m, &headers, None, ComplexForm::Rect).unwrap());
     let opts = StreamOptions {
         strict: false,
@@ -458,8 +464,8 @@ fn chunks_written_at_their_places_equal_the_stream_in_order() {
     }
     let m = Arc::new(model(FEEDER));
     let run = |placed: bool| -> (Vec<u8>, Vec<RowError>) {
-        let mut reader = csv::Reader::from_reader(std::io::Cursor::new(table.clone().into_bytes()));
-        let headers: Vec<String> = reader.headers().unwrap().iter().map(str::to_string).collect();
+        let mut reader = Cases::new(std::io::Cursor::new(table.clone().into_bytes()));
+        let headers = header_names(&mut reader);
         let plan = Arc::new(Plan::new(m.clone(), &headers, None, ComplexForm::Polar).unwrap());
         let opts = StreamOptions {
             strict: false,
@@ -532,5 +538,35 @@ fn values_beyond_a_double_are_bad_rows_not_infinity_or_zero() {
     assert!(errs[3][4].contains("below the smallest double"), "{:?}", errs[3]);
     for e in &errs[1..] {
         assert!(!e[4].is_empty(), "{e:?}");
+    }
+}
+
+/// The errors file gives the line a bad row is on as an editor shows the
+/// cases file: blank lines counted, `\r\n` one line end, a quoted field
+/// with a line end inside taking two lines. (Read through the csv
+/// crate's positions, a `\r\n` file put every row one line too early.)
+#[test]
+fn bad_rows_give_the_line_they_are_on() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = write(dir.path(), "s.ohm", "V = 120 V\nR = 10 Ω\nI = V / R\n");
+    let out = dir.path().join("r.csv");
+    for (name, text, lines) in [
+        (
+            "crlf.csv",
+            "V [V],R\r\n120,10 Ω\r\n12O,10 Ω\r\n\r\n120,1O Ω\r\n",
+            &["3", "5"][..],
+        ),
+        ("lf.csv", "V [V],R\n\n12O,10 Ω\n120,10 Ω\n\n\n120,1O Ω", &["3", "7"]),
+        // both fields of the quoted row are bad
+        ("quoted.csv", "V [V],R\n\"12O\",\"10\nΩ\"\n120,1O Ω\n", &["2", "2", "4"]),
+    ] {
+        let cases = write(dir.path(), name, text);
+        ohmsheet()
+            .args(["batch", s(&sheet), "--cases", s(&cases), "--out", s(&out), "-q"])
+            .assert()
+            .code(1);
+        let errs = read_csv(&dir.path().join("r.errors.csv"));
+        let got: Vec<&str> = errs[1..].iter().map(|r| r[1].as_str()).collect();
+        assert_eq!(got, lines, "{name}: {errs:?}");
     }
 }

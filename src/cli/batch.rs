@@ -11,7 +11,7 @@ use super::{load_model, report, BatchArgs, ComplexArg, EXIT_CHECK_FAILED, EXIT_E
 use crate::batch::run_stream;
 #[cfg(unix)]
 use crate::batch::run_stream_at;
-use crate::batch::{csv_line, ComplexForm, Plan, RowError, StreamOptions};
+use crate::batch::{csv_line, Cases, ComplexForm, Plan, RowError, StreamOptions};
 use crate::diag::{Diagnostic, ErrorCode, SourceMap};
 use crate::fsutil::{remove_partial_files_on_interrupt, same_file, AtomicFile};
 
@@ -52,12 +52,11 @@ pub fn batch(a: &BatchArgs) -> i32 {
         Err(e) => return fail(format!("cannot read `{}`: {e}", a.cases.display())),
     };
     let total_bytes = file.metadata().map(|m| m.len()).unwrap_or(0);
-    let mut cases = csv::ReaderBuilder::new()
-        .flexible(true)
-        .buffer_capacity(1 << 20)
-        .from_reader(file);
-    let headers: Vec<String> = match cases.byte_headers() {
-        Ok(h) if h.iter().any(|f| !f.is_empty()) => h.iter().map(|f| String::from_utf8_lossy(f).into_owned()).collect(),
+    let mut cases = Cases::new(file);
+    let headers: Vec<String> = match cases.header() {
+        Ok(Some(h)) if h.iter().any(|f| !f.is_empty()) => {
+            h.iter().map(|f| String::from_utf8_lossy(f).into_owned()).collect()
+        }
         Ok(_) => {
             return fail(format!(
                 "`{}` is empty; its first line names the inputs a case sets",
