@@ -746,16 +746,27 @@ fn push_field(out: &mut Vec<u8>, f: &[u8]) {
 /// a batch run's time.
 #[inline(always)]
 fn push_short(out: &mut Vec<u8>, s: &[u8]) {
+    out.reserve(s.len());
+    // SAFETY: room for `s` was just reserved.
+    unsafe { put_short(out, s) }
+}
+
+/// [`push_short`] into room already reserved.
+///
+/// # Safety
+/// `out` must have room for `s.len()` more bytes.
+#[inline(always)]
+unsafe fn put_short(out: &mut Vec<u8>, s: &[u8]) {
     let n = s.len();
+    debug_assert!(out.capacity() - out.len() >= n);
     if !(1..=32).contains(&n) {
         out.extend_from_slice(s);
         return;
     }
-    out.reserve(n);
-    // SAFETY: `reserve` made room for `n` more bytes after `len`; every copy
-    // reads inside `s` (n >= 1, and each copy of k <= n bytes starts at 0 or
-    // at n - k) and writes inside the reserved room, and as k <= n <= 2k the
-    // two copies cover all `n` bytes before `set_len` exposes them.
+    // SAFETY: the caller made room for `n` more bytes after `len`; every
+    // copy reads inside `s` (n >= 1, and each copy of k <= n bytes starts
+    // at 0 or at n - k) and writes inside that room, and as k <= n <= 2k
+    // the two copies cover all `n` bytes before `set_len` exposes them.
     unsafe {
         let dst = out.as_mut_ptr().add(out.len());
         let src = s.as_ptr();
@@ -782,16 +793,27 @@ fn push_short(out: &mut Vec<u8>, s: &[u8]) {
 
 /// A number written so it reads back to the same bits.
 fn push_num(out: &mut Vec<u8>, x: f64, buf: &mut zmij::Buffer) {
+    push_short(out, num_text(x, buf));
+}
+
+/// The text of `x` that reads back to the same bits: in `buf` when `x` is
+/// finite; `NaN`, `inf` or `-inf` otherwise, as `str::parse` reads them.
+#[inline(always)]
+fn num_text(x: f64, buf: &mut zmij::Buffer) -> &[u8] {
     if x.is_finite() {
-        push_short(out, buf.format_finite(x).as_bytes());
+        buf.format_finite(x).as_bytes()
     } else if x.is_nan() {
-        out.extend_from_slice(b"NaN");
+        b"NaN"
     } else if x > 0.0 {
-        out.extend_from_slice(b"inf");
+        b"inf"
     } else {
-        out.extend_from_slice(b"-inf");
+        b"-inf"
     }
 }
+
+/// Shown values whose numbers are converted together (see
+/// `Plan::write_shown`); two buffers of 24 bytes each on the stack.
+const SHOWN_GROUP: usize = 32;
 
 /// A whole CSV record, fields quoted as needed.
 pub fn csv_line<S: AsRef<[u8]>>(fields: &[S]) -> Vec<u8> {
@@ -819,7 +841,6 @@ impl Plan {
     ) {
         let prog = &self.model.program;
         let ncols = self.columns.len();
-        let mut num = zmij::Buffer::new();
         for (g, first) in (0..rows.len()).step_by(LANES).enumerate() {
             let group = || (first..rows.len().min(first + LANES)).map(|i| rows.row(i)).enumerate();
             let mut ok = [true; LANES];
@@ -893,15 +914,7 @@ impl Plan {
                     out.push(b'\n');
                     continue;
                 }
-                for (k, s) in self.shown.iter().enumerate() {
-                    if k > 0 || ncols > 0 {
-                        out.push(b',');
-                    }
-                    match &s.fixed {
-                        Some(text) => out.extend_from_slice(text),
-                        None => self.write_value(s, w.block.get(s.slot, lane), out, &mut num),
-                    }
-                }
+                self.write_shown(&w.block, lane, ncols > 0, out);
                 out.push(b'\n');
             }
         }
@@ -910,20 +923,76 @@ impl Plan {
     }
 
     /// One shown value: one number, or two joined by a comma.
-    #[inline]
     fn write_value(&self, s: &Shown, z: C64, out: &mut Vec<u8>, num: &mut zmij::Buffer) {
+        let (a, b) = self.numbers(s, z);
+        push_num(out, a, num);
+        if let Some(b) = b {
+            out.push(b',');
+            push_num(out, b, num);
+        }
+    }
+
+    /// The number, or the two numbers, written for the shown value `z`.
+    #[inline(always)]
+    fn numbers(&self, s: &Shown, z: C64) -> (f64, Option<f64>) {
         // x / 1 is x: skip the division for values shown in SI units.
         let scaled = |x: f64| if s.scale == 1.0 { x } else { x / s.scale };
         if s.real {
-            return push_num(out, scaled(z.re), num);
+            return (scaled(z.re), None);
         }
-        let (a, b) = match self.form {
-            ComplexForm::Rect => (scaled(z.re), scaled(z.im)),
-            ComplexForm::Polar => (scaled(ops::abs(z)), z.im.atan2(z.re).to_degrees()),
-        };
-        push_num(out, a, num);
-        out.push(b',');
-        push_num(out, b, num);
+        match self.form {
+            ComplexForm::Rect => (scaled(z.re), Some(scaled(z.im))),
+            ComplexForm::Polar => (scaled(ops::abs(z)), Some(z.im.atan2(z.re).to_degrees())),
+        }
+    }
+
+    /// The shown values of `lane`, each after a comma when `lead` or when
+    /// not the first.
+    ///
+    /// The numbers of up to [`SHOWN_GROUP`] shown values are all
+    /// converted, each into its own buffer, before any is copied out.
+    /// Copied out straight after its conversion, each number's text was
+    /// read back while the stores that wrote it were still in flight, and
+    /// the copy waited for them; converted apart, the conversions do not
+    /// wait on one another and the copies come after the stores have
+    /// landed. Measured in turns on one thread pinned to one core (the
+    /// steadiest measure on this machine): −5% for a whole batch run.
+    fn write_shown(&self, block: &Block, lane: usize, lead: bool, out: &mut Vec<u8>) {
+        let mut first = !lead;
+        for group in self.shown.chunks(SHOWN_GROUP) {
+            let mut bufs: [zmij::Buffer; 2 * SHOWN_GROUP] = std::array::from_fn(|_| zmij::Buffer::new());
+            let mut texts: [&[u8]; 2 * SHOWN_GROUP] = [b""; 2 * SHOWN_GROUP];
+            let mut n = 0;
+            // Two buffers for each shown value of the group.
+            for (s, pair) in group.iter().zip(bufs.chunks_exact_mut(2)) {
+                if let Some(text) = &s.fixed {
+                    texts[n] = text;
+                    n += 1;
+                    continue;
+                }
+                let (ba, bb) = pair.split_at_mut(1);
+                let (a, b) = self.numbers(s, block.get(s.slot, lane));
+                texts[n] = num_text(a, &mut ba[0]);
+                n += 1;
+                if let Some(b) = b {
+                    texts[n] = num_text(b, &mut bb[0]);
+                    n += 1;
+                }
+            }
+            let texts = &texts[..n];
+            out.reserve(texts.iter().map(|t| t.len() + 1).sum());
+            for t in texts {
+                // SAFETY: room for every text and a comma before each was
+                // reserved above.
+                unsafe {
+                    if !first {
+                        put_short(out, b",");
+                    }
+                    put_short(out, t);
+                }
+                first = false;
+            }
+        }
     }
 
     /// A bit for each lane of the block where a shown value is NaN or has

@@ -570,3 +570,74 @@ fn bad_rows_give_the_line_they_are_on() {
         assert_eq!(got, lines, "{name}: {errs:?}");
     }
 }
+
+/// A row of many shown values (the numbers of a row are converted in
+/// groups of shown values before they are copied out), constants among
+/// them, real and complex, in both forms: every column holds its own
+/// value, in order. The values are exact in binary (multiples of 1/4 and
+/// small integers), so their text is known without running the sheet.
+#[test]
+fn many_shown_values_each_land_in_their_own_column() {
+    let dir = tempfile::tempdir().unwrap();
+    // c5, c15, …: constants (written once, copied into every row);
+    // c3, c6, …: real by construction (one column); the rest complex.
+    let kind = |i: usize| {
+        if i % 10 == 5 {
+            'k'
+        } else if i.is_multiple_of(3) {
+            'r'
+        } else {
+            'c'
+        }
+    };
+    let mut sheet = String::from("x = 1\nk = 7\n");
+    for i in 1..=75 {
+        sheet.push_str(&match kind(i) {
+            'k' => format!("c{i} = k * {i}\n"),
+            'r' => format!("c{i} = re(x) * {i}\n"),
+            _ => format!("c{i} = x * {i} + j*{i}\n"),
+        });
+    }
+    let sheet = write(dir.path(), "s.ohm", &sheet);
+    let cases = write(dir.path(), "c.csv", "x\n0.25\n-3\n1e3\n");
+    let out = dir.path().join("r.csv");
+    for form in ["rect", "polar"] {
+        ohmsheet()
+            .args(["batch", s(&sheet), "--cases", s(&cases), "--out", s(&out), "-q"])
+            .args(["--complex", form])
+            .assert()
+            .success();
+        let rows = read_csv(&out);
+        assert_eq!(rows.len(), 4);
+        for (row, x) in rows[1..].iter().zip([0.25f64, -3.0, 1e3]) {
+            let num = |k: usize| -> f64 { row[k].parse().unwrap() };
+            assert_eq!(num(0), x);
+            let mut col = 1;
+            for i in 1..=75 {
+                let re = x * i as f64;
+                match kind(i) {
+                    'k' => {
+                        assert_eq!(num(col), 7.0 * i as f64, "c{i} ({form}), column {col}");
+                        col += 1;
+                    }
+                    'r' => {
+                        assert_eq!(num(col), re, "c{i} ({form}), column {col}");
+                        col += 1;
+                    }
+                    _ if form == "rect" => {
+                        assert_eq!((num(col), num(col + 1)), (re, i as f64), "c{i}, column {col}");
+                        col += 2;
+                    }
+                    _ => {
+                        // |re + j·i| and its angle in degrees, to rounding.
+                        let (m, a) = (re.hypot(i as f64), (i as f64).atan2(re).to_degrees());
+                        assert!((num(col) - m).abs() <= 1e-12 * m, "c{i} magnitude, column {col}");
+                        assert!((num(col + 1) - a).abs() <= 1e-12 * a.abs(), "c{i} angle");
+                        col += 2;
+                    }
+                }
+            }
+            assert_eq!(row.len(), col, "no column left over");
+        }
+    }
+}
