@@ -131,7 +131,7 @@ def main():
         rows[("python_loop", "-", 1)] = r["ns_per_case"]
 
         # End to end, CSV to CSV, in turns.
-        e2e = {k: ([], []) for k in list(builds) + ["hand " + b for b in builds] + ["python"]}
+        e2e = {k: ([], []) for k in list(builds) + ["hand " + b for b in builds] + ["python", "one thread"]}
         peak = {}
         results = os.path.join(work, "results.csv")
         for rep in range(args.repeats):
@@ -143,6 +143,18 @@ def main():
                 e2e[name][0].append(wall * 1e9 / args.cases)
                 e2e[name][1].append(cpu * 1e9 / args.cases)
                 peak[name] = max(peak.get(name, 0), rss)
+                log(f"  {wall * 1e9 / args.cases:.0f} ns/case wall, {cpu * 1e9 / args.cases:.0f} CPU")
+                if name == "portable":
+                    # The same on one thread: the cost of a case on one
+                    # core, which the load of the machine's other core
+                    # does not change (see docs/performance.md).
+                    os.remove(results)
+                    env = dict(os.environ, RAYON_NUM_THREADS="1")
+                    wall, cpu, _ = run_child([b["ohmsheet"], "batch", sheet, "--cases", cases, "--out", results, "-q"],
+                                             env=env)
+                    e2e["one thread"][0].append(wall * 1e9 / args.cases)
+                    e2e["one thread"][1].append(cpu * 1e9 / args.cases)
+                    log(f"  one thread: {wall * 1e9 / args.cases:.0f} ns/case wall, {cpu * 1e9 / args.cases:.0f} CPU")
                 if rep == 0:
                     subprocess.run([PY, os.path.join(BENCH, "feeder.py"), "check", cases, results, "2000"],
                                    check=True)
@@ -150,6 +162,7 @@ def main():
                 log(f"end to end, hand-written Rust ({name}), run {rep + 1}")
                 os.remove(results)
                 wall, cpu, rss = run_child([b["bench"], "csv", cases, results], stdout=subprocess.DEVNULL)
+                log(f"  {wall * 1e9 / args.cases:.0f} ns/case wall, {cpu * 1e9 / args.cases:.0f} CPU")
                 e2e["hand " + name][0].append(wall * 1e9 / args.cases)
                 e2e["hand " + name][1].append(cpu * 1e9 / args.cases)
                 peak["hand " + name] = max(peak.get("hand " + name, 0), rss)
@@ -162,6 +175,7 @@ def main():
                                            str(args.py_cases)], check=True, capture_output=True, text=True).stdout)[0]
             e2e["python"][0].append(r["ns_per_case"])
             e2e["python"][1].append(r["cpu_ns_per_case"])
+            log(f"  {r['ns_per_case']:.0f} ns/case")
         res_size = os.path.getsize(results)
 
         big = None
@@ -211,6 +225,10 @@ def main():
         w, c = med(e2e[h][0]), med(e2e[h][1])
         print(f"| hand-written Rust ({name}) | {w:.0f} | {c:.0f} | {peak[h] / 1024:.0f} MiB | {pw / w:.0f}× faster |")
     print(f"| Python loop, csv module | {pw:.0f} | {med(e2e['python'][1]):.0f} | | 1× |")
+    w1, c1 = med(e2e["one thread"][0]), med(e2e["one thread"][1])
+    print(f"\nOn one thread (`RAYON_NUM_THREADS=1`, portable): {w1:.0f} ns/case wall, {c1:.0f} CPU, "
+          f"{pw / w1:.0f}× faster than the Python loop; all threads are {w1 / med(e2e['portable'][0]):.2f}× "
+          "faster than one.")
     if big:
         rss_small, rss_big, wall, show = big
         print(f"\nLong run: {args.big_rows:,} cases (`--show {show}`) in {wall:.1f} s, peak memory "
