@@ -200,6 +200,10 @@ pub(super) enum Val {
     Record(Vec<(&'static str, Operand, Quantity)>),
 }
 
+/// Sheets with at least this many cells find their dependencies in
+/// parallel.
+const PARALLEL_DEPS_FROM: usize = 4096;
+
 struct Pending<'a> {
     expr: Option<&'a Expr>,
     check: Option<&'a Check>,
@@ -215,9 +219,12 @@ pub fn compile(sheet: &Sheet) -> Model {
 /// limit).
 pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     let mut diags = sheet.errors.clone();
-    let mut cells: Vec<Cell> = Vec::new();
-    let mut pending: Vec<Pending> = Vec::new();
-    let mut by_name = NameMap::default();
+    // Sized once: on a big sheet, growing these a doubling at a time
+    // copied every cell again and rehashed every name.
+    let lines = sheet.stmts.len().min(max_cells.saturating_add(1));
+    let mut cells: Vec<Cell> = Vec::with_capacity(lines);
+    let mut pending: Vec<Pending> = Vec::with_capacity(lines);
+    let mut by_name = NameMap::with_capacity_and_hasher(lines, Default::default());
     let mut meta = Meta::default();
     let mut ctx = Ctx::default();
     let mut amplitude_seen: Option<Span> = None;
@@ -335,8 +342,10 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
         );
     }
 
-    // Dependencies.
-    for (i, p) in pending.iter().enumerate() {
+    // Dependencies: each cell's on its own, so a big sheet's are found on
+    // every core (the lookups miss the cache; small sheets stay on this
+    // thread).
+    let deps_of = |p: &Pending| {
         let mut deps = Vec::new();
         let mut visit = |id: &Ident| {
             if let Some(&d) = by_name.get(&id.name) {
@@ -355,7 +364,18 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                 t.for_each_name(&mut visit);
             }
         }
-        cells[i].deps = deps;
+        deps
+    };
+    if pending.len() >= PARALLEL_DEPS_FROM {
+        use rayon::prelude::*;
+        let found: Vec<Vec<CellId>> = pending.par_iter().with_min_len(1024).map(deps_of).collect();
+        for (cell, deps) in cells.iter_mut().zip(found) {
+            cell.deps = deps;
+        }
+    } else {
+        for (cell, p) in cells.iter_mut().zip(&pending) {
+            cell.deps = deps_of(p);
+        }
     }
 
     let n = cells.len();
