@@ -2,6 +2,10 @@
 //!
 //! See ARCHITECTURE.md for the code map and the invariants.
 
+// The parser pest derives names `alloc::` when pest is built without its
+// `std` feature (see Cargo.toml).
+extern crate alloc;
+
 pub mod batch;
 pub mod cli;
 pub mod diag;

@@ -89,6 +89,41 @@ fn bracket_depth() {
     );
 }
 
+/// The deepest lines allowed parse on a thread with a small stack (a
+/// library caller's, a test's): the parser moves to a stack of its own
+/// when too little is left, rather than overflowing.
+#[test]
+fn deepest_lines_parse_on_a_small_stack() {
+    let n = LIMITS.max_bracket_depth;
+    let lines = [
+        format!("x = {}2 kV{}", "(".repeat(n), ")".repeat(n)),
+        format!("x = {}1{}", "sqrt(".repeat(n), ")".repeat(n)),
+        format!("x = {}1{}", "max(1, ".repeat(n), ")".repeat(n)),
+        format!("x = {}1{}", "-(".repeat(n), ")".repeat(n)),
+        format!("x = {}2{}", "(2^".repeat(n), ")".repeat(n)),
+        format!("x = {}1{}", "(-j3 ∠ ".repeat(n), ")".repeat(n)),
+    ];
+    let parsed = std::thread::Builder::new()
+        .stack_size(64 * 1024)
+        .spawn(move || {
+            lines
+                .iter()
+                .map(|l| {
+                    parse_line(l, FileId(0), 0, 1)
+                        .map(|s| s.is_some())
+                        .map_err(|d| d.message)
+                })
+                .collect::<Vec<_>>()
+        })
+        .expect("spawn")
+        .join()
+        .expect("no overflow");
+    assert_eq!(parsed, vec![Ok(true); 6]);
+    // And the first one means what it says: 2 kV inside 64 brackets.
+    let e = engine(&format!("x = {}2 kV{}\n", "(".repeat(n), ")".repeat(n)));
+    assert_eq!(value(&e, "x").re, 2000.0);
+}
+
 /// A chain of N terms is a tree N deep; at the limit it compiles and
 /// evaluates (on a test thread's stack), one past it is refused.
 #[test]

@@ -123,6 +123,28 @@ pub fn parse_line(line: &str, file: FileId, offset: usize, line_no: u32) -> Resu
         .with_hint("sheets are plain text: delete the character (an editor that shows invisible characters helps)"));
     }
     bracket_scan(line, file, offset)?;
+    // pest recurses once per bracket and the tree is converted recursively;
+    // with brackets at most `max_bracket_depth` deep, the deepest line
+    // allowed needs under 256 KiB of stack in a release build and under
+    // 1 MiB in a debug build (`deepest_lines_parse_on_a_small_stack`).
+    // Where less than that is left, the line is parsed on a stack of its own.
+    stacker::maybe_grow(LINE_STACK_RED_ZONE, LINE_STACK, || {
+        parse_bracketed(line, file, offset, line_no)
+    })
+}
+
+/// Stack a line's parse must find left, or it gets a stack of its own.
+const LINE_STACK_RED_ZONE: usize = if cfg!(debug_assertions) {
+    1536 * 1024
+} else {
+    512 * 1024
+};
+/// The size of that stack.
+const LINE_STACK: usize = 4 * 1024 * 1024;
+
+/// Parse a line whose brackets are known to match and to nest no deeper
+/// than the limit.
+fn parse_bracketed(line: &str, file: FileId, offset: usize, line_no: u32) -> Result<Option<Stmt>, Diagnostic> {
     let comment_at = find_comment_start(line);
     let code = &line[..comment_at.unwrap_or(line.len())];
     let pairs = match SheetGrammar::parse(Rule::line, code) {
