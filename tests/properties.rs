@@ -345,3 +345,38 @@ proptest! {
         prop_assert_eq!(Some(inv.q.dim), pow.q.dim.recip());
     }
 }
+
+/// A comment starts at the first `#` outside a quoted string, where `\`
+/// escapes the next character inside one (`dstring` in
+/// grammar/ohmsheet.pest; docs/grammar.md). Read
+/// character by character here; the parser reads bytes.
+fn comment_start_by_chars(line: &str) -> Option<usize> {
+    let (mut in_str, mut escaped) = (false, false);
+    for (i, c) in line.char_indices() {
+        if in_str {
+            if escaped {
+                escaped = false;
+            } else if c == '\\' {
+                escaped = true;
+            } else if c == '"' {
+                in_str = false;
+            }
+        } else if c == '"' {
+            in_str = true;
+        } else if c == '#' {
+            return Some(i);
+        }
+    }
+    None
+}
+
+proptest! {
+    #![proptest_config(cfg())]
+
+    /// Lines mixing quotes, escapes, `#` and characters of two to four
+    /// bytes: the comment is found at the same place.
+    #[test]
+    fn comment_start_is_found_by_bytes_as_by_characters(line in "[a #\"\\\\Ω∠µ😀=1]{0,40}") {
+        prop_assert_eq!(ohmsheet::syntax::parser::find_comment_start(&line), comment_start_by_chars(&line));
+    }
+}

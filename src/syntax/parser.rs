@@ -100,7 +100,13 @@ pub fn parse_line(line: &str, file: FileId, offset: usize, line_no: u32) -> Resu
         .with_label("too long from here")
         .with_hint("split the formula into several named cells"));
     }
-    if let Some((i, c)) = line.char_indices().find(|&(_, c)| crate::diag::is_unsafe_char(c)) {
+    // Every unsafe character is an ASCII control or not ASCII at all, so a
+    // line of printable ASCII and tabs needs no closer look.
+    let plain = line.bytes().all(|b| (b' '..0x7f).contains(&b) || b == b'\t');
+    if let Some((i, c)) = (!plain)
+        .then(|| line.char_indices().find(|&(_, c)| crate::diag::is_unsafe_char(c)))
+        .flatten()
+    {
         let bidi = c > '\u{9f}';
         return Err(Diagnostic::error(
             ErrorCode::ControlCharacter,
@@ -122,14 +128,15 @@ pub fn parse_line(line: &str, file: FileId, offset: usize, line_no: u32) -> Resu
         })
         .with_hint("sheets are plain text: delete the character (an editor that shows invisible characters helps)"));
     }
-    bracket_scan(line, file, offset)?;
+    let comment_at = find_comment_start(line);
+    bracket_scan(&line[..comment_at.unwrap_or(line.len())], file, offset)?;
     // pest recurses once per bracket and the tree is converted recursively;
     // with brackets at most `max_bracket_depth` deep, the deepest line
     // allowed needs under 256 KiB of stack in a release build and under
     // 1 MiB in a debug build (`deepest_lines_parse_on_a_small_stack`).
     // Where less than that is left, the line is parsed on a stack of its own.
     stacker::maybe_grow(LINE_STACK_RED_ZONE, LINE_STACK, || {
-        parse_bracketed(line, file, offset, line_no)
+        parse_bracketed(line, comment_at, file, offset, line_no)
     })
 }
 
@@ -144,8 +151,13 @@ const LINE_STACK: usize = 4 * 1024 * 1024;
 
 /// Parse a line whose brackets are known to match and to nest no deeper
 /// than the limit.
-fn parse_bracketed(line: &str, file: FileId, offset: usize, line_no: u32) -> Result<Option<Stmt>, Diagnostic> {
-    let comment_at = find_comment_start(line);
+fn parse_bracketed(
+    line: &str,
+    comment_at: Option<usize>,
+    file: FileId,
+    offset: usize,
+    line_no: u32,
+) -> Result<Option<Stmt>, Diagnostic> {
     let code = &line[..comment_at.unwrap_or(line.len())];
     let pairs = match SheetGrammar::parse(Rule::line, code) {
         Ok(p) => p,
@@ -168,21 +180,29 @@ fn parse_bracketed(line: &str, file: FileId, offset: usize, line_no: u32) -> Res
 }
 
 /// Byte index of the `#` that starts a comment, skipping quoted strings.
+/// Byte by byte: the characters that matter are ASCII, and no byte of a
+/// longer UTF-8 character is.
 pub fn find_comment_start(line: &str) -> Option<usize> {
+    let bytes = line.as_bytes();
+    // Most lines have no comment; a quote matters only before a `#`.
+    let first = memchr::memchr(b'#', bytes)?;
+    if !bytes[..first].contains(&b'"') {
+        return Some(first);
+    }
     let mut in_str = false;
     let mut escaped = false;
-    for (i, c) in line.char_indices() {
+    for (i, &c) in bytes.iter().enumerate() {
         if in_str {
             if escaped {
                 escaped = false;
-            } else if c == '\\' {
+            } else if c == b'\\' {
                 escaped = true;
-            } else if c == '"' {
+            } else if c == b'"' {
                 in_str = false;
             }
-        } else if c == '"' {
+        } else if c == b'"' {
             in_str = true;
-        } else if c == '#' {
+        } else if c == b'#' {
             return Some(i);
         }
     }
@@ -191,14 +211,12 @@ pub fn find_comment_start(line: &str) -> Option<usize> {
 
 /// Check bracket depth before handing the line to the recursive-descent
 /// parser, and report an unclosed or stray bracket precisely.
-fn bracket_scan(line: &str, file: FileId, offset: usize) -> Result<(), Diagnostic> {
-    let code = match find_comment_start(line) {
-        Some(i) => &line[..i],
-        None => line,
-    };
+fn bracket_scan(code: &str, file: FileId, offset: usize) -> Result<(), Diagnostic> {
     let mut stack: Vec<(usize, char)> = Vec::new();
     let mut in_str = false;
-    for (i, c) in code.char_indices() {
+    // Byte by byte, as in `find_comment_start`: brackets and quotes are ASCII.
+    for (i, c) in code.bytes().enumerate() {
+        let c = c as char;
         if c == '"' {
             in_str = !in_str;
         }
