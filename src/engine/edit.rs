@@ -615,6 +615,19 @@ mod tests {
         );
     }
 
+    /// Cells are ranked in the order of the sheet's lines wherever the
+    /// dependencies allow it, and always after the cells they use.
+    #[test]
+    fn ranks_follow_the_lines_where_dependencies_allow() {
+        let e = engine(DIVIDER);
+        assert_eq!(names(&e, &e.model.order), ["R1", "R2", "V", "Rt", "I", "P", "other"]);
+        // `a` uses `b` on the line after it: `b` comes first, then `a` and
+        // what uses it; `c` keeps its place after the earlier lines.
+        let e = engine("a = b + 1\nb = 2\nc = 3\nd = a * c\n");
+        assert_eq!(names(&e, &e.model.order), ["b", "a", "c", "d"]);
+        assert_invariants(&e);
+    }
+
     #[test]
     fn an_input_becomes_a_formula_and_back() {
         let mut e = engine(DIVIDER);
@@ -629,10 +642,10 @@ mod tests {
         // R1 now reaches R2 and everything after it.
         let r1 = e.model.id("R1").unwrap();
         e.set_input(r1, C64::new(5.0, 0.0));
-        // (in rank order: `other` was ranked before `I` when the sheet was compiled)
+        // (in rank order, which follows the lines of a sheet written top-down)
         assert_eq!(
             names(&e, &e.last_recomputed.clone()),
-            ["R2", "V", "Rt", "other", "I", "P"]
+            ["R2", "V", "Rt", "I", "P", "other"]
         );
         redefine(&mut e, "R2 = 20 Ω").unwrap();
         assert!(e.model.cell("R2").unwrap().input);

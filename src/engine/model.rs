@@ -727,17 +727,26 @@ fn directive(
 
 /// Kahn's algorithm; cells in or behind a cycle are left out. Iterative,
 /// so a chain of any length costs no stack.
+/// Cells in an order where each comes after the cells it uses (Kahn's
+/// algorithm), taking the earliest line whenever several are ready: a
+/// sheet written top-down is compiled in the order of its lines, so the
+/// compiler reads its cells and trees in the order they lie in memory and
+/// the program follows the sheet. Cells on a cycle are left out.
 fn topo_order(cells: &[Cell], dependents: &[Vec<CellId>]) -> Vec<CellId> {
+    use std::cmp::Reverse;
     let n = cells.len();
     let mut indeg: Vec<u32> = cells.iter().map(|c| c.deps.len() as u32).collect();
-    let mut queue: std::collections::VecDeque<CellId> = (0..n as CellId).filter(|&i| indeg[i as usize] == 0).collect();
+    let mut ready: std::collections::BinaryHeap<Reverse<CellId>> = (0..n as CellId)
+        .filter(|&i| indeg[i as usize] == 0)
+        .map(Reverse)
+        .collect();
     let mut out = Vec::with_capacity(n);
-    while let Some(i) = queue.pop_front() {
+    while let Some(Reverse(i)) = ready.pop() {
         out.push(i);
         for &d in &dependents[i as usize] {
             indeg[d as usize] -= 1;
             if indeg[d as usize] == 0 {
-                queue.push_back(d);
+                ready.push(Reverse(d));
             }
         }
     }

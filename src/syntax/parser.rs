@@ -71,6 +71,7 @@ pub fn parse_sheet(text: &str, file: FileId) -> ParsedSheet {
     };
     let mut out = ParsedSheet {
         file,
+        stmts: Vec::with_capacity(results.len()),
         ..Default::default()
     };
     for r in results {
