@@ -725,13 +725,12 @@ fn directive(
     }
 }
 
-/// Kahn's algorithm; cells in or behind a cycle are left out. Iterative,
-/// so a chain of any length costs no stack.
 /// Cells in an order where each comes after the cells it uses (Kahn's
 /// algorithm), taking the earliest line whenever several are ready: a
 /// sheet written top-down is compiled in the order of its lines, so the
 /// compiler reads its cells and trees in the order they lie in memory and
-/// the program follows the sheet. Cells on a cycle are left out.
+/// the program follows the sheet. Cells in or behind a cycle are left out.
+/// Iterative, so a chain of any length costs no stack.
 fn topo_order(cells: &[Cell], dependents: &[Vec<CellId>]) -> Vec<CellId> {
     use std::cmp::Reverse;
     let n = cells.len();
