@@ -19,7 +19,7 @@
 
 use num_complex::Complex64 as C64;
 
-use super::eval::{run, Change, Engine};
+use super::eval::{run, Change, Engine, Values};
 use super::model::{literal_unit, new_cell, Cell, CellId, Lowerer, Role, Val, RESERVED};
 use super::ops::{Instr, Op};
 use super::program::{Emitter, Operand, SlotSpace, TEMP_FLAG};
@@ -330,7 +330,7 @@ impl Engine {
 
         // Evaluate the cell and what depends on it.
         let range = slot as usize..(slot + width) as usize;
-        let before: Vec<C64> = self.slots[range.clone()].to_vec();
+        let before = Values::from_slice(&self.slots[range.clone()]);
         for (s, c) in consts {
             self.model.program.init[s as usize] = c;
             self.slots[s as usize] = c;
@@ -344,7 +344,7 @@ impl Engine {
         );
         self.last_recomputed.clear();
         self.last_recomputed.push(id);
-        let after = self.slots[range].to_vec();
+        let after = Values::from_slice(&self.slots[range]);
         let same = before
             .iter()
             .zip(&after)
@@ -427,8 +427,8 @@ impl Engine {
         self.last_recomputed.push(id);
         Ok(Change {
             cell: id,
-            old: Vec::new(),
-            new: self.values(id).to_vec(),
+            old: Values::new(),
+            new: Values::from_slice(self.values(id)),
         })
     }
 
@@ -608,7 +608,7 @@ mod tests {
         assert_eq!(names(&e, &changed), ["Rt", "I", "P"]);
         // Ohm's law: 100 V across 10 + 20 + 10 Ω is 2.5 A.
         assert_eq!(e.value(e.model.id("I").unwrap()), C64::new(2.5, 0.0));
-        assert_eq!(ch[1].old, vec![C64::new(100.0 / 30.0, 0.0)]);
+        assert_eq!(ch[1].old[..], [C64::new(100.0 / 30.0, 0.0)]);
         assert_same_as_compiled(
             &e,
             "R1 = 10 Ω\nR2 = 20 Ω\nV = 100 V\nRt = R1 + R2 + 10 Ω\nI = V / Rt\nP = V * I\nother = R2 * 2",

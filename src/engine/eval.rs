@@ -58,12 +58,16 @@ fn call(fid: u16, ins: &Instr, prog: &Program, s: &mut [C64]) {
     s[dst..dst + width].copy_from_slice(&out[..width]);
 }
 
+/// A cell's values: one for most cells, kept inline (no allocation);
+/// more for a record.
+pub type Values = smallvec::SmallVec<[C64; 1]>;
+
 /// A change of one cell's value after an edit.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Change {
     pub cell: CellId,
-    pub old: Vec<C64>,
-    pub new: Vec<C64>,
+    pub old: Values,
+    pub new: Values,
 }
 
 /// A model with current values. Setting an input re-evaluates only the
@@ -123,8 +127,8 @@ impl Engine {
         self.slots[slot] = value;
         let mut changes = vec![Change {
             cell: id,
-            old: vec![old],
-            new: vec![value],
+            old: smallvec::smallvec![old],
+            new: smallvec::smallvec![value],
         }];
         self.propagate(id, &mut changes);
         changes
@@ -162,8 +166,8 @@ impl Engine {
             }
             changes.push(Change {
                 cell: id,
-                old: before.to_vec(),
-                new: after.to_vec(),
+                old: Values::from_slice(before),
+                new: Values::from_slice(after),
             });
             enqueue(m, &mut self.queued, heap, id);
         }
