@@ -93,6 +93,11 @@ impl ArgError {
 pub type TypeFn = fn(&[Quantity], &Ctx) -> Result<Shape, ArgError>;
 pub type ScalarFn = fn(&[C64], &mut [C64], &Ctx);
 pub type LowerFn = fn(&mut Emitter, &[Operand], &[Quantity]) -> Vec<Operand>;
+/// Says why argument values lie outside a function's domain (a power
+/// factor above 1, a negative length, a matching network that cannot
+/// exist), or `None` when they are inside it. Called only to explain a
+/// result that is not a finite number, never on the hot path.
+pub type DomainFn = fn(&[C64], &Ctx) -> Option<ArgError>;
 
 pub enum Impl {
     Lower(LowerFn),
@@ -116,6 +121,25 @@ pub struct Builtin {
     pub returns: &'static str,
     pub ty: TypeFn,
     pub imp: Impl,
+    /// The function's domain, to explain a NaN or infinite result.
+    pub domain: Option<DomainFn>,
+    /// The published method or reference the function follows and is
+    /// tested against (for the listing, docs and hover); empty if none.
+    pub source: &'static str,
+}
+
+impl Builtin {
+    /// The same function with a domain check.
+    pub fn with_domain(self, domain: DomainFn) -> Builtin {
+        Builtin {
+            domain: Some(domain),
+            ..self
+        }
+    }
+    /// The same function with its source named.
+    pub fn with_source(self, source: &'static str) -> Builtin {
+        Builtin { source, ..self }
+    }
 }
 
 /// The families of functions, in listing order: a heading and the
@@ -352,6 +376,8 @@ pub fn lowered(
         returns,
         ty,
         imp: Impl::Lower(lower),
+        domain: None,
+        source: "",
     }
 }
 
@@ -372,6 +398,8 @@ pub fn scalar_fn(
         returns,
         ty,
         imp: Impl::Scalar(eval),
+        domain: None,
+        source: "",
     }
 }
 
