@@ -1,0 +1,1 @@
+//! Misreadings: angle (see mod.rs).

@@ -1,0 +1,1 @@
+//! Misreadings: display (see mod.rs).

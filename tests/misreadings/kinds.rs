@@ -1,0 +1,1 @@
+//! Misreadings: kinds (see mod.rs).

@@ -1,0 +1,8 @@
+//! Misreadings: each way of writing a quantity that once gave a wrong
+//! number without warning (issue 13), with the right value or the refusal
+//! the language now gives. One file per family.
+
+mod angle;
+mod display;
+mod kinds;
+mod numerics;

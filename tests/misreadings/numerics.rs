@@ -1,0 +1,1 @@
+//! Misreadings: numerics (see mod.rs).
