@@ -1,0 +1,93 @@
+//! Rendering a pest error as a located diagnostic, with hints for common
+//! slips.
+
+use super::Rule;
+use crate::diag::{Diagnostic, ErrorCode, FileId, Span};
+
+fn describe_rule(r: &Rule) -> Option<&'static str> {
+    Some(match r {
+        Rule::expr | Rule::operand | Rule::atom => "a value",
+        Rule::quantity | Rule::number | Rule::mantissa => "a number",
+        Rule::name | Rule::name_ref => "a name",
+        Rule::call => "a function call",
+        Rule::paren | Rule::paren_q => "`(`",
+        Rule::infix
+        | Rule::add
+        | Rule::sub
+        | Rule::mul
+        | Rule::div
+        | Rule::pow
+        | Rule::par
+        | Rule::ser
+        | Rule::angle => "an operator",
+        Rule::unit_expr | Rule::unit_factor | Rule::unit_word | Rule::suffix => "a unit",
+        Rule::display_unit => "a display unit `[...]`",
+        Rule::EOI => "the end of the line",
+        Rule::field => "`.field`",
+        Rule::definition => "a definition `name = ...`",
+        Rule::check => "`check`",
+        Rule::directive => "`@`",
+        Rule::darg | Rule::dstring | Rule::dword => "an argument",
+        Rule::neg | Rule::pos | Rule::prefix => "a sign",
+        Rule::exponent => "an exponent",
+        Rule::kw_is => "`is largest` or `is smallest`",
+        Rule::search_eq => "`= value`",
+        Rule::kw_largest | Rule::kw_smallest => "`largest` or `smallest`",
+        Rule::kw_where => "`where`",
+        _ => return None,
+    })
+}
+
+pub(super) fn syntax_error(line: &str, e: pest::error::Error<Rule>, file: FileId, offset: usize) -> Diagnostic {
+    use pest::error::{ErrorVariant, InputLocation};
+    let pos = match e.location {
+        InputLocation::Pos(p) => p,
+        InputLocation::Span((a, _)) => a,
+    };
+    let mut expected: Vec<&str> = match &e.variant {
+        ErrorVariant::ParsingError { positives, .. } => positives.iter().filter_map(describe_rule).collect(),
+        ErrorVariant::CustomError { .. } => vec![],
+    };
+    expected.sort();
+    expected.dedup();
+    let rest = &line[pos.min(line.len())..];
+    let found: String = rest.chars().take_while(|c| !c.is_whitespace()).take(12).collect();
+    let end = pos + rest.chars().next().map_or(0, char::len_utf8);
+    let what = if found.is_empty() {
+        "the end of the line".to_string()
+    } else {
+        format!("`{found}`")
+    };
+    let mut d = Diagnostic::error(
+        ErrorCode::Syntax,
+        Span::new(file, offset + pos, offset + end),
+        format!("unexpected {what}"),
+    );
+    if !expected.is_empty() {
+        d = d.with_label(format!("expected {}", join_or(&expected)));
+    }
+    // Targeted hints for common slips.
+    let before = line[..pos.min(line.len())].trim_end();
+    if rest.starts_with("==") || (rest.starts_with('=') && before.contains('=')) {
+        d = d.with_hint("a definition has one `=`; to compare values write `check a ~= b +- 1%`");
+    } else if rest.starts_with("+-") || rest.starts_with('±') {
+        d = d.with_hint("`+-` (±) only separates a tolerance in a `check`; to add a negative write `a + (-b)`");
+    } else if before.ends_with('=') && rest.is_empty() {
+        d = d.with_hint("a definition needs a formula after `=`");
+    } else if found.starts_with(|c: char| c.is_alphabetic())
+        && before.chars().last().is_some_and(|c| c.is_alphanumeric() || c == ')')
+    {
+        d = d.with_hint("two values side by side: multiplication needs `*`");
+    } else if rest.starts_with("--") {
+        d = d.with_hint("`--` is the series operator; to subtract a negative write `a - -b` with a space");
+    }
+    d
+}
+
+fn join_or(items: &[&str]) -> String {
+    match items {
+        [] => String::new(),
+        [a] => a.to_string(),
+        [rest @ .., last] => format!("{} or {}", rest.join(", "), last),
+    }
+}
