@@ -1,0 +1,217 @@
+//! Type rules of the operators: dimensions and kinds of sums, products,
+//! quotients and powers, and their lowering.
+
+use super::*;
+use crate::diag::{Diagnostic, ErrorCode};
+use crate::engine::ops::Op;
+use crate::engine::program::{Emitter, Operand};
+use crate::units::kind::{kind_of_product, kind_of_quotient, kind_of_sum};
+use crate::units::{Dim, Kind, Quantity};
+
+impl Lowerer<'_> {
+    pub(super) fn binary(&self, em: &mut Emitter, whole: &Expr, op: BinOp, a: &Expr, b: &Expr) -> R<Val> {
+        let (x, qa) = self.scalar(em, a)?;
+        let (y, qb) = self.scalar(em, b)?;
+        match op {
+            BinOp::Add | BinOp::Sub => {
+                if qa.dim != qb.dim {
+                    let verb = if op == BinOp::Add { "add" } else { "subtract" };
+                    let mut d = Diagnostic::error(
+                        ErrorCode::DimensionMismatch,
+                        whole.span,
+                        format!("cannot {verb} {} and {}", qa.describe(), qb.describe()),
+                    )
+                    .with_secondary(a.span, qa.describe())
+                    .with_label(qb.describe());
+                    d.span = Some(b.span);
+                    // `6 + j10 Ω`: the unit binds to the number before it.
+                    if qa.is_plain_number() && matches!(b.kind, ExprKind::Number { unit: Some(_), .. }) {
+                        d = d.with_hint(format!(
+                            "a unit applies only to the number just before it; for the whole sum write `({}) {}`",
+                            self.sources.slice(whole.span).rsplit_once(' ').map_or("", |(l, _)| l),
+                            self.sources.slice(whole.span).rsplit_once(' ').map_or("", |(_, r)| r),
+                        ));
+                    } else {
+                        d = d.with_hint("both sides of + and - must have the same dimension");
+                    }
+                    return Err(d);
+                }
+                let k = kind_of_sum(qa.kind, qb.kind, qa.dim).map_err(|m| {
+                    Diagnostic::error(ErrorCode::AngleAmbiguous, whole.span, m.to_string())
+                        .with_hint("give the number its unit: `30°`, `0.5 rad`, `60 Hz` or `377 rad/s`")
+                })?;
+                let o = em.bin(if op == BinOp::Add { Op::Add } else { Op::Sub }, x, y);
+                Ok(Val::Scalar(o, Quantity::new(qa.dim, k)))
+            }
+            BinOp::Mul | BinOp::Div => {
+                let dim = if op == BinOp::Mul {
+                    qa.dim.times(qb.dim)
+                } else {
+                    qa.dim.per(qb.dim)
+                };
+                let Some(dim) = dim else {
+                    return Err(Diagnostic::error(
+                        ErrorCode::DimensionMismatch,
+                        whole.span,
+                        "unit powers out of range",
+                    )
+                    .with_hint("the result would have a unit power beyond ±127"));
+                };
+                let k = if op == BinOp::Mul {
+                    kind_of_product(
+                        qa.kind,
+                        qb.kind,
+                        x.real_const().filter(|_| qa.is_plain_number()),
+                        y.real_const().filter(|_| qb.is_plain_number()),
+                    )
+                } else {
+                    kind_of_quotient(qa.kind, qb.kind, y.real_const().filter(|_| qb.is_plain_number()))
+                };
+                let o = em.bin(if op == BinOp::Mul { Op::Mul } else { Op::Div }, x, y);
+                Ok(Val::Scalar(o, Quantity::new(dim, k)))
+            }
+            BinOp::Pow => self.power(em, whole, b, x, qa, y, qb),
+            BinOp::Parallel | BinOp::Series => {
+                if qa.dim != qb.dim {
+                    return Err(Diagnostic::error(
+                        ErrorCode::DimensionMismatch,
+                        b.span,
+                        format!("cannot combine {} with {}", qa.describe(), qb.describe()),
+                    )
+                    .with_label(qb.describe())
+                    .with_secondary(a.span, qa.describe())
+                    .with_hint("`||` and `--` combine elements of one kind: impedances, admittances, inductances or capacitances"));
+                }
+                let d = qa.dim;
+                let pu = qa.kind == Kind::PerUnit || qb.kind == Kind::PerUnit;
+                let impedance_like = d == Dim::IMPEDANCE || d == Dim::INDUCTANCE || (d.is_none() && pu);
+                let admittance_like = d == Dim::ADMITTANCE || d == Dim::CAPACITANCE;
+                let reciprocal = match (op, impedance_like, admittance_like) {
+                    (BinOp::Parallel, true, _) | (BinOp::Series, _, true) => true,
+                    (BinOp::Series, true, _) | (BinOp::Parallel, _, true) => false,
+                    _ => {
+                        let mut dg = Diagnostic::error(
+                            ErrorCode::NetworkOperand,
+                            whole.span,
+                            format!(
+                                "`{}` combines network elements, and these are {}",
+                                op.symbol(),
+                                qa.describe()
+                            ),
+                        )
+                        .with_label("not an impedance, admittance, inductance or capacitance");
+                        dg = if d.is_none() {
+                            if op == BinOp::Series {
+                                dg.with_hint("give the values a unit (Ω, S, H, F, or pu for per-unit impedances); to subtract a negative number write `a - -b`")
+                            } else {
+                                dg.with_hint("give the values a unit: Ω, S, H, F, or pu for per-unit impedances")
+                            }
+                        } else {
+                            dg.with_hint("`||` and `--` work on Ω, S, H, F and pu")
+                        };
+                        return Err(dg);
+                    }
+                };
+                let o = if reciprocal {
+                    em.bin(Op::Par, x, y)
+                } else {
+                    em.bin(Op::Add, x, y)
+                };
+                let k = if pu { Kind::PerUnit } else { Kind::Plain };
+                Ok(Val::Scalar(o, Quantity::new(d, k)))
+            }
+            BinOp::Angle => {
+                if !qb.dim.is_none() || qb.kind == Kind::PerUnit {
+                    return Err(Diagnostic::error(
+                        ErrorCode::DimensionMismatch,
+                        b.span,
+                        format!(
+                            "the angle after ∠ must be an angle or a plain number of degrees, not {}",
+                            qb.describe()
+                        ),
+                    )
+                    .with_label(qb.describe()));
+                }
+                let theta = if qb.kind == Kind::Angle {
+                    y
+                } else {
+                    let k = em.konst(std::f64::consts::PI / 180.0, 0.0);
+                    em.bin(Op::Mul, y, k)
+                };
+                let o = em.bin(Op::Polar, x, theta);
+                Ok(Val::Scalar(o, qa))
+            }
+        }
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    pub(super) fn power(
+        &self,
+        em: &mut Emitter,
+        whole: &Expr,
+        b: &Expr,
+        x: Operand,
+        qa: Quantity,
+        y: Operand,
+        qb: Quantity,
+    ) -> R<Val> {
+        if !qb.dim.is_none() {
+            return Err(Diagnostic::error(
+                ErrorCode::BadExponent,
+                b.span,
+                format!("an exponent must be a plain number, not {}", qb.describe()),
+            ));
+        }
+        let int_exp = y
+            .real_const()
+            .filter(|v| v.fract() == 0.0 && v.abs() <= 1e6)
+            .map(|v| v as i32);
+        if qa.dim.is_none() {
+            let kind = if qa.kind == Kind::PerUnit {
+                Kind::PerUnit
+            } else {
+                Kind::Plain
+            };
+            let o = match int_exp {
+                Some(n) => em.powi(x, n),
+                None => em.bin(Op::Pow, x, y),
+            };
+            return Ok(Val::Scalar(o, Quantity::new(Dim::NONE, kind)));
+        }
+        // A quantity with a unit: the power must be a known rational so
+        // the result has a whole dimension.
+        let Some(p) = y.real_const() else {
+            return Err(Diagnostic::error(
+                ErrorCode::BadExponent,
+                b.span,
+                format!(
+                    "{} can only be raised to a fixed number, not to a value that changes",
+                    qa.describe()
+                ),
+            )
+            .with_hint("make the base a plain number (divide by its unit), or write the exponent as a number"));
+        };
+        for den in 1..=4 {
+            let num = p * den as f64;
+            if (num - num.round()).abs() < 1e-9 && num.abs() < 1000.0 {
+                if let Some(d) = qa.dim.pow_ratio(num.round() as i32, den) {
+                    let o = match int_exp {
+                        Some(n) => em.powi(x, n),
+                        None => em.bin(Op::Pow, x, y),
+                    };
+                    return Ok(Val::Scalar(o, Quantity::of(d)));
+                }
+            }
+        }
+        Err(Diagnostic::error(
+            ErrorCode::BadExponent,
+            whole.span,
+            format!(
+                "{} raised to {} has no whole SI dimension",
+                qa.describe(),
+                crate::units::format::fmt_sig(p, 6)
+            ),
+        )
+        .with_hint("divide by the unit first, e.g. `(x / 1 V)^p`"))
+    }
+}

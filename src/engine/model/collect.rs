@@ -1,0 +1,418 @@
+//! Collecting a sheet's cells and directives, finding their dependencies,
+//! and lowering them in order into one program.
+
+use super::graph::{report_cycles, topo_order};
+use super::meta::{check_note_targets, directive};
+use super::*;
+use crate::diag::{Diagnostic, ErrorCode, SourceMap, Span};
+use crate::engine::ops::{Instr, Op};
+use crate::engine::program::{Emitter, Operand, Program, SlotSpace, TEMP_FLAG};
+use crate::funcs::{Ctx, Shape};
+use crate::sheet::Sheet;
+use crate::units::Unit;
+
+/// Sheets with at least this many cells find their dependencies in
+/// parallel.
+const PARALLEL_DEPS_FROM: usize = 4096;
+
+struct Pending<'a> {
+    expr: Option<&'a Expr>,
+    check: Option<&'a Check>,
+}
+
+/// Compile a sheet. Always returns a model; `model.diagnostics` holds every
+/// error, and cells with errors have `error` set.
+pub fn compile(sheet: &Sheet) -> Model {
+    compile_limited(sheet, MAX_CELLS)
+}
+
+/// `compile` with a different cap on the number of cells (for tests of the
+/// limit).
+pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
+    let mut diags = sheet.errors.clone();
+    // Sized once: on a big sheet, growing these a doubling at a time
+    // copied every cell again and rehashed every name.
+    let lines = sheet.stmts.len().min(max_cells.saturating_add(1));
+    let mut cells: Vec<Cell> = Vec::with_capacity(lines);
+    let mut pending: Vec<Pending> = Vec::with_capacity(lines);
+    let mut by_name = NameMap::with_capacity_and_hasher(lines, Default::default());
+    let mut meta = Meta::default();
+    let mut ctx = Ctx::default();
+    let mut amplitude_seen: Option<Span> = None;
+
+    for stmt in &sheet.stmts {
+        match &stmt.kind {
+            StmtKind::Def(d) => {
+                let name = &d.name.name;
+                if RESERVED.contains(&name.as_str()) {
+                    diags.push(
+                        Diagnostic::error(
+                            ErrorCode::ReservedName,
+                            d.name.span,
+                            format!("`{name}` is a reserved name"),
+                        )
+                        .with_label("cannot be a cell name")
+                        .with_hint(
+                            "`j` is the imaginary unit, `pi` is π and `check` starts a check; choose another name",
+                        ),
+                    );
+                    continue;
+                }
+                if let Some(&first) = by_name.get(name) {
+                    let f = &cells[first as usize];
+                    diags.push(
+                        Diagnostic::error(
+                            ErrorCode::DuplicateCell,
+                            d.name.span,
+                            format!("`{name}` is defined twice"),
+                        )
+                        .with_label("defined again here")
+                        .with_secondary(f.name_span, "first defined here")
+                        .with_hint("each name has one formula; rename one of them or delete a line"),
+                    );
+                    continue;
+                }
+                if cells.len() >= max_cells {
+                    diags.push(
+                        Diagnostic::error(
+                            ErrorCode::TooManyCells,
+                            d.name.span,
+                            format!("more than {max_cells} cells in one sheet"),
+                        )
+                        .with_hint("split the sheet into smaller ones"),
+                    );
+                    break;
+                }
+                let id = cells.len() as CellId;
+                by_name.insert(name.clone(), id);
+                let mut cell = new_cell(
+                    &sheet.sources,
+                    stmt,
+                    name.clone(),
+                    Role::Def,
+                    d.name.span,
+                    &d.expr,
+                    d.display.as_ref(),
+                );
+                if cell.display.is_none() {
+                    // An input written as a number with a unit is shown in
+                    // the unit the user wrote (1500 kVA stays 1500 kVA).
+                    cell.display = literal_unit(&d.expr);
+                }
+                cells.push(cell);
+                pending.push(Pending {
+                    expr: Some(&d.expr),
+                    check: None,
+                });
+            }
+            StmtKind::Check(c) => {
+                let name = format!("check:{}", stmt.line);
+                let mut cell = new_cell(&sheet.sources, stmt, name, Role::Check, stmt.span, &c.lhs, None);
+                cell.formula = sheet.sources.slice(stmt.span).to_string();
+                // A check of a named cell shows its values in that cell's
+                // display unit.
+                if let ExprKind::Name(id) = &c.lhs.kind {
+                    if let Some(&target) = by_name.get(&id.name) {
+                        cell.display = cells[target as usize].display.clone();
+                    }
+                }
+                cells.push(cell);
+                pending.push(Pending {
+                    expr: None,
+                    check: Some(c),
+                });
+            }
+            StmtKind::Directive(dir) => {
+                directive(dir, stmt.span, &mut meta, &mut ctx, &mut amplitude_seen, &mut diags);
+            }
+            StmtKind::Expr(e) => {
+                diags.push(
+                    Diagnostic::error(
+                        ErrorCode::BareExpression,
+                        e.span,
+                        "a sheet line must give the value a name",
+                    )
+                    .with_label("this value has no name")
+                    .with_hint("write `name = expression`, or `check a ~= b +- 1%` to compare two values"),
+                );
+            }
+        }
+    }
+
+    check_note_targets(&meta, &by_name, &mut diags);
+
+    if cells.is_empty() && diags.is_empty() {
+        let main = sheet.main;
+        diags.push(
+            Diagnostic::error(
+                ErrorCode::EmptySheet,
+                Span::new(main, 0, 0),
+                "the sheet defines nothing",
+            )
+            .with_hint("a sheet is lines of `name = expression`, e.g. `Vs = 480 V`"),
+        );
+    }
+
+    // Dependencies: each cell's on its own, so a big sheet's are found on
+    // every core (the lookups miss the cache; small sheets stay on this
+    // thread).
+    let deps_of = |p: &Pending| {
+        let mut deps = Vec::new();
+        let mut visit = |id: &Ident| {
+            if let Some(&d) = by_name.get(&id.name) {
+                if !deps.contains(&d) {
+                    deps.push(d);
+                }
+            }
+        };
+        if let Some(e) = p.expr {
+            e.for_each_name(&mut visit);
+        }
+        if let Some(c) = p.check {
+            c.lhs.for_each_name(&mut visit);
+            c.rhs.for_each_name(&mut visit);
+            if let Tolerance::Absolute(t) = &c.tol {
+                t.for_each_name(&mut visit);
+            }
+        }
+        deps
+    };
+    if pending.len() >= PARALLEL_DEPS_FROM {
+        use rayon::prelude::*;
+        let found: Vec<Vec<CellId>> = pending.par_iter().with_min_len(1024).map(deps_of).collect();
+        for (cell, deps) in cells.iter_mut().zip(found) {
+            cell.deps = deps;
+        }
+    } else {
+        for (cell, p) in cells.iter_mut().zip(&pending) {
+            cell.deps = deps_of(p);
+        }
+    }
+
+    let n = cells.len();
+    let mut dependents: Vec<Vec<CellId>> = vec![Vec::new(); n];
+    for (i, c) in cells.iter().enumerate() {
+        for &d in &c.deps {
+            dependents[d as usize].push(i as CellId);
+        }
+    }
+
+    let topo = topo_order(&cells, &dependents);
+    report_cycles(&mut cells, &topo, &mut diags, &sheet.sources);
+
+    // Lower in topological order.
+    let mut slots = SlotSpace::default();
+    let mut code: Vec<Instr> = Vec::new();
+    let mut call_args: Vec<u32> = Vec::new();
+    let mut max_temps = 0u32;
+    let pending_searches = std::cell::RefCell::new(Vec::new());
+    let mut order = Vec::with_capacity(n);
+    // Which cells have an error, packed: checking a cell's dependencies
+    // here then costs no cache miss per dependency on a big sheet.
+    let mut failed: Vec<bool> = cells.iter().map(|c| c.error.is_some()).collect();
+    for &id in &topo {
+        let i = id as usize;
+        if failed[i] {
+            continue;
+        }
+        if let Some(&bad) = cells[i].deps.iter().find(|&&d| failed[d as usize]) {
+            cells[i].error = Some(CellError::Upstream(bad));
+            failed[i] = true;
+            continue;
+        }
+        let start = code.len() as u32;
+        let mut em = Emitter {
+            code: &mut code,
+            call_args: &mut call_args,
+            slots: &mut slots,
+            next_temp: 0,
+            peak: ctx.peak,
+        };
+        let lw = Lowerer {
+            cells: &cells,
+            by_name: &by_name,
+            sources: &sheet.sources,
+            ctx,
+            current: id,
+            searches: &pending_searches,
+        };
+        let result = match (&pending[i].expr, &pending[i].check) {
+            (Some(e), _) => lw.lower_def(&mut em, e, &cells[i]),
+            (None, Some(c)) => lw.lower_check(&mut em, c).map(|(v, tol)| {
+                cells[i].tol = Some(tol);
+                v
+            }),
+            _ => unreachable!(),
+        };
+        max_temps = max_temps.max(em.next_temp);
+        match result {
+            Err(d) => {
+                code.truncate(start as usize);
+                cells[i].error = Some(CellError::Own);
+                failed[i] = true;
+                diags.push(d);
+            }
+            Ok(val) => {
+                let cell = &mut cells[i];
+                place_result(cell, val, &mut slots, &mut code, start);
+                cell.code = start..code.len() as u32;
+                // A record (several fields) is never an input: one value
+                // cannot be set into it.
+                cell.input = cell.role == Role::Def && cell.deps.is_empty() && cell.width == 1;
+                // A search depends on what it reads, not on the input it
+                // varies (see lower_search).
+                if let Some(p) = pending_searches.borrow().last().filter(|p| p.cell == id) {
+                    cell.deps = p.frontier.clone();
+                }
+                order.push(id);
+            }
+        }
+    }
+
+    // Move temporaries to the shared region after every other slot.
+    let temp_base = slots.alloc(max_temps.max(1));
+    let fix = |s: &mut u32| {
+        if *s & TEMP_FLAG != 0 {
+            *s = temp_base + (*s & !TEMP_FLAG);
+        }
+    };
+    for ins in &mut code {
+        fix(&mut ins.dst);
+        if !matches!(ins.op, Op::Call(_)) {
+            fix(&mut ins.a);
+            if !ins.op.is_unary() {
+                fix(&mut ins.b);
+            }
+        }
+    }
+    // Call argument slots (the width entry before them is never flagged).
+    for a in &mut call_args {
+        fix(a);
+    }
+
+    let mut rank = vec![u32::MAX; n];
+    for (r, &id) in order.iter().enumerate() {
+        rank[id as usize] = r as u32;
+    }
+
+    // Searches: gather each one's sub-program, and make its cell depend on
+    // what the search reads rather than on the input it varies.
+    let searches = lower_search::finish(&cells, pending_searches.into_inner(), &code, &mut slots, temp_base);
+    if !searches.is_empty() {
+        for d in dependents.iter_mut() {
+            d.clear();
+        }
+        for (i, c) in cells.iter().enumerate() {
+            for &d in &c.deps {
+                dependents[d as usize].push(i as CellId);
+            }
+        }
+    }
+
+    let mut model = Model {
+        sources: sheet.sources.clone(),
+        cells,
+        order,
+        rank,
+        dependents,
+        by_name,
+        program: Program {
+            code,
+            call_args,
+            init: slots.init,
+            temp_base,
+            peak: ctx.peak,
+            searches,
+        },
+        meta,
+        ctx,
+        diagnostics: diags,
+    };
+    if !model.meta.sweeps.is_empty() {
+        let more = crate::sweep::declared::check(&model);
+        model.diagnostics.extend(more);
+    }
+    model
+}
+
+pub(in crate::engine) fn new_cell(
+    sources: &SourceMap,
+    stmt: &Stmt,
+    name: String,
+    role: Role,
+    name_span: Span,
+    expr: &Expr,
+    display: Option<&UnitRef>,
+) -> Cell {
+    Cell {
+        name,
+        role,
+        file: name_span.file,
+        line: stmt.line,
+        name_span,
+        stmt_span: stmt.span,
+        formula: sources.slice(expr.span).to_string(),
+        shape: None,
+        error: None,
+        slot: 0,
+        width: 0,
+        display: display.map(|u| u.unit.clone()),
+        deps: Vec::new(),
+        code: 0..0,
+        input: false,
+        comment: stmt.comment.clone(),
+        tol: None,
+    }
+}
+
+/// The unit of a formula that is one number (or bracket) with a unit,
+/// possibly negated.
+pub(in crate::engine) fn literal_unit(e: &Expr) -> Option<Unit> {
+    match &e.kind {
+        ExprKind::Number { unit: Some(u), .. } | ExprKind::Paren(_, Some(u)) => Some(u.unit.clone()),
+        ExprKind::Unary(_, inner) => literal_unit(inner),
+        _ => None,
+    }
+}
+
+/// Write a cell's value into its own slots.
+fn place_result(cell: &mut Cell, val: Val, slots: &mut SlotSpace, code: &mut Vec<Instr>, start: u32) {
+    let parts: Vec<Operand> = match &val {
+        Val::Scalar(o, _) => vec![*o],
+        Val::Record(f) => f.iter().map(|(_, o, _)| *o).collect(),
+    };
+    let width = parts.len() as u32;
+    let base = slots.alloc(width);
+    cell.slot = base;
+    cell.width = width;
+    for (k, part) in parts.into_iter().enumerate() {
+        let dst = base + k as u32;
+        match part {
+            Operand::Const(c) => slots.init[dst as usize] = c,
+            Operand::Slot(s) => {
+                // A scalar result computed by this cell's last instruction
+                // is written straight into the cell's slot.
+                let last = code.len();
+                if width == 1
+                    && last > start as usize
+                    && code[last - 1].dst == s
+                    && s & TEMP_FLAG != 0
+                    && !matches!(code[last - 1].op, Op::Call(_))
+                {
+                    code[last - 1].dst = dst;
+                } else {
+                    code.push(Instr {
+                        op: Op::Copy,
+                        dst,
+                        a: s,
+                        b: 0,
+                    });
+                }
+            }
+        }
+    }
+    cell.shape = Some(match val {
+        Val::Scalar(_, q) => Shape::Scalar(q),
+        Val::Record(f) => Shape::Record(f.into_iter().map(|(n, _, q)| (n, q)).collect()),
+    });
+}

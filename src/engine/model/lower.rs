@@ -1,0 +1,336 @@
+//! Lowering a cell's expression: names, calls, checks and display units.
+
+use num_complex::Complex64 as C64;
+
+use super::*;
+use crate::diag::{did_you_mean, Diagnostic, ErrorCode, Span};
+use crate::engine::ops::Op;
+use crate::engine::program::{Emitter, Operand};
+use crate::funcs::{self, Impl, Shape};
+use crate::units::kind::kind_of_sum;
+use crate::units::{Kind, Quantity};
+
+impl Lowerer<'_> {
+    pub(in crate::engine) fn lower_def(&self, em: &mut Emitter, e: &Expr, cell: &Cell) -> R<Val> {
+        let v = self.expr(em, e)?;
+        let Some(u) = &cell.display else { return Ok(v) };
+        let display_span = self.display_span(cell);
+        match v {
+            Val::Scalar(o, q) => {
+                if q.dim != u.q.dim {
+                    return Err(Diagnostic::error(
+                        ErrorCode::DimensionMismatch,
+                        display_span,
+                        format!(
+                            "`{}` is {}, but it is to be shown in {}",
+                            cell.name,
+                            q.describe(),
+                            u.symbol
+                        ),
+                    )
+                    .with_label(format!("{} is {}", u.symbol, u.q.describe()))
+                    .with_secondary(e.span, "the formula gives this"));
+                }
+                if u.q.kind == Kind::Angle && q.kind != Kind::Angle {
+                    return Err(Diagnostic::error(
+                        ErrorCode::AngleAmbiguous,
+                        display_span,
+                        "a plain number shown as an angle is ambiguous",
+                    )
+                    .with_hint("write the angle with its unit in the formula: `30°` or `0.52 rad`"));
+                }
+                let kind = if u.q.kind != Kind::Plain || q.kind == Kind::Angle {
+                    u.q.kind
+                } else {
+                    q.kind
+                };
+                Ok(Val::Scalar(o, Quantity::new(q.dim, kind)))
+            }
+            Val::Record(_) => Err(Diagnostic::error(
+                ErrorCode::RecordAsValue,
+                display_span,
+                "a record cell has no single display unit",
+            )
+            .with_hint("show each field in its own cell: `x = rec.field [unit]`")),
+        }
+    }
+
+    pub(super) fn display_span(&self, cell: &Cell) -> Span {
+        // The display unit is the last bracket of the statement.
+        let text = self.sources.slice(cell.stmt_span);
+        match text.rfind('[') {
+            Some(i) => Span::new(
+                cell.stmt_span.file,
+                cell.stmt_span.start as usize + i,
+                cell.stmt_span.end as usize,
+            ),
+            None => cell.stmt_span,
+        }
+    }
+
+    pub(super) fn lower_check(&self, em: &mut Emitter, c: &Check) -> R<(Val, TolSpec)> {
+        let (l, ql) = self.scalar(em, &c.lhs)?;
+        let (r, qr) = self.scalar(em, &c.rhs)?;
+        if ql.dim != qr.dim {
+            return Err(Diagnostic::error(
+                ErrorCode::DimensionMismatch,
+                c.rhs.span,
+                format!("cannot compare {} with {}", ql.describe(), qr.describe()),
+            )
+            .with_label(qr.describe())
+            .with_secondary(c.lhs.span, ql.describe()));
+        }
+        kind_of_sum(ql.kind, qr.kind, ql.dim).map_err(|m| {
+            Diagnostic::error(
+                ErrorCode::AngleAmbiguous,
+                c.rhs.span,
+                format!("cannot compare these: {m}"),
+            )
+            .with_hint("give the angle its unit: `45°` or `0.785 rad`")
+        })?;
+        let (t, tol) = match &c.tol {
+            Tolerance::Relative(f, span) => {
+                if !(f.is_finite() && *f >= 0.0) {
+                    return Err(Diagnostic::error(
+                        ErrorCode::BadTolerance,
+                        *span,
+                        "a tolerance must be zero or more",
+                    ));
+                }
+                (em.konst(*f, 0.0), TolSpec::Relative(*f))
+            }
+            Tolerance::Absolute(te) => {
+                let (t, qt) = self.scalar(em, te)?;
+                if qt.dim != ql.dim {
+                    let hint = if qt.dim.is_none() {
+                        format!(
+                            "give the tolerance a unit ({}) or make it relative (`1%`)",
+                            crate::units::format::base_symbol(ql)
+                        )
+                    } else {
+                        "the tolerance has the unit of the values compared, or is relative (`1%`)".to_string()
+                    };
+                    return Err(Diagnostic::error(
+                        ErrorCode::BadTolerance,
+                        te.span,
+                        format!(
+                            "the tolerance is {}, but the values compared are {}",
+                            qt.describe(),
+                            ql.describe()
+                        ),
+                    )
+                    .with_hint(hint));
+                }
+                (t, TolSpec::Absolute)
+            }
+        };
+        Ok((Val::Record(vec![("lhs", l, ql), ("rhs", r, qr), ("tol", t, ql)]), tol))
+    }
+
+    pub(super) fn scalar(&self, em: &mut Emitter, e: &Expr) -> R<(Operand, Quantity)> {
+        match self.expr(em, e)? {
+            Val::Scalar(o, q) => Ok((o, q)),
+            Val::Record(fields) => {
+                let names: Vec<&str> = fields.iter().map(|f| f.0).collect();
+                Err(
+                    Diagnostic::error(ErrorCode::RecordAsValue, e.span, "this is a record, not a single value")
+                        .with_label(format!("fields: {}", names.join(", ")))
+                        .with_hint(format!(
+                            "pick a field, e.g. `{}.{}`",
+                            self.sources.slice(e.span),
+                            names[0]
+                        )),
+                )
+            }
+        }
+    }
+
+    /// Lower an expression. Trees are at most `LIMITS.max_expr_depth`
+    /// deep, but each level takes several frames, and a compile may run on
+    /// a thread with a small stack (a batch worker, a test, a library
+    /// caller); `stacker` grows the stack on the heap when it runs low.
+    pub(in crate::engine) fn expr(&self, em: &mut Emitter, e: &Expr) -> R<Val> {
+        stacker::maybe_grow(128 * 1024, 4 * 1024 * 1024, || self.expr_inner(em, e))
+    }
+
+    pub(super) fn expr_inner(&self, em: &mut Emitter, e: &Expr) -> R<Val> {
+        match &e.kind {
+            ExprKind::Number { value, imag, unit } => {
+                let c = if *imag {
+                    C64::new(0.0, *value)
+                } else {
+                    C64::new(*value, 0.0)
+                };
+                match unit {
+                    None => Ok(Val::Scalar(Operand::Const(c), Quantity::PLAIN)),
+                    Some(u) => Ok(Val::Scalar(Operand::Const(c * u.unit.factor), u.unit.q)),
+                }
+            }
+            ExprKind::Paren(inner, unit) => {
+                let v = self.expr(em, inner)?;
+                let Some(u) = unit else { return Ok(v) };
+                let (o, q) = match v {
+                    Val::Scalar(o, q) => (o, q),
+                    Val::Record(_) => return self.scalar(em, inner).map(|_| unreachable!()),
+                };
+                if !q.is_plain_number() {
+                    return Err(Diagnostic::error(
+                        ErrorCode::UnitNotAllowed,
+                        u.span,
+                        format!("a unit can only follow a plain number, and this is {}", q.describe()),
+                    )
+                    .with_secondary(inner.span, q.describe())
+                    .with_hint("the bracket already has a unit; to convert, divide: `x / 1 kV`"));
+                }
+                let f = em.konst(u.unit.factor, 0.0);
+                Ok(Val::Scalar(em.bin(Op::Mul, o, f), u.unit.q))
+            }
+            ExprKind::Name(id) => self.name(id),
+            ExprKind::Field(base, field) => {
+                let v = self.expr(em, base)?;
+                match v {
+                    Val::Record(fields) => match fields.iter().find(|f| f.0 == field.name) {
+                        Some(&(_, o, q)) => Ok(Val::Scalar(o, q)),
+                        None => {
+                            let names: Vec<&str> = fields.iter().map(|f| f.0).collect();
+                            let mut d = Diagnostic::error(
+                                ErrorCode::UnknownField,
+                                field.span,
+                                format!("no field `{}`", field.name),
+                            )
+                            .with_label(format!("fields are: {}", names.join(", ")));
+                            if let Some(s) = did_you_mean(&field.name, names.iter().copied()) {
+                                d = d.with_hint(format!("did you mean `.{s}`?"));
+                            }
+                            Err(d)
+                        }
+                    },
+                    Val::Scalar(_, q) => Err(Diagnostic::error(
+                        ErrorCode::NotARecord,
+                        field.span,
+                        format!(
+                            "`.{}` asks for a field, but this is a single value ({})",
+                            field.name,
+                            q.describe()
+                        ),
+                    )
+                    .with_secondary(base.span, "a single value")),
+                }
+            }
+            ExprKind::Call { func, args } => self.call(em, e, func, args),
+            ExprKind::Unary(op, inner) => {
+                let (o, q) = self.scalar(em, inner)?;
+                Ok(match op {
+                    UnOp::Pos => Val::Scalar(o, q),
+                    UnOp::Neg => Val::Scalar(em.un(Op::Neg, o), q),
+                })
+            }
+            ExprKind::Binary(op, a, b) => self.binary(em, e, *op, a, b),
+            ExprKind::Search(s) => self.search(em, e, s),
+        }
+    }
+
+    pub(super) fn name(&self, id: &Ident) -> R<Val> {
+        match id.name.as_str() {
+            "pi" => {
+                return Ok(Val::Scalar(
+                    Operand::Const(C64::new(std::f64::consts::PI, 0.0)),
+                    Quantity::PLAIN,
+                ))
+            }
+            "j" => return Ok(Val::Scalar(Operand::Const(C64::new(0.0, 1.0)), Quantity::PLAIN)),
+            _ => {}
+        }
+        let Some(&cid) = self.by_name.get(&id.name) else {
+            let mut d = Diagnostic::error(ErrorCode::UnknownName, id.span, format!("`{}` is not defined", id.name))
+                .with_label("no cell of this name");
+            let names = self
+                .cells
+                .iter()
+                .filter(|c| c.role == Role::Def)
+                .map(|c| c.name.as_str());
+            if let Some(s) = did_you_mean(&id.name, names.chain(["pi", "j"])) {
+                d = d.with_hint(format!("did you mean `{s}`?"));
+            } else if funcs::find(&id.name).is_some() {
+                d = d.with_hint(format!("`{0}` is a function: call it as `{0}(…)`", id.name));
+            } else if crate::units::lookup_unit(&id.name).is_ok() {
+                d = d.with_hint(format!("`{0}` is a unit; a unit follows a number: `1 {0}`", id.name));
+            } else {
+                d = d.with_hint(format!("define it on a line of its own: `{} = …`", id.name));
+            }
+            return Err(d);
+        };
+        let c = &self.cells[cid as usize];
+        match &c.shape {
+            Some(Shape::Scalar(q)) => Ok(Val::Scalar(Operand::Slot(c.slot), *q)),
+            Some(Shape::Record(fields)) => Ok(Val::Record(
+                fields
+                    .iter()
+                    .enumerate()
+                    .map(|(k, &(n, q))| (n, Operand::Slot(c.slot + k as u32), q))
+                    .collect(),
+            )),
+            None => unreachable!("cells with errors are not lowered against"),
+        }
+    }
+
+    pub(super) fn call(&self, em: &mut Emitter, whole: &Expr, func: &Ident, args: &[Expr]) -> R<Val> {
+        let Some((fid, f)) = funcs::find(&func.name) else {
+            let names = funcs::library().iter().map(|f| f.name);
+            let mut d = Diagnostic::error(
+                ErrorCode::UnknownFunction,
+                func.span,
+                format!("unknown function `{}`", func.name),
+            )
+            .with_label("no function of this name");
+            d = match did_you_mean(&func.name, names) {
+                Some(s) => d.with_hint(format!("did you mean `{s}`? (`ohmsheet functions` lists them all)")),
+                None => d.with_hint("`ohmsheet functions` lists every function"),
+            };
+            return Err(d);
+        };
+        let np = f.params.len();
+        let count_ok = if f.variadic { args.len() >= np } else { args.len() == np };
+        if !count_ok {
+            let sig = signature(f);
+            let want = if f.variadic {
+                format!("at least {np}")
+            } else {
+                np.to_string()
+            };
+            return Err(Diagnostic::error(
+                ErrorCode::FunctionArgs,
+                whole.span,
+                format!(
+                    "`{}` takes {want} argument{}, but {} {} given",
+                    f.name,
+                    if np == 1 { "" } else { "s" },
+                    args.len(),
+                    if args.len() == 1 { "was" } else { "were" }
+                ),
+            )
+            .with_label(format!("{sig}: {}", f.summary)));
+        }
+        let mut ops = Vec::with_capacity(args.len());
+        let mut qs = Vec::with_capacity(args.len());
+        for a in args {
+            let (o, q) = self.scalar(em, a)?;
+            ops.push(o);
+            qs.push(q);
+        }
+        let shape = (f.ty)(&qs, &self.ctx).map_err(|ae| {
+            let span = ae.arg.and_then(|i| args.get(i)).map_or(whole.span, |a| a.span);
+            Diagnostic::error(ErrorCode::FunctionArgs, span, format!("{}: {}", f.name, ae.message))
+                .with_label(ae.arg.map_or_else(String::new, |i| qs[i].describe()))
+                .with_hint(format!("{}: {}", signature(f), f.summary))
+        })?;
+        let outs = match &f.imp {
+            Impl::Lower(lower) => lower(em, &ops, &qs),
+            Impl::Scalar(_) => em.call(fid, &ops, shape.width()),
+        };
+        Ok(match shape {
+            Shape::Scalar(q) => Val::Scalar(outs[0], q),
+            Shape::Record(fields) => Val::Record(fields.into_iter().zip(outs).map(|((n, q), o)| (n, o, q)).collect()),
+        })
+    }
+}
