@@ -11,6 +11,15 @@
 //!   `1e200 || 1e200` is 5e199, not ∞ or NaN.
 //! - Functions of a real argument take a real-only path, so `sqrt(4)` is
 //!   exactly 2 and `asin(0.5)` has no stray imaginary part.
+//! - Principal values (DLMF §4.2, §4.37): −π < arg ≤ π. A zero part is
+//!   read as +0 whatever its sign bit, so a negative real however it was
+//!   produced (`-1`, `0 - x`, `-(x)`) lies on the upper side of every
+//!   branch cut: `ln(-1)` = +jπ, `arg(-5)` = +π, `(-8)^(1/3)` = 1 + j√3.
+//!   On a cut, ln, log10, sqrt, `^`, asin, acos and atan take the value of
+//!   the side counter-clockwise continuity gives (C99 Annex G and Python's
+//!   cmath for an argument with a +0 part). Integer powers of reals are
+//!   exact products (`(-2)^3` = −8, no imaginary part) and `x^0.5` is
+//!   `sqrt(x)` bit for bit.
 
 use num_complex::Complex64 as C64;
 
@@ -230,6 +239,22 @@ fn real(x: f64) -> C64 {
     C64::new(x, 0.0)
 }
 
+/// The same number with each zero part made +0: a real written `-5` (with
+/// a −0 imaginary part from the minus) sits on the upper side of a cut.
+#[inline]
+pub fn plus_zero(z: C64) -> C64 {
+    // −0 + 0 = +0 in IEEE 754 (round to nearest); every other value,
+    // NaN and ±∞ included, is unchanged.
+    C64::new(z.re + 0.0, z.im + 0.0)
+}
+
+/// Principal argument, −π < arg ≤ π; arg of a negative real is +π.
+#[inline]
+pub fn arg(z: C64) -> f64 {
+    let z = plus_zero(z);
+    z.im.atan2(z.re)
+}
+
 pub fn sqrt(z: C64) -> C64 {
     if z.im == 0.0 {
         if z.re >= 0.0 {
@@ -255,14 +280,19 @@ pub fn ln(z: C64) -> C64 {
         real(z.re.ln())
     } else if z.re == 0.0 && z.im == 0.0 {
         real(f64::NEG_INFINITY)
+    } else if z.im == 0.0 && z.re < 0.0 {
+        // the upper side of the cut: arg = +π
+        C64::new((-z.re).ln(), std::f64::consts::PI)
     } else {
-        z.ln()
+        plus_zero(z).ln()
     }
 }
 
 pub fn log10(z: C64) -> C64 {
     if z.im == 0.0 && z.re > 0.0 {
         real(z.re.log10())
+    } else if z.im == 0.0 && z.re < 0.0 {
+        C64::new((-z.re).log10(), std::f64::consts::PI / std::f64::consts::LN_10)
     } else {
         ln(z) / std::f64::consts::LN_10
     }
@@ -289,25 +319,42 @@ pub fn tan(z: C64) -> C64 {
         z.tan()
     }
 }
+
+/// Principal inverse sine. On the cuts (real x, |x| > 1) the value of the
+/// upper side: ±π/2 + j·acosh|x|.
 pub fn asin(z: C64) -> C64 {
     if z.im == 0.0 && z.re.abs() <= 1.0 {
         real(z.re.asin())
+    } else if z.im == 0.0 && z.re.abs() > 1.0 && z.re.is_finite() {
+        C64::new(std::f64::consts::FRAC_PI_2.copysign(z.re), z.re.abs().acosh())
     } else {
-        z.asin()
+        plus_zero(z).asin()
     }
 }
+
+/// Principal inverse cosine. On the cuts the value of the upper side:
+/// −j·acosh x for x > 1, π − j·acosh|x| for x < −1.
 pub fn acos(z: C64) -> C64 {
     if z.im == 0.0 && z.re.abs() <= 1.0 {
         real(z.re.acos())
+    } else if z.im == 0.0 && z.re > 1.0 && z.re.is_finite() {
+        C64::new(0.0, -z.re.acosh())
+    } else if z.im == 0.0 && z.re < -1.0 && z.re.is_finite() {
+        C64::new(std::f64::consts::PI, -(-z.re).acosh())
     } else {
-        z.acos()
+        plus_zero(z).acos()
     }
 }
+
+/// Principal inverse tangent. On the cuts (jy, |y| > 1) the value of the
+/// right-hand side: π/2 + j·atanh(1/y).
 pub fn atan(z: C64) -> C64 {
     if z.im == 0.0 {
         real(z.re.atan())
+    } else if z.re == 0.0 && z.im.abs() > 1.0 && z.im.is_finite() {
+        C64::new(std::f64::consts::FRAC_PI_2, (1.0 / z.im).atanh())
     } else {
-        z.atan()
+        plus_zero(z).atan()
     }
 }
 
@@ -322,9 +369,13 @@ pub fn powi(z: C64, n: i32) -> C64 {
     }
 }
 
+/// Principal power a^b = exp(b·ln a).
 pub fn pow(a: C64, b: C64) -> C64 {
     if b.im == 0.0 && b.re.fract() == 0.0 && b.re.abs() <= i32::MAX as f64 {
         return powi(a, b.re as i32);
+    }
+    if b.im == 0.0 && b.re == 0.5 {
+        return sqrt(a);
     }
     if a.re == 0.0 && a.im == 0.0 {
         return if b.re > 0.0 { real(0.0) } else { real(f64::INFINITY) };
@@ -332,7 +383,16 @@ pub fn pow(a: C64, b: C64) -> C64 {
     if a.im == 0.0 && a.re > 0.0 && b.im == 0.0 {
         return real(a.re.powf(b.re));
     }
-    a.powc(b)
+    if a.im == 0.0 && a.re < 0.0 {
+        // ln a = ln|a| + jπ (the upper side of the cut)
+        if b.im == 0.0 {
+            let m = (-a.re).powf(b.re);
+            let (s, c) = (b.re * std::f64::consts::PI).sin_cos();
+            return C64::new(m * c, m * s);
+        }
+        return (b * ln(a)).exp();
+    }
+    plus_zero(a).powc(b)
 }
 
 pub fn polar(m: C64, theta: C64) -> C64 {
@@ -366,7 +426,7 @@ pub fn apply1(op: Op, a: C64, b_bits: u32) -> C64 {
         Re => real(a.re),
         Im => real(a.im),
         Abs => real(abs(a)),
-        Arg => real(a.im.atan2(a.re)),
+        Arg => real(arg(a)),
         Recip => div(C64::new(1.0, 0.0), a),
         Sqrt => sqrt(a),
         Exp => exp(a),
@@ -395,7 +455,7 @@ pub fn apply2(op: Op, a: C64, b: C64) -> C64 {
         Pow => pow(a, b),
         Par => par(a, b),
         Polar => polar(a, b),
-        Atan2 => real(a.re.atan2(b.re)),
+        Atan2 => real((a.re + 0.0).atan2(b.re + 0.0)),
         Min => pick(a, b, true),
         Max => pick(a, b, false),
         _ => unreachable!("not a binary op: {op:?}"),
@@ -467,5 +527,54 @@ mod tests {
         assert_eq!(asin(c(0.5, 0.0)).im, 0.0);
         assert_eq!(pow(c(-2.0, 0.0), c(2.0, 0.0)), c(4.0, 0.0));
         assert_eq!(pow(c(2.0, 0.0), c(0.5, 0.0)), c(2f64.sqrt(), 0.0));
+    }
+
+    // Principal values (DLMF §4.2, §4.37): a negative real with a −0
+    // imaginary part (what a unary minus leaves) is read on the upper side
+    // of the cut. Expected values: DLMF's formulas, and Python's cmath for
+    // complex(x, 0.0) (cmath.log(-1) = πj, cmath.phase(-5) = π).
+    #[test]
+    fn negative_reals_take_principal_values() {
+        use std::f64::consts::PI;
+        for z in [c(-1.0, 0.0), c(-1.0, -0.0)] {
+            assert_eq!(ln(z), c(0.0, PI));
+            assert_eq!(apply1(Op::Arg, z, 0), c(PI, 0.0));
+            assert_eq!(sqrt(z), c(0.0, 1.0));
+            assert_eq!(pow(z, c(0.5, 0.0)), c(0.0, 1.0));
+        }
+        // (−8)^(1/3) = 2∠60° = 1 + j√3
+        let r = pow(c(-8.0, -0.0), c(1.0 / 3.0, 0.0));
+        assert!((r - c(1.0, 3f64.sqrt())).norm() < 1e-15 * 2.0, "{r}");
+        // (−2)^3 = −8 exactly, with a zero imaginary part
+        let r = pow(c(-2.0, -0.0), c(3.0, 0.0));
+        assert_eq!((r.re, r.im), (-8.0, 0.0));
+        // atan2(±0, −1) = π
+        assert_eq!(apply2(Op::Atan2, c(-0.0, 0.0), c(-1.0, 0.0)), c(PI, 0.0));
+        // arg(0) = 0 whatever the signs of the zero parts
+        assert_eq!(arg(c(-0.0, -0.0)), 0.0);
+    }
+
+    #[test]
+    fn half_power_is_sqrt_bit_for_bit() {
+        for x in [2.0, 3.0, 1e-300, 7.25e10, -5.0, -0.3] {
+            assert_eq!(pow(c(x, 0.0), c(0.5, 0.0)), sqrt(c(x, 0.0)));
+        }
+        let z = c(3.0, -4.0);
+        assert_eq!(pow(z, c(0.5, 0.0)), sqrt(z));
+    }
+
+    // Inverse trigonometric functions on their cuts: the values cmath gives
+    // for complex(x, 0.0) and complex(0.0, y): asin(2) = π/2 + 1.3169578969248166j,
+    // acos(−2) = π − 1.3169578969248166j, atan(−2j) = π/2 − 0.5493061443340549j.
+    #[test]
+    fn inverse_trig_on_the_cuts() {
+        use std::f64::consts::{FRAC_PI_2, PI};
+        let near = |a: C64, b: C64| (a - b).norm() < 1e-15 * b.norm().max(1.0);
+        assert!(near(asin(c(2.0, -0.0)), c(FRAC_PI_2, 1.3169578969248166)));
+        assert!(near(asin(c(-2.0, -0.0)), c(-FRAC_PI_2, 1.3169578969248166)));
+        assert!(near(acos(c(2.0, -0.0)), c(0.0, -1.3169578969248166)));
+        assert!(near(acos(c(-2.0, -0.0)), c(PI, -1.3169578969248166)));
+        assert!(near(atan(c(-0.0, -2.0)), c(FRAC_PI_2, -0.5493061443340549)));
+        assert!(near(atan(c(0.0, 2.0)), c(FRAC_PI_2, 0.5493061443340549)));
     }
 }

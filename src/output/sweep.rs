@@ -98,7 +98,7 @@ pub fn csv_headers(axes: &[Axis], series: &[Series], parts: Parts) -> Vec<String
 #[inline]
 pub fn split(z: C64, scale: Scale, parts: Parts) -> (f64, f64) {
     match parts {
-        Parts::Polar => (scale.apply(ops::abs(z)), z.im.atan2(z.re).to_degrees()),
+        Parts::Polar => (scale.apply(ops::abs(z)), ops::arg(z).to_degrees()),
         Parts::Rect => (scale.apply(z.re), scale.apply(z.im)),
     }
 }

@@ -199,7 +199,7 @@ pub fn layout(r: &SweepResult, parts: Parts) -> Result<Layout, String> {
             match part {
                 Part::Value if real[k] => z.re,
                 Part::Value => crate::engine::ops::abs(z),
-                Part::Phase => z.im.atan2(z.re).to_degrees(),
+                Part::Phase => crate::engine::ops::arg(z).to_degrees(),
                 Part::Re => z.re,
                 Part::Im => z.im,
             }

@@ -137,6 +137,46 @@ CASES = [
     ("Vs", Vs, "polar input"),
 ]
 
+# Principal values at the negative real axis and on the other branch cuts
+# (issue 13): -pi < arg <= pi (DLMF 4.2.3-4.2.7 for ln, 4.37 for powers;
+# DLMF 4.23 for the inverse trigonometric functions). A negative real,
+# however it is written, is taken on the upper side of the cut, as
+# Python's cmath takes complex(x, 0.0); each value is checked against
+# cmath below. (mpmath 1.3.0 takes asin(2) on the lower side, so the
+# inverse sine and cosine on their cuts come from DLMF's formulas.)
+PRINCIPAL_CASES = [
+    ("ln(-1)", mp.mpc(0, PI), "ln of a negative literal: +jπ", complex(-1, 0.0), cmath.log),
+    ("ln(0 - 1)", mp.mpc(0, PI), "ln of 0 − x", complex(-1, 0.0), cmath.log),
+    ("ln(-(R1/R1))", mp.mpc(0, PI), "ln of −(x)", complex(-1, 0.0), cmath.log),
+    ("ln(-2.5)", mp.log(mp.mpf("2.5")) + J * PI, "ln of a negative: ln|x| + jπ", complex(-2.5, 0.0), cmath.log),
+    ("log10(-100)", 2 + J * PI / mp.log(10), "log10 of a negative", complex(-100, 0.0), cmath.log10),
+    ("arg(-5 Ω)", PI, "arg of a negative real: +π", complex(-5, 0.0), cmath.phase),
+    ("arg(0 Ω - R1)", PI, "arg of 0 − x", complex(-12, 0.0), cmath.phase),
+    ("arg(-(R1))", PI, "arg of −(x)", complex(-12, 0.0), cmath.phase),
+    ("atan2(0, -1)", PI, "atan2 on the negative real axis", complex(-1, 0.0), cmath.phase),
+    ("(-8)^(1/3)", mp.exp(mp.log(mp.mpc(-8)) / 3), "principal cube root: 1 + j√3",
+     complex(-8, 0.0), lambda z: z ** (1 / 3)),
+    ("(-4)^0.5", mp.mpc(0, 2), "x^0.5 of a negative is sqrt(x) = +j2", complex(-4, 0.0), cmath.sqrt),
+    ("(0 - 4)^0.5", mp.mpc(0, 2), "x^0.5 of 0 − x", complex(-4, 0.0), cmath.sqrt),
+    ("(-(R1/R1*4))^0.5", mp.mpc(0, 2), "x^0.5 of −(x)", complex(-4, 0.0), cmath.sqrt),
+    ("(-4)^1.5", mp.exp(mp.mpf("1.5") * mp.log(mp.mpc(-4))), "fractional power of a negative",
+     complex(-4, 0.0), lambda z: z ** 1.5),
+    ("(-2)^(0.5 + j)", mp.exp(mp.mpc("0.5", 1) * mp.log(mp.mpc(-2))), "complex power of a negative",
+     complex(-2, 0.0), lambda z: z ** complex(0.5, 1)),
+    ("(-2)^3", mp.mpf(-8), "integer power of a negative: exact, real", complex(-2, 0.0), lambda z: z ** 3),
+    ("sqrt(-(R1/R1*9))", mp.mpc(0, 3), "sqrt of −(x)", complex(-9, 0.0), cmath.sqrt),
+    ("asin(2)", PI / 2 + J * mp.acosh(2), "asin on its cut, upper side", complex(2, 0.0), cmath.asin),
+    ("asin(-2)", -PI / 2 + J * mp.acosh(2), "asin on its cut, upper side", complex(-2, 0.0), cmath.asin),
+    ("acos(2)", -J * mp.acosh(2), "acos on its cut, upper side", complex(2, 0.0), cmath.acos),
+    ("acos(-2)", PI - J * mp.acosh(2), "acos on its cut, upper side", complex(-2, 0.0), cmath.acos),
+    ("atan(j2)", mp.atan(mp.mpc(0, 2)), "atan on its cut", complex(0.0, 2), cmath.atan),
+    ("atan(-j2)", PI / 2 + J * mp.atanh(mp.mpf(-1) / 2), "atan on its cut, right side",
+     complex(0.0, -2), cmath.atan),
+]
+for _f, _v, _w, _z, _py in PRINCIPAL_CASES:
+    assert cmath.isclose(complex(mp.mpc(_v)), _py(_z), rel_tol=1e-12, abs_tol=1e-15), _f
+CASES += [(f, v, w) for f, v, w, _z, _py in PRINCIPAL_CASES]
+
 
 def main():
     out = []
