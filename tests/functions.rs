@@ -578,6 +578,49 @@ fn wrong_units_are_refused() {
     refused("x = q_of(3 H)", "`Z` must be an impedance");
 }
 
+// Lines and RF: each argument refuses the wrong unit, naming what it wants.
+#[test]
+fn wrong_units_are_refused_by_line_functions() {
+    refused("x = refl(50 V, 50 Ω)", "`ZL` must be an impedance");
+    refused("x = refl(50 Ω, 1 pu)", "must both be in Ω or both per-unit");
+    refused("x = vswr(0.3 V)", "`G` must be a plain number");
+    refused("x = return_loss(10 Ω)", "`G` must be a plain number");
+    refused("x = from_db_p(3 V)", "`x` must be a level in decibels");
+    refused("x = from_db_v(30°)", "`x` must be a level in decibels");
+    refused(
+        "x = line_rlgc(0.1 Ω, 0.25 µH/m, 0 S/m, 100 pF/m, 1 MHz)",
+        "`R` must be a resistance per length",
+    );
+    refused(
+        "x = line_rlgc(0.1 Ω/m, 0.25 µH, 0 S/m, 100 pF/m, 1 MHz)",
+        "`L` must be an inductance per length",
+    );
+    refused(
+        "x = line_rlgc(0.1 Ω/m, 0.25 µH/m, 0 F/m, 100 pF/m, 1 MHz)",
+        "`G` must be a conductance per length",
+    );
+    refused(
+        "x = line_rlgc(0.1 Ω/m, 0.25 µH/m, 0 S/m, 100 pF/m, 1 km)",
+        "`f` must be a frequency",
+    );
+    refused("x = zin_lossless(50 Ω, 50 Ω, 90)", "give it its unit");
+    refused("x = zin_lossless(50 Ω, 50 S, 90°)", "`Z0` must be an impedance");
+    refused(
+        "x = zin_line(50 Ω, 50 Ω, j1, 1 km)",
+        "`gamma` must be a propagation constant",
+    );
+    refused("x = zin_line(50 Ω, 50 Ω, j1 / 1 km, 1 s)", "`len` must be a length");
+    refused(
+        "x = line_pi(j0.3 Ω, j3 µS/km, 10 km)",
+        "`z` must be a series impedance per length",
+    );
+    refused(
+        "x = line_pi_exact(j0.3 Ω/km, j3 µF/km, 10 km)",
+        "`y` must be a shunt admittance per length",
+    );
+    refused("x = line_pi(j0.3 Ω/km, j3 µS/km, 10)", "`len` must be a length");
+}
+
 // A frequency not marked as Hz or rad/s (here 1/√(LC), which is ω, not f)
 // is refused rather than guessed; a display unit settles it.
 #[test]

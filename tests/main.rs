@@ -19,6 +19,7 @@ mod include;
 mod kill_during_write;
 mod language;
 mod limits;
+mod lines_rf;
 mod misreadings;
 mod properties;
 mod readme;

@@ -14,6 +14,7 @@
 //! source. See DEVELOPERS.md.
 
 pub mod elements;
+pub mod lines;
 pub mod matching;
 pub mod math;
 pub mod networks;
@@ -156,6 +157,7 @@ fn families() -> Vec<(&'static str, Vec<Builtin>)> {
         ("Three phase", threephase::funcs()),
         ("Per-unit", perunit::funcs()),
         ("Matching networks", matching::funcs()),
+        ("Lines and RF", lines::funcs()),
         ("Ratios", ratios::funcs()),
     ]
 }

@@ -35,7 +35,18 @@ Sources:
   Engineering, §5.1 (from memory), and each solution is verified here by
   computing the network's input impedance.
 - Decibels: IEC 60027-3 (logarithmic quantities): 20·log10 of a
-  root-power ratio, 10·log10 of a power ratio.
+  root-power ratio, 10·log10 of a power ratio, and back: 10^(L/10),
+  10^(L/20).
+- Lines and RF: the voltage reflection coefficient Γ = (ZL − Z0)/(ZL + Z0),
+  VSWR = (1 + |Γ|)/(1 − |Γ|) and return loss −20·log10|Γ| (IEEE Std 100,
+  the dictionary of terms); the telegrapher's line γ = √((R + jωL)(G + jωC)),
+  Zc = √((R + jωL)/(G + jωC)) and Zin = Zc·(ZL + Zc·tanh γℓ)/(Zc + ZL·tanh γℓ),
+  lossless Z0·(ZL + jZ0·tan θ)/(Z0 + jZL·tan θ) (Pozar, Microwave
+  Engineering, ch. 2 — from memory); the power line's nominal π and exact
+  long-line equivalent Z′ = Zc·sinh γℓ, Y′/2 = tanh(γℓ/2)/Zc, A = cosh γℓ,
+  C = sinh(γℓ)/Zc (Grainger & Stevenson, Power System Analysis, ch. 6 —
+  from memory). The closed forms are evaluated here as written, not in the
+  rearranged forms ohmsheet uses.
 """
 import json
 
@@ -154,6 +165,60 @@ Van = Vab / (mp.sqrt(3) * mp.expj(30 * DEG))
 
 S1 = Vs * mp.conj(I1)
 
+# ---- lines and RF ----
+
+
+def refl(zl, z0):
+    return (zl - z0) / (zl + z0)
+
+
+def vswr(g):
+    return (1 + abs(g)) / (1 - abs(g))
+
+
+def zin_line(zl, zc, gl):
+    t = mp.tanh(gl)
+    return zc * (zl + zc * t) / (zc + zl * t)
+
+
+def zin_lossless(zl, z0, deg):
+    t = mp.tan(mp.mpf(deg) * DEG)
+    return z0 * (zl + J * z0 * t) / (z0 + J * zl * t)
+
+
+def rlgc(r, l, g, c, f):
+    w = 2 * PI * f
+    z = r + J * w * l
+    y = g + J * w * c
+    return mp.sqrt(z * y), mp.sqrt(z / y)
+
+
+# a coaxial-like line at 10 MHz: R 0.1 Ω/m, L 0.25 µH/m, G 20 µS/m, C 100 pF/m
+LG, LZC = rlgc(mp.mpf("0.1"), mp.mpf("0.25e-6"), mp.mpf("20e-6"), mp.mpf("100e-12"), mp.mpf("10e6"))
+# the same line's constants, given ω in rad/s
+LG_W, LZC_W = rlgc(mp.mpf("0.1"), mp.mpf("0.25e-6"), 0, mp.mpf("100e-12"), mp.mpf("6e7") / (2 * PI))
+ZLOAD = mp.mpc(30, 10)
+GL = LG * mp.mpf(7)  # 7 m of it
+
+
+def line_nominal(z, y, length):
+    Z, Y = z * length, y * length
+    return Z, Y / 2, 1 + Z * Y / 2, Z, Y * (1 + Z * Y / 4), 1 + Z * Y / 2
+
+
+def line_exact(z, y, length):
+    g, zc = mp.sqrt(z * y), mp.sqrt(z / y)
+    gl = g * length
+    return zc * mp.sinh(gl), mp.tanh(gl / 2) / zc, mp.cosh(gl), zc * mp.sinh(gl), mp.sinh(gl) / zc, mp.cosh(gl)
+
+
+# a 400 km overhead line: z = 0.03 + j0.35 Ω/km, y = j3.3 µS/km (in SI per metre)
+ZPM = mp.mpc("0.03e-3", "0.35e-3")
+YPM = mp.mpc(0, "3.3e-9")
+NOM = line_nominal(ZPM, YPM, mp.mpf(400e3))
+EXA = line_exact(ZPM, YPM, mp.mpf(400e3))
+LINE = "(0.03 + j0.35) Ω/km, j3.3 µS/km, 400 km"
+
 # (ohmsheet formula, mpmath value, source)
 CASES = [
     ("z_ind(L1, f)", J * w * L1, "IEC 60050-131: Z = jωL"),
@@ -237,6 +302,40 @@ CASES = [
     ("db_v(0.5)", 20 * mp.log10(mp.mpf("0.5")), "IEC 60027-3: 20·log10"),
     ("db_v(-3 + j4)", 20 * mp.log10(5), "IEC 60027-3: of the magnitude"),
     ("db_p(2)", 10 * mp.log10(2), "IEC 60027-3: 10·log10"),
+    ("refl((75 + j25) Ω, 50 Ω)", refl(mp.mpc(75, 25), 50), "IEEE Std 100: Γ = (ZL − Z0)/(ZL + Z0)"),
+    ("refl((10 - j40) Ω, (50 - j2) Ω)", refl(mp.mpc(10, -40), mp.mpc(50, -2)), "Γ on a complex reference"),
+    ("refl(j0.3 pu, 1 pu)", refl(0.3 * J, 1), "Γ in per-unit"),
+    ("vswr(refl((75 + j25) Ω, 50 Ω))", vswr(refl(mp.mpc(75, 25), 50)), "IEEE Std 100: VSWR = (1 + |Γ|)/(1 − |Γ|)"),
+    ("vswr(0.2 ∠ 120°)", vswr(mp.mpf("0.2")), "VSWR depends on |Γ| only"),
+    ("return_loss(0.2 ∠ 120°)", -20 * mp.log10(mp.mpf("0.2")), "IEEE Std 100: RL = −20·log10|Γ|"),
+    ("return_loss(refl(100 Ω, 50 Ω))", -20 * mp.log10(abs(refl(100, 50))), "RL of a 2:1 mismatch"),
+    ("from_db_p(3)", mp.mpf(10) ** (mp.mpf(3) / 10), "IEC 60027-3: 10^(L/10)"),
+    ("from_db_p(-20)", mp.mpf(10) ** -2, "IEC 60027-3: 10^(L/10)"),
+    ("from_db_v(-6)", mp.mpf(10) ** (mp.mpf(-6) / 20), "IEC 60027-3: 10^(L/20)"),
+    ("line_rlgc(0.1 Ω/m, 0.25 µH/m, 20 µS/m, 100 pF/m, 10 MHz).gamma", LG, "telegrapher: γ = √(zy)"),
+    ("line_rlgc(0.1 Ω/m, 0.25 µH/m, 20 µS/m, 100 pF/m, 10 MHz).Zc", LZC, "telegrapher: Zc = √(z/y)"),
+    ("line_rlgc(0.1 Ω/m, 0.25 µH/m, 0 S/m, 100 pF/m, 60 Mrad/s).gamma", LG_W, "ω given in rad/s"),
+    ("line_rlgc(0.1 Ω/m, 0.25 µH/m, 0 S/m, 100 pF/m, 60 Mrad/s).Zc", LZC_W, "ω given in rad/s"),
+    ("zin_lossless((30 + j10) Ω, 50 Ω, 60°)", zin_lossless(ZLOAD, 50, 60), "Pozar ch. 2: lossless line, tan form"),
+    ("zin_lossless((120 - j45) Ω, 75 Ω, 0.4 rad)", zin_lossless(mp.mpc(120, -45), 75, mp.mpf("0.4") / DEG), "θ in radians"),
+    ("zin_lossless(20 Ω, 50 Ω, 135°)", zin_lossless(20, 50, 135), "beyond a quarter wave"),
+    ("zin_line((30 + j10) Ω, line_rlgc(0.1 Ω/m, 0.25 µH/m, 20 µS/m, 100 pF/m, 10 MHz).Zc, "
+     "line_rlgc(0.1 Ω/m, 0.25 µH/m, 20 µS/m, 100 pF/m, 10 MHz).gamma, 7 metre)",
+     zin_line(ZLOAD, LZC, GL), "Pozar ch. 2: the lossy line, tanh form"),
+    ("zin_line(0 Ω, (300 - j20) Ω, (0.02 + j1.1) / 1 km, 60 km)",
+     zin_line(0, mp.mpc(300, -20), mp.mpc("0.02e-3", "1.1e-3") * 60e3), "a shorted lossy stub"),
+    (f"line_pi({LINE}).Z", NOM[0], "nominal π: Z = zℓ"),
+    (f"line_pi({LINE}).Y2", NOM[1], "nominal π: Y/2 = yℓ/2"),
+    (f"line_pi({LINE}).A", NOM[2], "nominal π: A = 1 + ZY/2"),
+    (f"line_pi({LINE}).B", NOM[3], "nominal π: B = Z"),
+    (f"line_pi({LINE}).C", NOM[4], "nominal π: C = Y(1 + ZY/4)"),
+    (f"line_pi({LINE}).D", NOM[5], "nominal π: D = A"),
+    (f"line_pi_exact({LINE}).Z", EXA[0], "long line: Z′ = Zc·sinh γℓ"),
+    (f"line_pi_exact({LINE}).Y2", EXA[1], "long line: Y′/2 = tanh(γℓ/2)/Zc"),
+    (f"line_pi_exact({LINE}).A", EXA[2], "long line: A = cosh γℓ"),
+    (f"line_pi_exact({LINE}).B", EXA[3], "long line: B = Zc·sinh γℓ"),
+    (f"line_pi_exact({LINE}).C", EXA[4], "long line: C = sinh(γℓ)/Zc"),
+    (f"line_pi_exact({LINE}).D", EXA[5], "long line: D = cosh γℓ"),
     ("vdrop(240 V, 228 V ∠ -3°)", (mp.mpf(240) - 228) / 240, "drop as a fraction of sending voltage"),
     ("vreg(250 V, 240 V)", (mp.mpf(250) - 240) / 240, "regulation as a fraction of full-load voltage"),
 ]
