@@ -1,7 +1,10 @@
 //! The interactive session: `ohmsheet` alone, or `ohmsheet SHEET`.
 //!
 //! - `state.rs`: the session without a terminal (document, engine, undo,
-//!   journal); `Session::handle` answers one typed line.
+//!   journal); `Session::handle` answers one typed line. Its rooms:
+//!   `state/apply.rs` (edits to the document and engine, the layer another
+//!   front end would share), `state/commands.rs` (the `/` commands),
+//!   `state/files.rs` (journal recovery and saving).
 //! - `doc.rs`: the sheet as the user's lines, for saving with comments kept.
 //! - `journal.rs`: every accepted change flushed to disk as it is made.
 //! - `show.rs`: how values, changes, trees and lists are shown.

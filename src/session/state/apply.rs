@@ -1,0 +1,221 @@
+//! The document/engine layer of a session, with no terminal and no
+//! journal: an edit applied in place when the engine can, else by compiling
+//! the whole document; its inverse kept for undo; the cells whose values
+//! changed. A later front end (a language server) shares this layer.
+
+use std::collections::HashMap;
+
+use num_complex::Complex64 as C64;
+
+use super::{show, sorted_refs, Edit, Session, Shown};
+use crate::diag::{Diagnostic, ErrorCode, Span};
+use crate::engine::{compile, CellId, EditError, Engine, Model, Role};
+use crate::session::doc::DocLine;
+use crate::syntax::ast::{Stmt, StmtKind};
+use crate::units::format::Style;
+
+impl Session {
+    /// The document line for typed `text` replacing line `idx`: the old
+    /// line's comment is kept when none was typed.
+    pub(super) fn line_for(&mut self, idx: usize, text: &str, stmt: Stmt) -> DocLine {
+        let merged = self.doc.merged_text(idx, text);
+        if merged == text.trim() {
+            return plain_line(text, stmt);
+        }
+        match self.parse(&merged) {
+            Ok(Some(s)) => DocLine {
+                text: merged,
+                stmt: Some(s),
+                error: None,
+                included: Vec::new(),
+            },
+            // Cannot happen (a comment never changes what parses); keep
+            // what was typed.
+            _ => plain_line(text, stmt),
+        }
+    }
+
+    pub(super) fn push_undo(&mut self, inverse: Edit) {
+        self.undo.push((inverse, self.version));
+        self.version = self.next_version;
+        self.next_version += 1;
+    }
+
+    // ---- applying edits ----
+
+    /// Apply an edit: in place when the engine can, else by compiling the
+    /// document. Unless `force`, an edit that brings a new error is
+    /// refused and nothing changes. Returns the inverse edit and what
+    /// changed.
+    pub(super) fn apply(&mut self, edit: Edit, force: bool) -> Result<(Edit, Vec<Shown>), String> {
+        // The fast paths.
+        match &edit {
+            Edit::Replace(idx, line) => {
+                if let (Some(StmtKind::Def(d)), Some(old)) =
+                    (line.stmt.as_ref().map(|s| &s.kind), self.doc.lines[*idx].defines())
+                {
+                    if d.name.name == old {
+                        if let Some(id) = self.engine.model.id(old) {
+                            let stmt = line.stmt.as_ref().expect("checked");
+                            match self.engine.redefine(id, stmt, d) {
+                                Ok(changes) => {
+                                    let shown = self.shown_changes(&changes);
+                                    let prev = std::mem::replace(&mut self.doc.lines[*idx], line.clone());
+                                    return Ok((Edit::Replace(*idx, prev), shown));
+                                }
+                                Err(EditError::Invalid(diag)) if !force => return Err(self.render(&diag)),
+                                Err(_) => {}
+                            }
+                        }
+                    }
+                }
+            }
+            Edit::Delete(idx) if *idx + 1 == self.doc.lines.len() => {
+                if let Some(id) = self.doc.lines[*idx].defines().and_then(|n| self.engine.model.id(n)) {
+                    if self.engine.remove_last(id).is_ok() {
+                        let line = self.doc.lines.remove(*idx);
+                        return Ok((Edit::Insert(*idx, line), Vec::new()));
+                    }
+                }
+            }
+            Edit::Insert(idx, line) if *idx == self.doc.lines.len() => {
+                if let Some(StmtKind::Def(d)) = line.stmt.as_ref().map(|s| &s.kind) {
+                    let stmt = line.stmt.as_ref().expect("checked");
+                    match self.engine.add_cell(stmt, d) {
+                        Ok(change) => {
+                            let shown = self.shown_changes(&[change]);
+                            self.doc.lines.push(line.clone());
+                            return Ok((Edit::Delete(*idx), shown));
+                        }
+                        Err(EditError::Invalid(diag)) if !force => return Err(self.render(&diag)),
+                        Err(_) => {}
+                    }
+                }
+            }
+            _ => {}
+        }
+        // Compile the whole document.
+        let inverse = self.doc_apply(edit);
+        let sheet = self.doc.sheet(&self.engine.model.sources);
+        let mut model = compile(&sheet);
+        model.diagnostics.retain(|d| d.code != ErrorCode::EmptySheet);
+        if !force {
+            let old = &self.engine.model.diagnostics;
+            let fresh: Vec<&Diagnostic> = model
+                .diagnostics
+                .iter()
+                .filter(|d| d.is_error() && !old.contains(d))
+                .collect();
+            if !fresh.is_empty() {
+                let text: String = sorted_refs(&fresh)
+                    .into_iter()
+                    .map(|d| d.render(&model.sources, self.color))
+                    .collect();
+                self.doc_apply(inverse);
+                return Err(text);
+            }
+        }
+        let engine = Engine::new(model);
+        let shown = diff(&self.engine, &engine, self.style, self.polar);
+        self.engine = engine;
+        Ok((inverse, shown))
+    }
+
+    /// Change the document; returns the inverse edit.
+    pub(super) fn doc_apply(&mut self, edit: Edit) -> Edit {
+        match edit {
+            Edit::Replace(i, line) => Edit::Replace(i, std::mem::replace(&mut self.doc.lines[i], line)),
+            Edit::Insert(i, line) => {
+                self.doc.lines.insert(i, line);
+                Edit::Delete(i)
+            }
+            Edit::Delete(i) => Edit::Insert(i, self.doc.lines.remove(i)),
+        }
+    }
+
+    pub(super) fn shown_changes(&self, changes: &[crate::engine::Change]) -> Vec<Shown> {
+        changes
+            .iter()
+            .map(|c| Shown {
+                name: show::cell_label(&self.engine.model, c.cell),
+                old: if c.old.is_empty() {
+                    None
+                } else {
+                    Some(show::cell_vals(
+                        &self.engine.model,
+                        c.cell,
+                        &c.old,
+                        self.style,
+                        self.polar,
+                    ))
+                },
+                new: show::cell_vals(&self.engine.model, c.cell, &c.new, self.style, self.polar),
+            })
+            .collect()
+    }
+
+    /// A cell's current value as shown.
+    pub fn cell_value(&self, id: CellId) -> String {
+        show::cell_vals(&self.engine.model, id, self.engine.values(id), self.style, self.polar)
+    }
+    // ---- for completion ----
+
+    /// Names of the defined cells.
+    pub fn cell_names(&self) -> impl Iterator<Item = &str> {
+        self.engine.model.by_name.keys().map(String::as_str)
+    }
+}
+
+pub(super) fn plain_line(text: &str, stmt: Stmt) -> DocLine {
+    DocLine {
+        text: text.trim().to_string(),
+        stmt: Some(stmt),
+        error: None,
+        included: Vec::new(),
+    }
+}
+
+/// The key of a cell across two compiles: its name, or for a check the
+/// place of its statement.
+#[derive(Clone, PartialEq, Eq, Hash)]
+enum Key {
+    Name(String),
+    Check(Span),
+}
+
+fn key(m: &Model, id: CellId) -> Key {
+    let c = &m.cells[id as usize];
+    match c.role {
+        Role::Def => Key::Name(c.name.clone()),
+        Role::Check => Key::Check(c.stmt_span),
+    }
+}
+
+/// Cells whose values differ between two engines (after a full compile),
+/// in the new one's evaluation order.
+fn diff(old: &Engine, new: &Engine, style: Style, polar: bool) -> Vec<Shown> {
+    let om = &old.model;
+    let nm = &new.model;
+    let old_ids: HashMap<Key, CellId> = om.order.iter().map(|&id| (key(om, id), id)).collect();
+    let bits = |v: &[C64]| v.iter().map(|z| (z.re.to_bits(), z.im.to_bits())).collect::<Vec<_>>();
+    let mut out = Vec::new();
+    for &id in &nm.order {
+        let k = key(nm, id);
+        let newv = new.values(id);
+        let old_id = old_ids.get(&k).copied();
+        let same = old_id.is_some_and(|o| {
+            om.cells[o as usize].shape == nm.cells[id as usize].shape
+                && om.cells[o as usize].display == nm.cells[id as usize].display
+                && bits(old.values(o)) == bits(newv)
+        });
+        if same {
+            continue;
+        }
+        out.push(Shown {
+            name: show::cell_label(nm, id),
+            old: old_id.map(|o| show::cell_vals(om, o, old.values(o), style, polar)),
+            new: show::cell_vals(nm, id, newv, style, polar),
+        });
+    }
+    out
+}

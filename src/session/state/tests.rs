@@ -1,0 +1,321 @@
+//! Tests of the session without a terminal.
+
+use super::*;
+use num_complex::Complex64 as C64;
+
+const SITE: &str = "# Pump house feeder (invented)\n\
+Vs = 480 V      # bus\n\
+R1 = 10 Ω\n\
+R2 = 20 Ω\n\
+\n\
+Rt = R1 + R2    # total\n\
+I = Vs / Rt\n";
+
+struct Fixture {
+    dir: tempfile::TempDir,
+    path: PathBuf,
+}
+
+impl Fixture {
+    fn new(text: &str) -> Fixture {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("site.ohm");
+        std::fs::write(&path, text).unwrap();
+        Fixture { dir, path }
+    }
+    fn data(&self) -> PathBuf {
+        self.dir.path().join("data")
+    }
+    fn open(&self) -> Session {
+        Session::open(Some(&self.path), Some(self.data()), false).unwrap().0
+    }
+}
+
+fn ok(s: &mut Session, line: &str) -> String {
+    let r = s.handle(line);
+    assert!(!r.refused, "`{line}` was refused:\n{}", r.text);
+    r.text
+}
+
+fn val(s: &Session, name: &str) -> C64 {
+    s.engine.value(s.engine.model.id(name).unwrap())
+}
+
+#[test]
+fn a_redefinition_reports_every_dependent_old_to_new() {
+    let f = Fixture::new(SITE);
+    let mut s = f.open();
+    let out = ok(&mut s, "R2 = 30 Ω");
+    // Ohm's law: 480 V / 40 Ω = 12 A (was 480 / 30 = 16 A).
+    assert_eq!(val(&s, "I"), C64::new(12.0, 0.0));
+    let lines: Vec<&str> = out.lines().collect();
+    assert!(lines[0].starts_with("R2 = 30 Ω"), "{out}");
+    assert!(
+        lines[1].contains("Rt") && lines[1].contains("30 Ω") && lines[1].contains("40 Ω"),
+        "{out}"
+    );
+    assert!(
+        lines[2].contains("I") && lines[2].contains("16 A") && lines[2].contains("12 A"),
+        "{out}"
+    );
+    assert!(s.dirty());
+}
+
+#[test]
+fn a_bad_line_leaves_the_sheet_as_it_was() {
+    let f = Fixture::new(SITE);
+    let mut s = f.open();
+    let before = s.doc.text();
+    let i = val(&s, "I");
+    for bad in [
+        "R2 = 30 V",
+        "R2 = (3 +",
+        "R1 = I * 1 Ω",
+        "x = nosuch * 2",
+        "Rt = R1 + 3 V",
+        "I = Vs / Rt + 1",
+    ] {
+        let r = s.handle(bad);
+        assert!(r.refused, "`{bad}` was accepted");
+        assert!(r.text.contains("error"), "{}", r.text);
+        assert!(r.text.contains("sheet is as it was"), "{}", r.text);
+        assert_eq!(s.doc.text(), before);
+        assert_eq!(val(&s, "I"), i);
+    }
+    assert!(!s.dirty());
+    // The caret points into the typed line.
+    let r = s.handle("x = R1 + 3 V");
+    assert!(r.text.contains("input:1:"), "{}", r.text);
+    assert!(r.text.contains('^'), "{}", r.text);
+}
+
+#[test]
+fn saving_keeps_comments_blank_lines_and_order() {
+    let f = Fixture::new(SITE);
+    let mut s = f.open();
+    ok(&mut s, "Vs = 415 V");
+    ok(&mut s, "Rt = R1 + R2 + 0.5 Ω  # with the joint");
+    ok(&mut s, "P = re(Vs * conj(I))");
+    ok(&mut s, "spare = 1 Ω");
+    ok(&mut s, "/remove spare");
+    ok(&mut s, "/save");
+    assert!(!s.dirty());
+    assert_eq!(
+        std::fs::read_to_string(&f.path).unwrap(),
+        "# Pump house feeder (invented)\n\
+Vs = 415 V      # bus\n\
+R1 = 10 Ω\n\
+R2 = 20 Ω\n\
+\n\
+Rt = R1 + R2 + 0.5 Ω  # with the joint\n\
+I = Vs / Rt\n\
+P = re(Vs * conj(I))\n"
+    );
+    // Saving cleared the journal: nothing to recover.
+    drop(s);
+    assert!(f.open().recovery().is_none());
+}
+
+#[test]
+fn undo_walks_back_through_every_kind_of_change() {
+    let f = Fixture::new(SITE);
+    let mut s = f.open();
+    let mut snapshots = vec![(s.doc.text(), val(&s, "I"))];
+    for line in [
+        "R2 = 30 Ω",             // in place
+        "g = 2",                 // a new cell, in place
+        "h = g * Vs",            // another
+        "g = 2 A",               // h becomes a power: whole-sheet compile
+        "@title \"Pump house\"", // a directive
+        "check I ~= 12 A +- 1%", // a check
+        "/remove h",             // a removal
+        "Vs = 240 V",            // in place again
+    ] {
+        ok(&mut s, line);
+        snapshots.push((s.doc.text(), val(&s, "I")));
+    }
+    // 240 V / 40 Ω = 6 A
+    assert_eq!(val(&s, "I"), C64::new(6.0, 0.0));
+    snapshots.pop();
+    while let Some((text, i)) = snapshots.pop() {
+        ok(&mut s, "/back");
+        assert_eq!(s.doc.text(), text);
+        assert_eq!(val(&s, "I"), i);
+    }
+    assert!(!s.dirty(), "back where it started");
+    assert!(s.handle("/back").refused);
+}
+
+#[test]
+fn a_cell_in_use_is_not_removed() {
+    let f = Fixture::new(SITE);
+    let mut s = f.open();
+    let r = s.handle("/remove R1");
+    assert!(r.refused);
+    assert!(r.text.contains("Rt"), "{}", r.text);
+    assert!(s.engine.model.id("R1").is_some());
+}
+
+#[test]
+fn the_journal_replays_to_the_same_state() {
+    let f = Fixture::new(SITE);
+    let mut a = f.open();
+    ok(&mut a, "R2 = 30 Ω");
+    ok(&mut a, "P = re(Vs * conj(I))");
+    ok(&mut a, "Q = P / 2");
+    ok(&mut a, "/back"); // Q goes
+    ok(&mut a, "Vs = 400 V");
+    ok(&mut a, "tmp = 3 Ω");
+    ok(&mut a, "/remove tmp");
+    let text = a.doc.text();
+    let p = val(&a, "P");
+    // The process dies here: no save, no goodbye.
+    drop(a);
+
+    let mut b = f.open();
+    assert_eq!(b.doc.text(), SITE, "the file on disk was never touched");
+    let rec = b.recovery().expect("a journal to recover");
+    assert!(b.same_base(&rec));
+    assert_eq!(rec.entries.len(), 7);
+    let report = b.restore(&rec);
+    assert!(report.starts_with("restored 7 changes"), "{report}");
+    assert_eq!(b.doc.text(), text);
+    // 400 V across 40 Ω: P = V²/R = 4000 W.
+    assert!((p.re - 4000.0).abs() < 1e-9);
+    assert_eq!(val(&b, "P"), p);
+    assert!(b.dirty());
+    // The undo history came back too: /back undoes the removal of tmp.
+    ok(&mut b, "/back");
+    assert!(b.engine.model.id("tmp").is_some());
+    drop(b);
+
+    // Declining throws the journal away.
+    let mut c = f.open();
+    assert!(c.recovery().is_some());
+    c.discard_journal();
+    drop(c);
+    assert!(f.open().recovery().is_none());
+}
+
+/// A sheet saved by someone else meanwhile is not written over unseen.
+#[test]
+fn a_file_changed_on_disk_is_not_written_over_unseen() {
+    let f = Fixture::new(SITE);
+    let mut a = f.open();
+    let mut b = f.open();
+    ok(&mut a, "R2 = 30 Ω");
+    ok(&mut b, "R1 = 5 Ω");
+    ok(&mut a, "/save");
+    let saved_by_a = std::fs::read_to_string(&f.path).unwrap();
+    let r = b.handle("/save");
+    assert!(r.refused, "{}", r.text);
+    assert!(r.text.contains("changed on disk"), "{}", r.text);
+    assert_eq!(std::fs::read_to_string(&f.path).unwrap(), saved_by_a);
+    assert!(b.dirty(), "B's change is still unsaved, and journalled");
+    // Under another name, or over the file on purpose.
+    let other = f.dir.path().join("site-b.ohm");
+    ok(&mut b, &format!("/save {}", other.display()));
+    assert!(std::fs::read_to_string(&other).unwrap().contains("R1 = 5 Ω"));
+    // B now works on site-b.ohm; A's file is A's. A saves again freely.
+    ok(&mut a, "R2 = 35 Ω");
+    ok(&mut a, "/save");
+    // An editor changes A's file; A is told, then writes over it.
+    std::fs::write(&f.path, "R1 = 1 Ω\n").unwrap();
+    ok(&mut a, "R2 = 40 Ω");
+    assert!(a.handle("/save").refused);
+    ok(&mut a, "/save!");
+    assert!(std::fs::read_to_string(&f.path).unwrap().contains("R2 = 40 Ω"));
+}
+
+/// Two sessions on one sheet: one saves and leaves, the other is
+/// killed with unsaved changes; the next session offers those changes.
+#[test]
+fn two_sessions_on_one_sheet_lose_nothing() {
+    let f = Fixture::new(SITE);
+    let mut a = f.open();
+    let (mut b, greet) = Session::open(Some(&f.path), Some(f.data()), false).unwrap();
+    assert!(greet.contains("open in another session"), "{greet}");
+    ok(&mut a, "R2 = 30 Ω");
+    ok(&mut b, "R1 = 5 Ω");
+    ok(&mut b, "Vs = 400 V");
+    ok(&mut a, "/save");
+    drop(a);
+    // B dies here without saving.
+    drop(b);
+    let mut c = f.open();
+    let rec = c.recovery().expect("B's changes are offered");
+    assert_eq!(
+        rec.entries,
+        [
+            journal::Entry::Line("R1 = 5 Ω".into()),
+            journal::Entry::Line("Vs = 400 V".into())
+        ]
+    );
+    // They apply to the sheet A saved: 400 V across 5 Ω + 30 Ω.
+    c.restore(&rec);
+    assert_eq!(val(&c, "I"), C64::new(400.0 / 35.0, 0.0));
+}
+
+#[test]
+fn a_changed_file_still_takes_the_changes_by_name() {
+    let f = Fixture::new(SITE);
+    let mut a = f.open();
+    ok(&mut a, "R2 = 30 Ω");
+    ok(&mut a, "/remove I");
+    drop(a);
+    std::fs::write(&f.path, SITE.replace("R1 = 10 Ω", "R1 = 12 Ω")).unwrap();
+    let mut b = f.open();
+    let rec = b.recovery().unwrap();
+    assert!(!b.same_base(&rec));
+    b.restore(&rec);
+    assert!(b.doc.text().contains("R1 = 12 Ω") && b.doc.text().contains("R2 = 30 Ω"));
+    assert!(b.engine.model.id("I").is_none());
+}
+
+#[test]
+fn a_library_sheet_stays_included_and_its_cells_are_left_alone() {
+    let f = Fixture::new(
+        "# feeder using the cable library (invented)\n@include \"lib/cable.ohm\"\nL = 2 * 1 Ω\nZ = Zc * L / 1 Ω\n",
+    );
+    std::fs::create_dir(f.dir.path().join("lib")).unwrap();
+    std::fs::write(
+        f.dir.path().join("lib/cable.ohm"),
+        "Zc = (0.2 + j0.1) Ω  # per length\n",
+    )
+    .unwrap();
+    let mut s = f.open();
+    assert!(
+        s.engine.model.diagnostics.is_empty(),
+        "{:?}",
+        s.engine.model.diagnostics
+    );
+    // 2 × (0.2 + j0.1) Ω
+    assert_eq!(val(&s, "Z"), C64::new(0.4, 0.2));
+    ok(&mut s, "L = 3 * 1 Ω");
+    assert!((val(&s, "Z") - C64::new(0.6, 0.3)).norm() < 1e-12);
+    // A change that needs the whole sheet compiled keeps the library.
+    ok(&mut s, "W = Z * 2");
+    ok(&mut s, "/remove W");
+    assert!((val(&s, "Z") - C64::new(0.6, 0.3)).norm() < 1e-12);
+    let r = s.handle("Zc = 1 Ω");
+    assert!(r.refused && r.text.contains("library sheet"), "{}", r.text);
+    assert!(s.handle("@include \"other.ohm\"").refused);
+    ok(&mut s, "/save");
+    assert_eq!(
+        std::fs::read_to_string(&f.path).unwrap(),
+        "# feeder using the cable library (invented)\n@include \"lib/cable.ohm\"\nL = 3 * 1 Ω\nZ = Zc * L / 1 Ω\n"
+    );
+}
+
+#[test]
+fn an_unnamed_session_saves_where_it_is_told() {
+    let dir = tempfile::tempdir().unwrap();
+    let (mut s, _) = Session::open(None, Some(dir.path().join("data")), false).unwrap();
+    ok(&mut s, "Zs = (0.1 + j0.4) Ω");
+    ok(&mut s, "Zl = 8 Ω");
+    assert!(s.handle("/save").refused);
+    let p = dir.path().join("new.ohm");
+    ok(&mut s, &format!("/save {}", p.display()));
+    assert_eq!(std::fs::read_to_string(&p).unwrap(), "Zs = (0.1 + j0.4) Ω\nZl = 8 Ω\n");
+    assert_eq!(s.path.as_deref(), Some(p.as_path()));
+}
