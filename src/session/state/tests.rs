@@ -1,4 +1,5 @@
 //! Tests of the session without a terminal.
+#![cfg(test)]
 
 use super::*;
 use num_complex::Complex64 as C64;
