@@ -7,15 +7,34 @@ use super::dim::Dim;
 use super::kind::{Kind, Quantity};
 use super::table::Unit;
 
-/// How a unit is shown when the sheet does not name one: the coherent SI
-/// symbol and whether SI prefixes may be put on it.
+/// How a unit is shown when the sheet does not name one: the symbol, how
+/// SI prefixes go on it, and the scale of the numbers shown.
 struct Shown {
     symbol: String,
-    prefixable: bool,
-    /// Divide the SI value by this before showing (degrees for angles).
+    /// The power of the unit a prefix attaches to: 1 for `kΩ`, 2 for
+    /// `kΩ²` (which is (kΩ)², SI Brochure §3); 0 when no prefix is used.
+    prefix_power: i32,
+    /// What follows a prefix: the symbol itself, or the trade's glued form
+    /// (`kWh`, `kvarh` for `W·h`, `var·h`).
+    prefixed: String,
+    /// Divide the SI value by this before showing (degrees for angles,
+    /// 3600 for watt-hours).
     scale: f64,
 }
 
+impl Shown {
+    fn new(symbol: &str, prefix_power: i32) -> Shown {
+        Shown {
+            symbol: symbol.to_string(),
+            prefix_power,
+            prefixed: symbol.to_string(),
+            scale: 1.0,
+        }
+    }
+}
+
+/// Units with a name of their own (SI Brochure, 9th ed., Tables 2 and 4),
+/// each the display for its dimension.
 const NAMED: &[(Dim, &str)] = &[
     (Dim::IMPEDANCE, "Ω"),
     (Dim::ADMITTANCE, "S"),
@@ -30,62 +49,152 @@ const NAMED: &[(Dim, &str)] = &[
     (Dim::LENGTH, "m"),
 ];
 
-fn shown(q: Quantity) -> Shown {
-    let plain = |s: &str, prefixable| Shown {
-        symbol: s.to_string(),
-        prefixable,
-        scale: 1.0,
+/// The units a dimension without a name of its own is written in, in
+/// order of preference (see `compound`).
+const FACTORS: &[(Dim, &str)] = &[
+    (Dim::IMPEDANCE, "Ω"),
+    (Dim::ADMITTANCE, "S"),
+    (Dim::VOLTAGE, "V"),
+    (Dim::CURRENT, "A"),
+    (Dim::POWER, "W"),
+    (Dim::CAPACITANCE, "F"),
+    (Dim::INDUCTANCE, "H"),
+    (Dim::ENERGY, "J"),
+    (Dim::CHARGE, "C"),
+    (Dim::FLUX, "Wb"),
+    (Dim::TIME, "s"),
+    (Dim::LENGTH, "m"),
+];
+
+/// `u^p` written the way ohmsheet reads it back: `Ω`, `Ω²`, `m⁻¹`.
+fn power_of(sym: &str, p: i32) -> String {
+    if p == 1 {
+        sym.to_string()
+    } else {
+        format!("{sym}{}", super::dim::superscript(p))
+    }
+}
+
+/// A dimension with no unit of its own, written with the units of
+/// `FACTORS`: one unit to a power (`Ω²`, `s⁻²`), else a product or
+/// quotient of two (`Ω·m`, `A/m²`, `V/s`). Of the forms that fit, the one
+/// with fewer units wins, then the smaller sum of the powers' sizes, then
+/// fewer negative powers, then one with a second or a metre in it (a rate
+/// or a per-length value: `A/s`, not `V/H`), then the earlier units in
+/// `FACTORS`. Returns the
+/// symbol and the power of its first unit (a prefix goes there when that
+/// power is positive). `None` when no form of one or two units with powers
+/// up to 3 fits: the dimension is then written in base units.
+fn compound(d: Dim) -> Option<(String, i32)> {
+    const POWERS: [i32; 6] = [1, 2, 3, -1, -2, -3];
+    // (units, Σ|power|, negatives, no s or m, first index, second index)
+    type Score = (u8, i32, u8, bool, usize, usize);
+    let mut best: Option<(Score, String, i32)> = None;
+    let mut offer = |score: Score, sym: String, p: i32| {
+        if best.as_ref().is_none_or(|(s, _, _)| score < *s) {
+            best = Some((score, sym, p));
+        }
     };
+    for (i, &(da, sa)) in FACTORS.iter().enumerate() {
+        for &p in &POWERS {
+            let Some(dp) = da.powi(p) else { continue };
+            if dp == d && p != 1 {
+                offer((1, p.abs(), u8::from(p < 0), true, i, 0), power_of(sa, p), p);
+            }
+            for (k, &(db, sb)) in FACTORS.iter().enumerate().skip(i + 1) {
+                for &q in &POWERS {
+                    if db.powi(q).and_then(|dq| dp.times(dq)) != Some(d) {
+                        continue;
+                    }
+                    let negatives = u8::from(p < 0) + u8::from(q < 0);
+                    let rate = matches!(sb, "s" | "m");
+                    let score = (2, p.abs() + q.abs(), negatives, !rate, i, k);
+                    let (sym, first) = match (p > 0, q > 0) {
+                        (true, true) => (format!("{}·{}", power_of(sa, p), power_of(sb, q)), p),
+                        (true, false) => (format!("{}/{}", power_of(sa, p), power_of(sb, -q)), p),
+                        (false, true) => (format!("{}/{}", power_of(sb, q), power_of(sa, -p)), q),
+                        (false, false) => (format!("{}·{}", power_of(sa, p), power_of(sb, q)), p),
+                    };
+                    offer(score, sym, first);
+                }
+            }
+        }
+    }
+    best.map(|(_, s, p)| (s, p))
+}
+
+/// The trade's unit of energy for a power of a known kind: W·h, var·h and
+/// V·A·h, written kWh, kvarh and kVAh with a prefix (IEC 60050-601 and
+/// meter practice).
+fn energy_of(kind: Kind) -> Option<(&'static str, &'static str)> {
+    match kind {
+        Kind::RealPower => Some(("W·h", "Wh")),
+        Kind::ReactivePower => Some(("var·h", "varh")),
+        Kind::ApparentPower => Some(("VA·h", "VAh")),
+        _ => None,
+    }
+}
+
+fn shown(q: Quantity) -> Shown {
     match q.kind {
         Kind::Angle => {
             return Shown {
-                symbol: "°".into(),
-                prefixable: false,
                 scale: std::f64::consts::PI / 180.0,
+                ..Shown::new("°", 0)
             };
         }
-        Kind::PerUnit => return plain("pu", false),
-        Kind::RealPower => return plain("W", true),
-        Kind::ReactivePower => return plain("var", true),
-        Kind::ApparentPower => return plain("VA", true),
-        Kind::Hertz => return plain("Hz", true),
-        Kind::RadPerSec => return plain("rad/s", false),
+        Kind::PerUnit => return Shown::new("pu", 0),
+        Kind::RealPower | Kind::ReactivePower | Kind::ApparentPower if q.dim == Dim::ENERGY => {
+            let (sym, glued) = energy_of(q.kind).unwrap_or(("J", "J"));
+            return Shown {
+                prefixed: glued.to_string(),
+                scale: 3600.0,
+                ..Shown::new(sym, 1)
+            };
+        }
+        Kind::RealPower => return Shown::new("W", 1),
+        Kind::ReactivePower => return Shown::new("var", 1),
+        Kind::ApparentPower => return Shown::new("VA", 1),
+        Kind::Hertz => return Shown::new("Hz", 1),
+        Kind::RadPerSec => return Shown::new("rad/s", 0),
         Kind::Plain => {}
     }
     let d = q.dim;
     if d.is_none() {
-        return plain("", false);
+        return Shown::new("", 0);
     }
     if d == Dim::POWER {
-        return plain("VA", true);
+        return Shown::new("VA", 1);
     }
     if d == Dim::FREQUENCY {
         // SI writes both Hz and rad/s as s⁻¹; without a tag we cannot tell
         // which this is, so we say neither. A prefix on s⁻¹ would read as
         // (ks)⁻¹, so none is used.
-        return plain("s⁻¹", false);
+        return Shown::new("s⁻¹", 0);
     }
     for &(nd, sym) in NAMED {
         if nd == d {
-            return plain(sym, true);
+            return Shown::new(sym, 1);
         }
     }
-    // per metre: Ω/m, F/m, H/m, S/m, V/m
-    if let Some(times_m) = d.times(Dim::LENGTH) {
-        for &(nd, sym) in NAMED {
-            if nd == times_m && nd != Dim::LENGTH {
-                return plain(&format!("{sym}/m"), true);
-            }
-        }
+    if let Some((sym, p)) = compound(d) {
+        return Shown::new(&sym, p.max(0));
     }
-    plain(&d.base_form(), false)
+    Shown::new(&d.base_form(), 0)
 }
 
-/// The coherent SI unit symbol of a quantity (`Ω`, `W`, `var`, `Hz`; `rad`
-/// for angles, since that is the SI unit the numbers are kept in).
+/// The coherent SI unit symbol of a quantity: the unit `re` and `im` of a
+/// value are in (`Ω`, `W`, `var`, `Hz`; `rad` for angles, since that is
+/// the SI unit the numbers are kept in; `W·s`, `var·s` for energies of a
+/// power kind).
 pub fn base_symbol(q: Quantity) -> String {
     if q.kind == Kind::Angle {
         return "rad".into();
+    }
+    if q.dim == Dim::ENERGY {
+        if let Some((sym, _)) = energy_of(q.kind) {
+            return sym.replace('h', "s");
+        }
     }
     shown(q).symbol
 }
@@ -134,12 +243,8 @@ pub fn format_value(z: C64, q: Quantity, display: Option<&Unit>, style: Style) -
         None => {
             let s = shown(q);
             let z = z / s.scale;
-            if s.prefixable {
-                let (p, f) = choose_prefix(z.norm());
-                (z / f, format!("{p}{}", s.symbol))
-            } else {
-                (z, s.symbol)
-            }
+            let (p, f) = s.prefix_for(z.norm());
+            (z / f, s.with_prefix(p))
         }
     };
     let is_angle_unit = unit == "°" || unit == "deg";
@@ -166,18 +271,41 @@ pub fn axis_unit(q: Quantity, display: Option<&Unit>, max_abs: f64) -> (String, 
         return (u.symbol.clone(), u.factor);
     }
     let s = shown(q);
-    if s.prefixable {
-        let (p, f) = choose_prefix(max_abs / s.scale);
-        (format!("{p}{}", s.symbol), f * s.scale)
-    } else {
-        (s.symbol, s.scale)
-    }
+    let (p, f) = s.prefix_for(max_abs / s.scale);
+    (s.with_prefix(p), f * s.scale)
 }
 
 /// The coherent SI symbol and whether SI prefixes go on it.
 pub fn unit_prefixable(q: Quantity) -> (String, bool) {
     let s = shown(q);
-    (s.symbol, s.prefixable)
+    if s.scale != 1.0 && q.kind != Kind::Angle {
+        // Numbers at scale 1 are in the coherent unit (W·s, not W·h).
+        return (base_symbol(q), false);
+    }
+    (s.symbol, s.prefix_power == 1)
+}
+
+impl Shown {
+    /// The prefix for a magnitude (in the unprefixed unit), and its factor
+    /// on the value: `("k", 1e6)` for 9e6 Ω², which is 9 (kΩ)².
+    fn prefix_for(&self, mag: f64) -> (&'static str, f64) {
+        match self.prefix_power {
+            0 => ("", 1.0),
+            1 => choose_prefix(mag),
+            p => {
+                let (pre, f) = choose_prefix(mag.powf(1.0 / p as f64));
+                (pre, f.powi(p))
+            }
+        }
+    }
+
+    fn with_prefix(&self, p: &str) -> String {
+        if p.is_empty() {
+            self.symbol.clone()
+        } else {
+            format!("{p}{}", self.prefixed)
+        }
+    }
 }
 
 /// Pick an engineering prefix so the shown magnitude is in [1, 1000).
@@ -339,5 +467,88 @@ mod tests {
             Style::default(),
         );
         assert_eq!(f.rect, "45°");
+    }
+
+    fn show(re: f64, q: Quantity) -> String {
+        format_value(C64::new(re, 0.0), q, None, Style::default()).rect
+    }
+
+    // Products and powers of units are written as the SI Brochure (9th ed.,
+    // §5.4.3) writes them: a half-high dot for a product, a solidus for a
+    // quotient, a superscript for a power. A prefix belongs to the unit it
+    // stands on, and the power applies to both (§3: 1 cm³ = (10⁻² m)³).
+    #[test]
+    fn products_of_named_units() {
+        let ohm2 = Dim::IMPEDANCE.powi(2).unwrap();
+        assert_eq!(show(9.0, q(ohm2)), "9 Ω²");
+        assert_eq!(show(9e6, q(ohm2)), "9 kΩ²");
+        assert_eq!(show(2.5e-6, q(ohm2)), "2.5 mΩ²");
+        assert_eq!(show(4.0, q(Dim::ADMITTANCE.powi(2).unwrap())), "4 S²");
+        assert_eq!(show(4.0, q(Dim::VOLTAGE.powi(2).unwrap())), "4 V²");
+        assert_eq!(
+            show(1.72e-8, q(Dim::IMPEDANCE.times(Dim::LENGTH).unwrap())),
+            "17.2 nΩ·m"
+        );
+        assert_eq!(show(0.2e-3, q(Dim::IMPEDANCE.per(Dim::LENGTH).unwrap())), "200 µΩ/m");
+        let per_m2 = Dim::LENGTH.powi(-2).unwrap();
+        assert_eq!(show(3e6, q(Dim::CURRENT.times(per_m2).unwrap())), "3 MA/m²");
+        assert_eq!(show(50.0, q(Dim::CURRENT.per(Dim::TIME).unwrap())), "50 A/s");
+        assert_eq!(show(1e3, q(Dim::VOLTAGE.per(Dim::TIME).unwrap())), "1 kV/s");
+        assert_eq!(show(2.0, q(Dim::LENGTH.recip().unwrap())), "2 m⁻¹");
+        assert_eq!(show(1e-6, q(Dim::LENGTH.powi(2).unwrap())), "1 mm²");
+        assert_eq!(show(4.0, q(Dim::POWER.powi(2).unwrap())), "4 W²");
+        // No form of one or two named units fits: base units.
+        assert_eq!(show(2.0, q(Dim::MASS)), "2 kg");
+        // A frequency without a kind says neither Hz nor rad/s.
+        assert_eq!(show(0.5, q(Dim::FREQUENCY)), "0.5 s⁻¹");
+    }
+
+    // Every symbol the search writes reads back as the same dimension at
+    // factor 1, prefixed ones at the prefix's power (SI Brochure §3).
+    #[test]
+    fn compound_symbols_read_back() {
+        let mut tried = 0;
+        for a in -3i8..=3 {
+            for b in -2i8..=2 {
+                for c in -4i8..=4 {
+                    for d in -2i8..=2 {
+                        let dim = Dim([a, b, c, d]);
+                        let Some((sym, p)) = compound(dim) else { continue };
+                        tried += 1;
+                        let u = crate::units::parse_unit_expr(&sym).unwrap_or_else(|e| panic!("{sym}: {e:?}"));
+                        assert_eq!(u.q.dim, dim, "{sym}");
+                        assert_eq!(u.factor, 1.0, "{sym}");
+                        if p > 0 {
+                            let k = crate::units::parse_unit_expr(&format!("k{sym}")).unwrap();
+                            assert!((k.factor / 1e3f64.powi(p) - 1.0).abs() < 1e-12, "k{sym}");
+                        }
+                    }
+                }
+            }
+        }
+        assert!(tried > 100, "{tried}");
+    }
+
+    // Energy of a power of known kind: W·h and var·h, kWh and kvarh with
+    // a prefix (IEC 60050-601; meter practice); 1 h = 3600 s (SI Brochure,
+    // 9th ed., Table 8). The numbers a program reads are in W·s and var·s.
+    #[test]
+    fn energies_in_watt_and_var_hours() {
+        let e = |k| Quantity::new(Dim::ENERGY, k);
+        assert_eq!(show(300.0 * 2.0 * 3600.0, e(Kind::ReactivePower)), "600 var·h");
+        assert_eq!(show(1.2e3 * 3600.0, e(Kind::ReactivePower)), "1.2 kvarh");
+        assert_eq!(show(800e3 * 2.0 * 3600.0, e(Kind::RealPower)), "1.6 MWh");
+        assert_eq!(show(500.0 * 3600.0, e(Kind::RealPower)), "500 W·h");
+        assert_eq!(show(2e3 * 3600.0, e(Kind::ApparentPower)), "2 kVAh");
+        assert_eq!(show(2.16e6, q(Dim::ENERGY)), "2.16 MJ");
+        assert_eq!(base_symbol(e(Kind::ReactivePower)), "var·s");
+        assert_eq!(base_symbol(e(Kind::RealPower)), "W·s");
+        for k in [Kind::RealPower, Kind::ReactivePower, Kind::ApparentPower] {
+            let u = crate::units::parse_unit_expr(&base_symbol(e(k))).unwrap();
+            assert_eq!((u.factor, u.q), (1.0, e(k)));
+        }
+        let (unit, div) = axis_unit(e(Kind::RealPower), None, 5e9);
+        assert_eq!(unit, "MWh");
+        assert!((div - 3.6e9).abs() < 1e-3);
     }
 }

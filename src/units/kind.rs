@@ -60,7 +60,11 @@ impl Quantity {
         let ok = match self.kind {
             Kind::Plain => true,
             Kind::Angle | Kind::PerUnit => self.dim.is_none(),
-            Kind::RealPower | Kind::ReactivePower | Kind::ApparentPower => self.dim == Dim::POWER,
+            // A power's kind stays on the energy it gives over a time
+            // (300 var × 2 h is 600 var·h, not 2.16 MJ of some energy).
+            Kind::RealPower | Kind::ReactivePower | Kind::ApparentPower => {
+                self.dim == Dim::POWER || self.dim == Dim::ENERGY
+            }
             Kind::Hertz | Kind::RadPerSec => self.dim == Dim::FREQUENCY,
         };
         if ok {
@@ -81,6 +85,9 @@ impl Quantity {
             (Kind::Angle, _) => return "an angle".into(),
             (Kind::PerUnit, _) => return "a per-unit value".into(),
             (_, d) if d.is_none() => return "a plain number".into(),
+            (Kind::RealPower, d) if d == Dim::ENERGY => "a real energy",
+            (Kind::ReactivePower, d) if d == Dim::ENERGY => "a reactive energy",
+            (Kind::ApparentPower, d) if d == Dim::ENERGY => "an apparent energy",
             (Kind::RealPower, _) => "a real power",
             (Kind::ReactivePower, _) => "a reactive power",
             (Kind::ApparentPower, _) => "an apparent power",
@@ -116,7 +123,7 @@ pub fn kind_of_sum(a: Kind, b: Kind, dim: Dim) -> Result<Kind, &'static str> {
         }
         (Hertz, RadPerSec) | (RadPerSec, Hertz) => Err("adding a frequency in Hz to an angular frequency in rad/s"),
         (PerUnit, Plain) | (Plain, PerUnit) => Ok(PerUnit),
-        _ if dim == Dim::POWER => Ok(ApparentPower),
+        _ if dim == Dim::POWER || dim == Dim::ENERGY => Ok(ApparentPower),
         (k, Plain) | (Plain, k) => Ok(k),
         _ => Ok(Plain),
     }

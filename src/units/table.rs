@@ -111,11 +111,28 @@ const BASE_UNITS: &[BaseUnit] = &[
         kind: Kind::Plain,
         prefixable: true,
     },
+    // The watt-hour and its reactive and apparent fellows: 1 W·h = 3600 J
+    // (SI Brochure, 9th ed., Table 8 for the hour); the energy keeps the
+    // power's kind, so a kvarh is never added to a kWh unnoticed.
     BaseUnit {
         symbols: &["Wh"],
         dim: Dim::ENERGY,
         factor: 3600.0,
-        kind: Kind::Plain,
+        kind: Kind::RealPower,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["varh"],
+        dim: Dim::ENERGY,
+        factor: 3600.0,
+        kind: Kind::ReactivePower,
+        prefixable: true,
+    },
+    BaseUnit {
+        symbols: &["VAh"],
+        dim: Dim::ENERGY,
+        factor: 3600.0,
+        kind: Kind::ApparentPower,
         prefixable: true,
     },
     BaseUnit {
@@ -335,6 +352,11 @@ pub fn parse_unit_expr(text: &str) -> Result<Unit, UnitError> {
     let mut kinds = Vec::new();
     let mut denominator = false;
     let mut rest = text;
+    // `1/s`, `1/m`: a reciprocal written with a 1 over the unit.
+    if let Some(r) = text.strip_prefix("1/") {
+        denominator = true;
+        rest = r;
+    }
     loop {
         let end = rest.find(['*', '/', '·']).unwrap_or(rest.len());
         let item = &rest[..end];
@@ -361,6 +383,12 @@ pub fn parse_unit_expr(text: &str) -> Result<Unit, UnitError> {
         [(k, 1)] => *k,
         // rad/s is an angular frequency
         [(Kind::Angle, 1), (Kind::Plain, -1)] if dim == Dim::FREQUENCY => Kind::RadPerSec,
+        // W·h, var·h, kVA·h: an energy keeps the power's kind
+        [(k @ (Kind::RealPower | Kind::ReactivePower | Kind::ApparentPower), 1), (Kind::Plain, 1)]
+            if dim == Dim::ENERGY =>
+        {
+            *k
+        }
         _ => Kind::Plain,
     };
     Ok(Unit {
@@ -470,5 +498,40 @@ mod tests {
             Err(UnitError::Unknown { hint, .. }) => assert!(hint.unwrap().contains("ohm")),
             other => panic!("{other:?}"),
         }
+    }
+
+    // 1 W·h = 3600 J and 1 kW·h = 3.6 MJ: the hour is 3600 s (SI
+    // Brochure, 9th ed., Table 8). The reactive and apparent forms follow
+    // the same definition with var and V·A (IEC 60050-601).
+    #[test]
+    fn watt_and_var_hours() {
+        for (sym, factor, kind) in [
+            ("Wh", 3600.0, Kind::RealPower),
+            ("kWh", 3.6e6, Kind::RealPower),
+            ("MWh", 3.6e9, Kind::RealPower),
+            ("W·h", 3600.0, Kind::RealPower),
+            ("kW·h", 3.6e6, Kind::RealPower),
+            ("varh", 3600.0, Kind::ReactivePower),
+            ("kvarh", 3.6e6, Kind::ReactivePower),
+            ("var·h", 3600.0, Kind::ReactivePower),
+            ("kvar*h", 3.6e6, Kind::ReactivePower),
+            ("kVAh", 3.6e6, Kind::ApparentPower),
+            ("J", 1.0, Kind::Plain),
+        ] {
+            let u = parse_unit_expr(sym).unwrap();
+            assert!(close(u.factor, factor), "{sym}");
+            assert_eq!(u.q, Quantity::new(Dim::ENERGY, kind), "{sym}");
+        }
+    }
+
+    // A reciprocal unit written `1/s` (SI Brochure §5.4.3 writes s⁻¹ or 1/s).
+    #[test]
+    fn reciprocal_units() {
+        let u = parse_unit_expr("1/s").unwrap();
+        assert_eq!((u.factor, u.q), (1.0, Quantity::of(Dim::FREQUENCY)));
+        assert!(close(parse_unit_expr("1/ms").unwrap().factor, 1e3));
+        assert_eq!(parse_unit_expr("1/km").unwrap().q.dim, Dim::LENGTH.recip().unwrap());
+        assert!(parse_unit_expr("1/").is_err());
+        assert!(parse_unit_expr("2/s").is_err());
     }
 }
