@@ -45,6 +45,9 @@ ENTRIES = [
      "x = (2 Ω)^0.3\n", None),
     ("function-args", "Wrong number or units of arguments.", "x = sqrt(5 V)\n", None),
     ("angle-ambiguous", "An angle mixed with a plain number (degrees or radians?).", "x = arg(1 + j) + 10\n", None),
+    ("ambiguous-operators", "Operators side by side that a reader could group two ways: more than one value as the "
+     "angle of `∠`, `||` and `--` mixed, a minus before the left side of `||` or `--` or before a power, chained "
+     "powers or comparisons. The hint writes out both bracketings.", "Vp = 230 V\nV = Vp ∠ 120° * 2\n", None),
     ("not-a-record", "`.field` on a single value.", "z = 3\nx = z.re\n", None),
     ("record-as-value", "A record used where one value is needed.", "p = parts(3 + j4)\nx = p * 2\n", None),
     ("bad-tolerance", "A check's tolerance without the unit of the values compared.",

@@ -417,6 +417,7 @@ pub fn real_slots(prog: &Program, set_by_cases: &[u32]) -> Vec<bool> {
         let ab = || real[ins.a as usize] && real[ins.b as usize];
         let r = match ins.op {
             Op::Re | Op::Im | Op::Abs | Op::Arg | Op::Atan2 | Op::Search(_) => true,
+            Op::Lt | Op::Le | Op::Gt | Op::Ge => true,
             Op::Copy | Op::Neg | Op::Conj | Op::Recip | Op::PowI | Op::Exp | Op::Sin | Op::Cos | Op::Tan | Op::Atan => {
                 a()
             }

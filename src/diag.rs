@@ -220,6 +220,7 @@ error_codes! {
     BadExponent => "bad-exponent",
     FunctionArgs => "function-args",
     AngleAmbiguous => "angle-ambiguous",
+    AmbiguousOperators => "ambiguous-operators",
     NotARecord => "not-a-record",
     RecordAsValue => "record-as-value",
     BadTolerance => "bad-tolerance",

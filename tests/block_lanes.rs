@@ -32,7 +32,8 @@ fn every_lane_agrees_with_the_scalar_evaluator() {
         "a = 1 Ω\nb = 2 Ω\nc = 3\n\
          q = a / b\nr = b / a\np = a || b\ns = a -- b\nm = abs(a)\nn = abs(b) * c\n\
          x = a * b\ny = (a + b) / (a - b)\nz = conj(a) * b / c\nu = re(a) / im(b)\n\
-         v = sqrt(c) + exp(c) - ln(c)\nw = a ∠ 30° || b\nt = 1 / (a || b)\n",
+         v = sqrt(c) + exp(c) - ln(c)\nw = a ∠ 30° || b\nt = 1 / (a || b)\n\
+         g1 = a < b\ng2 = b <= a\ng3 = c > 1\ng4 = c >= c\ng5 = (a ≤ b) * (c ≥ 0)\n",
     );
     let prog = &m.program;
     let slot = |n: &str| m.cell(n).unwrap().slot;

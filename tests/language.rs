@@ -49,9 +49,12 @@ fn network_operators_refuse_other_dimensions() {
 #[test]
 fn precedence() {
     assert_close!(eval_expr("", "1 Ω + 2 Ω || 2 Ω"), c(2.0, 0.0), 1e-12);
-    assert_close!(eval_expr("", "-2^2"), c(-4.0, 0.0), 1e-12);
+    assert_close!(eval_expr("", "-(2^2)"), c(-4.0, 0.0), 1e-12);
     assert_close!(eval_expr("", "2 * 3 Ω || 6 Ω"), c(3.0, 0.0), 1e-12);
-    assert_close!(eval_expr("", "2^3^2"), c(512.0, 0.0), 1e-12);
+    assert_close!(eval_expr("", "2^(3^2)"), c(512.0, 0.0), 1e-12);
+    // read two ways, so refused (tests/misreadings/angle.rs has the table)
+    assert_eq!(code_of("x = -2^2"), ErrorCode::AmbiguousOperators);
+    assert_eq!(code_of("x = 2^3^2"), ErrorCode::AmbiguousOperators);
 }
 
 // Polar form: 277∠-30° = 277(cos30° - j sin30°) (Euler's formula).

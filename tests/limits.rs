@@ -149,13 +149,15 @@ fn signs_and_powers() {
     );
     let e = engine(&format!("x = -{}1\n", "+ ".repeat(99)));
     assert_eq!(value(&e, "x").re, -1.0);
-    // powers count too: 1^1^…^1 with 100 `^`
-    let e = engine(&format!("x = {}\n", vec!["1"; 101].join("^")));
+    // powers count too: 1^1*…*1^1 with 100 `^` (a chain `1^1^1` is
+    // refused as ambiguous whatever its length)
+    let e = engine(&format!("x = {}\n", vec!["1^1"; 100].join("*")));
     assert_eq!(value(&e, "x").re, 1.0);
     assert_eq!(
-        parse_err(&format!("x = {}", vec!["1"; 102].join("^"))),
+        parse_err(&format!("x = {}", vec!["1^1"; 101].join("*"))),
         ErrorCode::NestingTooDeep
     );
+    assert_eq!(parse_err("x = 1^1^1"), ErrorCode::AmbiguousOperators);
 }
 
 #[test]

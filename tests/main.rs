@@ -7,6 +7,7 @@ mod block_lanes;
 mod check_cmd;
 mod cli_batch;
 mod cli_run;
+mod comparisons;
 mod confinement;
 mod demo_sheets;
 mod demos;

@@ -1,6 +1,7 @@
 //! Compiling and evaluating sheets. No I/O here.
 
 pub mod block;
+mod compare;
 pub mod edit;
 pub mod eval;
 pub mod model;

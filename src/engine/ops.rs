@@ -73,6 +73,14 @@ pub enum Op {
     Min,
     /// The operand with the larger real part.
     Max,
+    /// 1 if re a < re b, else 0 (NaN if either is NaN).
+    Lt,
+    /// 1 if re a ≤ re b, else 0 (NaN if either is NaN).
+    Le,
+    /// 1 if re a > re b, else 0 (NaN if either is NaN).
+    Gt,
+    /// 1 if re a ≥ re b, else 0 (NaN if either is NaN).
+    Ge,
     /// A library function (index into `funcs::LIBRARY`).
     Call(u16),
     /// An in-sheet search (index into `Program::searches`); writes `dst`
@@ -415,6 +423,24 @@ fn pick(a: C64, b: C64, smaller: bool) -> C64 {
     }
 }
 
+/// A comparison of real parts: 1 or 0, and NaN when either part is NaN
+/// (an unknown value is neither larger nor smaller).
+#[inline]
+pub fn compare(op: Op, a: C64, b: C64) -> C64 {
+    let (x, y) = (a.re, b.re);
+    if x.is_nan() || y.is_nan() {
+        return C64::new(f64::NAN, 0.0);
+    }
+    let t = match op {
+        Op::Lt => x < y,
+        Op::Le => x <= y,
+        Op::Gt => x > y,
+        Op::Ge => x >= y,
+        _ => unreachable!("not a comparison: {op:?}"),
+    };
+    real(if t { 1.0 } else { 0.0 })
+}
+
 /// Apply a unary op.
 #[inline]
 pub fn apply1(op: Op, a: C64, b_bits: u32) -> C64 {
@@ -458,6 +484,7 @@ pub fn apply2(op: Op, a: C64, b: C64) -> C64 {
         Atan2 => real((a.re + 0.0).atan2(b.re + 0.0)),
         Min => pick(a, b, true),
         Max => pick(a, b, false),
+        Lt | Le | Gt | Ge => compare(op, a, b),
         _ => unreachable!("not a binary op: {op:?}"),
     }
 }
@@ -576,5 +603,26 @@ mod tests {
         assert!(near(acos(c(-2.0, -0.0)), c(PI, -1.3169578969248166)));
         assert!(near(atan(c(-0.0, -2.0)), c(FRAC_PI_2, -0.5493061443340549)));
         assert!(near(atan(c(0.0, 2.0)), c(FRAC_PI_2, 0.5493061443340549)));
+    }
+
+    // IEEE 754 §5.11: comparisons of real numbers, -0 equal to +0, and an
+    // unordered (NaN) operand — here a NaN result rather than a 0 that would
+    // read as "false".
+    #[test]
+    fn comparisons_of_real_parts() {
+        let t = c(1.0, 0.0);
+        let f = c(0.0, 0.0);
+        assert_eq!(compare(Op::Lt, c(1.0, 0.0), c(2.0, 0.0)), t);
+        assert_eq!(compare(Op::Lt, c(2.0, 0.0), c(2.0, 0.0)), f);
+        assert_eq!(compare(Op::Le, c(2.0, 0.0), c(2.0, 0.0)), t);
+        assert_eq!(compare(Op::Gt, c(-0.0, 0.0), c(0.0, 0.0)), f);
+        assert_eq!(compare(Op::Ge, c(-0.0, 0.0), c(0.0, 0.0)), t);
+        // imaginary parts are not compared
+        assert_eq!(compare(Op::Gt, c(3.0, -100.0), c(2.0, 100.0)), t);
+        assert_eq!(compare(Op::Lt, c(f64::NEG_INFINITY, 0.0), c(f64::MIN, 0.0)), t);
+        for op in [Op::Lt, Op::Le, Op::Gt, Op::Ge] {
+            assert!(compare(op, c(f64::NAN, 0.0), t).re.is_nan());
+            assert!(apply2(op, t, c(f64::NAN, 1.0)).re.is_nan());
+        }
     }
 }

@@ -29,6 +29,14 @@ pub enum BinOp {
     Series,
     /// `m ∠ θ`
     Angle,
+    /// `a < b`: 1 or 0
+    Lt,
+    /// `a <= b` or `a ≤ b`
+    Le,
+    /// `a > b`
+    Gt,
+    /// `a >= b` or `a ≥ b`
+    Ge,
 }
 
 impl BinOp {
@@ -42,7 +50,16 @@ impl BinOp {
             BinOp::Parallel => "||",
             BinOp::Series => "--",
             BinOp::Angle => "∠",
+            BinOp::Lt => "<",
+            BinOp::Le => "<=",
+            BinOp::Gt => ">",
+            BinOp::Ge => ">=",
         }
+    }
+
+    /// `<`, `<=`, `>` or `>=`.
+    pub fn is_comparison(self) -> bool {
+        matches!(self, BinOp::Lt | BinOp::Le | BinOp::Gt | BinOp::Ge)
     }
 }
 

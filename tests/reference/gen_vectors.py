@@ -95,7 +95,7 @@ CASES = [
     ("45 deg", PI / 4, "deg is an angle in radians"),
     ("1 + 2 * 3 - 4 / 8", mp.mpf("6.5"), "arithmetic precedence"),
     ("2^10", mp.mpf(1024), "power"),
-    ("-2^2", mp.mpf(-4), "power binds tighter than minus"),
+    ("-(2^2)", mp.mpf(-4), "minus of a power (`-2^2` is refused as ambiguous)"),
     ("(1 + j)^3", mp.mpc(1, 1) ** 3, "complex integer power"),
     ("(1 + j)^0.5", mp.sqrt(mp.mpc(1, 1)), "complex fractional power"),
     ("2^(1 + j)", mp.power(2, mp.mpc(1, 1)), "complex exponent"),

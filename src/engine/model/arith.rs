@@ -71,6 +71,9 @@ impl Lowerer<'_> {
                 Ok(Val::Scalar(o, Quantity::new(dim, k)))
             }
             BinOp::Pow => self.power(em, whole, b, x, qa, y, qb),
+            BinOp::Lt | BinOp::Le | BinOp::Gt | BinOp::Ge => {
+                crate::engine::compare::lower(em, whole, op, (a, x, qa), (b, y, qb))
+            }
             BinOp::Parallel | BinOp::Series => {
                 if qa.dim != qb.dim {
                     return Err(Diagnostic::error(

@@ -13,11 +13,18 @@ use crate::syntax::ast::*;
 fn pratt() -> &'static PrattParser<Rule> {
     static P: OnceLock<PrattParser<Rule>> = OnceLock::new();
     P.get_or_init(|| {
+        // Loosest first. Forms a reader could take two ways are refused
+        // while climbing (`ambiguity.rs`), so the associativity given to
+        // comparisons, `∠` and `^` only decides which tree is refused.
         PrattParser::new()
+            .op(Op::infix(Rule::lt, Assoc::Left)
+                | Op::infix(Rule::le, Assoc::Left)
+                | Op::infix(Rule::gt, Assoc::Left)
+                | Op::infix(Rule::ge, Assoc::Left))
             .op(Op::infix(Rule::add, Assoc::Left) | Op::infix(Rule::sub, Assoc::Left))
             .op(Op::infix(Rule::par, Assoc::Left) | Op::infix(Rule::ser, Assoc::Left))
-            .op(Op::infix(Rule::mul, Assoc::Left) | Op::infix(Rule::div, Assoc::Left))
             .op(Op::infix(Rule::angle, Assoc::Left))
+            .op(Op::infix(Rule::mul, Assoc::Left) | Op::infix(Rule::div, Assoc::Left))
             .op(Op::prefix(Rule::neg) | Op::prefix(Rule::pos))
             .op(Op::infix(Rule::pow, Assoc::Right))
     })
@@ -63,6 +70,7 @@ impl Cx<'_> {
                 } else {
                     UnOp::Pos
                 };
+                self.refuse_ambiguous_prefix(u, span, &rhs)?;
                 Ok((
                     Expr {
                         kind: ExprKind::Unary(u, Box::new(rhs)),
@@ -83,9 +91,14 @@ impl Cx<'_> {
                     Rule::par => BinOp::Parallel,
                     Rule::ser => BinOp::Series,
                     Rule::angle => BinOp::Angle,
+                    Rule::lt => BinOp::Lt,
+                    Rule::le => BinOp::Le,
+                    Rule::gt => BinOp::Gt,
+                    Rule::ge => BinOp::Ge,
                     r => unreachable!("infix {r:?}"),
                 };
                 let span = lhs.span.to(rhs.span);
+                self.refuse_ambiguous_infix(b, span, &lhs, &rhs)?;
                 Ok((
                     Expr {
                         kind: ExprKind::Binary(b, Box::new(lhs), Box::new(rhs)),

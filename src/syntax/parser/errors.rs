@@ -19,7 +19,11 @@ fn describe_rule(r: &Rule) -> Option<&'static str> {
         | Rule::pow
         | Rule::par
         | Rule::ser
-        | Rule::angle => "an operator",
+        | Rule::angle
+        | Rule::lt
+        | Rule::le
+        | Rule::gt
+        | Rule::ge => "an operator",
         Rule::unit_expr | Rule::unit_factor | Rule::unit_word | Rule::suffix => "a unit",
         Rule::display_unit => "a display unit `[...]`",
         Rule::EOI => "the end of the line",
@@ -69,7 +73,7 @@ pub(super) fn syntax_error(line: &str, e: pest::error::Error<Rule>, file: FileId
     // Targeted hints for common slips.
     let before = line[..pos.min(line.len())].trim_end();
     if rest.starts_with("==") || (rest.starts_with('=') && before.contains('=')) {
-        d = d.with_hint("a definition has one `=`; to compare values write `check a ~= b +- 1%`");
+        d = d.with_hint("a definition has one `=`; to check that two values agree write `check a ~= b +- 1%`; `<`, `<=`, `>`, `>=` compare and give 1 or 0");
     } else if rest.starts_with("+-") || rest.starts_with('±') {
         d = d.with_hint("`+-` (±) only separates a tolerance in a `check`; to add a negative write `a + (-b)`");
     } else if before.ends_with('=') && rest.is_empty() {

@@ -7,6 +7,7 @@
 //! the finished tree are all limited (see `Limits`), and each limit turns
 //! into a located error.
 
+mod ambiguity;
 mod atoms;
 mod climb;
 mod errors;
@@ -58,7 +59,6 @@ const PARALLEL_LINES: usize = 2000;
 struct Cx<'a> {
     file: FileId,
     offset: usize,
-    #[allow(dead_code)]
     line: &'a str,
 }
 

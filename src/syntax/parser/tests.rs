@@ -92,12 +92,59 @@ fn search_forms() {
 fn precedence_follows_the_language_definition() {
     assert_eq!(shape(&expr_of("R1 + R2 || R3")), "(R1 + (R2 || R3))");
     assert_eq!(shape(&expr_of("a || b * c")), "(a || (b * c))");
-    assert_eq!(shape(&expr_of("-x^2")), "(-(x ^ 2))");
+    assert_eq!(shape(&expr_of("2 * Z1 || Z2")), "((2 * Z1) || Z2)");
     assert_eq!(shape(&expr_of("2^-1")), "(2 ^ (-1))");
-    assert_eq!(shape(&expr_of("a -- b || c")), "((a -- b) || c)");
+    assert_eq!(shape(&expr_of("a -- b -- c")), "((a -- b) -- c)");
     assert_eq!(shape(&expr_of("a - -b")), "(a - (-b))");
-    assert_eq!(shape(&expr_of("V / Z ∠ 30")), "(V / (Z ∠ 30))");
-    assert_eq!(shape(&expr_of("2^3^2")), "(2 ^ (3 ^ 2))");
+    assert_eq!(shape(&expr_of("a / b * c")), "((a / b) * c)");
+    // The magnitude of `∠` is the whole product or quotient before it.
+    assert_eq!(shape(&expr_of("V / Z ∠ 30")), "((V / Z) ∠ 30)");
+    assert_eq!(
+        shape(&expr_of("zt * V^2 / S ∠ atan(XR)")),
+        "(((zt * (V ^ 2)) / S) ∠ atan(XR))"
+    );
+    assert_eq!(shape(&expr_of("3 + 4 ∠ 30°")), "(3 + (4 ∠ 30[°]))");
+    assert_eq!(shape(&expr_of("Z1 || 2 ∠ 30")), "(Z1 || (2 ∠ 30))");
+    assert_eq!(shape(&expr_of("-2 ∠ -x")), "((-2) ∠ (-x))");
+    assert_eq!(shape(&expr_of("-j30 Ω || 50 Ω")), "((-30j[Ω]) || 50[Ω])");
+    assert_eq!(shape(&expr_of("-2 * Z1 || Z2")), "(((-2) * Z1) || Z2)");
+    assert_eq!(shape(&expr_of("Z1 || -Z2")), "(Z1 || (-Z2))");
+    // Comparisons are the loosest.
+    assert_eq!(shape(&expr_of("a + b < c * d")), "((a + b) < (c * d))");
+    assert_eq!(shape(&expr_of("a ≤ b || c")), "(a <= (b || c))");
+    assert_eq!(shape(&expr_of("a >= -b")), "(a >= (-b))");
+    assert_eq!(shape(&expr_of("(a < b) * (b > c)")), "((a < b) * (b > c))");
+}
+
+#[test]
+fn ambiguous_forms_are_refused_with_both_bracketings() {
+    for (src, a, b) in [
+        ("2 ∠ 30° * 3", "2 ∠ (30° * 3)", "(2 ∠ 30°) * 3"),
+        ("2 ∠ t^2", "2 ∠ (t^2)", "(2 ∠ t)^2"),
+        ("V ∠ t / 2", "V ∠ (t / 2)", "(V ∠ t) / 2"),
+        ("2 ∠ 30 ∠ 40", "(2 ∠ 30) ∠ 40", "2 ∠ (30 ∠ 40)"),
+        ("a -- b || c", "(a -- b) || c", "a -- (b || c)"),
+        ("a || b -- c", "(a || b) -- c", "a || (b -- c)"),
+        ("-Z1 || Z2", "(-Z1) || Z2", "-(Z1 || Z2)"),
+        ("-(Z1) -- Z2", "(-(Z1)) -- Z2", "-((Z1) -- Z2)"),
+        ("-2^2", "-(2^2)", "(-2)^2"),
+        ("-x^2", "-(x^2)", "(-x)^2"),
+        ("2^3^2", "2^(3^2)", "(2^3)^2"),
+        ("a < b < c", "(a < b) < c", "a < (b < c)"),
+        ("a >= b <= c", "(a >= b) <= c", "a >= (b <= c)"),
+    ] {
+        let d = err_of(&format!("x = {src}"));
+        assert_eq!(d.code, ErrorCode::AmbiguousOperators, "{src}");
+        let hint = d.hint.clone().unwrap_or_default();
+        assert!(hint.contains(&format!("`{a}`")), "{src}: {hint}");
+        assert!(hint.contains(&format!("`{b}`")), "{src}: {hint}");
+        // The caret covers the ambiguous part.
+        assert_eq!(d.span.unwrap().start, 4, "{src}");
+        // Either bracketing parses.
+        for fixed in [a, b] {
+            assert!(parse_line(&format!("x = {fixed}"), FileId(0), 0, 1).is_ok(), "{fixed}");
+        }
+    }
 }
 
 #[test]
