@@ -578,9 +578,9 @@ fn wrong_units_are_refused() {
     refused("x = q_of(3 H)", "`Z` must be an impedance");
 }
 
-// Lines and RF: each argument refuses the wrong unit, naming what it wants.
+// Lines, RF and two-ports: each argument refuses the wrong unit, naming what it wants.
 #[test]
-fn wrong_units_are_refused_by_line_functions() {
+fn wrong_units_are_refused_by_line_and_two_port_functions() {
     refused("x = refl(50 V, 50 Ω)", "`ZL` must be an impedance");
     refused("x = refl(50 Ω, 1 pu)", "must both be in Ω or both per-unit");
     refused("x = vswr(0.3 V)", "`G` must be a plain number");
@@ -619,6 +619,23 @@ fn wrong_units_are_refused_by_line_functions() {
         "`y` must be a shunt admittance per length",
     );
     refused("x = line_pi(j0.3 Ω/km, j3 µS/km, 10)", "`len` must be a length");
+    refused("x = abcd_series(3 S)", "for an admittance Y pass 1/Y");
+    refused("x = abcd_shunt(3 H)", "impedance (Ω or pu) or admittance (S)");
+    refused("x = abcd_line(50 Ω, j1 / 1 km, 3 V)", "`len` must be a length");
+    refused("x = abcd_line(50 S, j1 / 1 km, 3 km)", "`Zc` must be an impedance");
+    refused("x = abcd_xfmr(10 V)", "`n` must be a plain number");
+    refused("x = cascade(abcd_series(1 Ω), 2 Ω)", "`T2` must be a two-port");
+    refused("x = abcd_send(abcd_series(1 Ω), 1 A, 1 A)", "`Vr` must be a voltage");
+    refused("x = abcd_send(abcd_series(1 Ω), 1 V, 1 V)", "`Ir` must be a current");
+    refused(
+        "x = abcd_send(abcd_series(1 pu), 1 V, 1 A)",
+        "`Vr` must be per-unit too",
+    );
+    refused("x = abcd_zin(abcd_series(1 Ω), 2 A)", "`ZL` must be an impedance");
+    refused(
+        "x = abcd_zin(abcd_series(1 Ω), 2 pu)",
+        "must both be in SI units or both per-unit",
+    );
 }
 
 // A frequency not marked as Hz or rad/s (here 1/√(LC), which is ω, not f)

@@ -31,4 +31,5 @@ mod scale_sheet;
 mod search_sheet;
 mod session_pty;
 mod sweep;
+mod two_ports;
 mod watch;

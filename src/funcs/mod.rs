@@ -22,6 +22,7 @@ pub mod perunit;
 pub mod power;
 pub mod ratios;
 pub mod threephase;
+pub mod twoports;
 
 use std::sync::OnceLock;
 
@@ -107,8 +108,41 @@ pub enum Impl {
 
 pub struct Param {
     pub name: &'static str,
-    /// The unit expected, as shown in the listing: `Ω`, `H`, `any`.
+    /// The unit expected, as shown in the listing: `Ω`, `H`, `any`; or a
+    /// record type (`two-port`), see `RecordParam`.
     pub unit: &'static str,
+}
+
+/// A record type a parameter can take: the argument is a record cell (or
+/// a call returning one) with at least these fields, and the function
+/// receives the fields' values in this order, each as an argument of its
+/// own (so a typing rule, a lowering and a domain check see `fields.len()`
+/// values for it). Other fields of the record are ignored.
+pub struct RecordParam {
+    /// Written as the parameter's unit in the listing.
+    pub unit: &'static str,
+    /// What it is, for messages: "a two-port".
+    pub what: &'static str,
+    pub fields: &'static [&'static str],
+    /// How to make one, for messages.
+    pub hint: &'static str,
+}
+
+/// The unit of a parameter taking a two-port: a record with fields A, B, C, D.
+pub const TWO_PORT: &str = "two-port";
+
+const RECORD_PARAMS: &[RecordParam] = &[RecordParam {
+    unit: TWO_PORT,
+    what: "a two-port",
+    fields: &["A", "B", "C", "D"],
+    hint: "make one with `abcd_series`, `abcd_shunt`, `abcd_line`, `abcd_xfmr`, `line_pi` or `cascade`",
+}];
+
+impl Param {
+    /// The record type this parameter takes, if it takes one.
+    pub fn record(&self) -> Option<&'static RecordParam> {
+        RECORD_PARAMS.iter().find(|r| r.unit == self.unit)
+    }
 }
 
 pub struct Builtin {
@@ -130,6 +164,28 @@ pub struct Builtin {
 }
 
 impl Builtin {
+    /// The parameter the `k`th written argument fills (the last one
+    /// repeats for a variadic function).
+    pub fn param_at(&self, k: usize) -> &Param {
+        &self.params[k.min(self.params.len().saturating_sub(1))]
+    }
+    /// How many values the `k`th written argument passes: 1, or the
+    /// number of fields of a record parameter.
+    pub fn arg_width(&self, k: usize) -> usize {
+        self.param_at(k).record().map_or(1, |r| r.fields.len())
+    }
+    /// The written argument that passed value `i` (of the values a typing
+    /// rule or domain check sees), for a call with `n` written arguments.
+    pub fn written_arg(&self, n: usize, i: usize) -> usize {
+        let mut at = 0;
+        for k in 0..n {
+            at += self.arg_width(k);
+            if i < at {
+                return k;
+            }
+        }
+        n.saturating_sub(1)
+    }
     /// The same function with a domain check.
     pub fn with_domain(self, domain: DomainFn) -> Builtin {
         Builtin {
@@ -158,6 +214,7 @@ fn families() -> Vec<(&'static str, Vec<Builtin>)> {
         ("Per-unit", perunit::funcs()),
         ("Matching networks", matching::funcs()),
         ("Lines and RF", lines::funcs()),
+        ("Two-ports (ABCD parameters)", twoports::funcs()),
         ("Ratios", ratios::funcs()),
     ]
 }

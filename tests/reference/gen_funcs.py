@@ -47,6 +47,12 @@ Sources:
   C = sinh(γℓ)/Zc (Grainger & Stevenson, Power System Analysis, ch. 6 —
   from memory). The closed forms are evaluated here as written, not in the
   rearranged forms ohmsheet uses.
+- Two-ports: the transmission (ABCD) matrices of a series impedance
+  [[1, Z], [0, 1]], a shunt admittance [[1, 0], [Y, 1]], a line
+  [[cosh γℓ, Zc·sinh γℓ], [sinh γℓ/Zc, cosh γℓ]] and an ideal transformer
+  [[n, 0], [0, 1/n*]], multiplied as matrices in cascade; V1 = A·V2 + B·I2,
+  I1 = C·V2 + D·I2, Zin = (A·ZL + B)/(C·ZL + D) (Pozar, Microwave
+  Engineering, §4.4 and table 4.1 — from memory).
 """
 import json
 
@@ -219,6 +225,33 @@ NOM = line_nominal(ZPM, YPM, mp.mpf(400e3))
 EXA = line_exact(ZPM, YPM, mp.mpf(400e3))
 LINE = "(0.03 + j0.35) Ω/km, j3.3 µS/km, 400 km"
 
+# ---- two-ports, as 2×2 mpmath matrices ----
+
+
+def m_series(z):
+    return mp.matrix([[1, z], [0, 1]])
+
+
+def m_shunt(y):
+    return mp.matrix([[1, 0], [y, 1]])
+
+
+def m_line(zc, gl):
+    return mp.matrix([[mp.cosh(gl), zc * mp.sinh(gl)], [mp.sinh(gl) / zc, mp.cosh(gl)]])
+
+
+def m_xfmr(n):
+    return mp.matrix([[n, 0], [0, 1 / mp.conj(n)]])
+
+
+TP_LINE = m_line(mp.mpc(60, -4), mp.mpc("0.002", "0.35") * 4)  # Zc 60 − j4 Ω, γ (0.002 + j0.35)/m, 4 m
+TP = m_series(Za) * m_shunt(1 / Zb) * TP_LINE * m_xfmr(mp.mpf("2.5")) * m_shunt(mp.mpc(0, "0.01"))
+TP_F = "cascade(abcd_series(Za), abcd_shunt(Zb), abcd_line((60 - j4) Ω, (0.002 + j0.35) / 1 metre, 4 metre), abcd_xfmr(2.5), abcd_shunt(j10 mS))"
+TP2 = m_series(Za) * m_shunt(1 / Zb)
+TP2_F = "cascade(abcd_series(Za), abcd_shunt(Zb))"
+SEND = TP2 * mp.matrix([Vs, I1])
+XF = m_xfmr(polar(2, 30))
+
 # (ohmsheet formula, mpmath value, source)
 CASES = [
     ("z_ind(L1, f)", J * w * L1, "IEC 60050-131: Z = jωL"),
@@ -336,6 +369,23 @@ CASES = [
     (f"line_pi_exact({LINE}).B", EXA[3], "long line: B = Zc·sinh γℓ"),
     (f"line_pi_exact({LINE}).C", EXA[4], "long line: C = sinh(γℓ)/Zc"),
     (f"line_pi_exact({LINE}).D", EXA[5], "long line: D = cosh γℓ"),
+    ("abcd_series(Za).B", Za, "series element: B = Z"),
+    ("abcd_series(j0.1 pu).C", 0, "series element: C = 0"),
+    ("abcd_shunt(Zb).C", 1 / Zb, "shunt element: C = 1/Z"),
+    ("abcd_shunt(j10 mS).C", mp.mpc(0, "0.01"), "shunt element given as an admittance"),
+    ("abcd_line((60 - j4) Ω, (0.002 + j0.35) / 1 metre, 4 metre).A", TP_LINE[0, 0], "line: A = cosh γℓ"),
+    ("abcd_line((60 - j4) Ω, (0.002 + j0.35) / 1 metre, 4 metre).B", TP_LINE[0, 1], "line: B = Zc·sinh γℓ"),
+    ("abcd_line((60 - j4) Ω, (0.002 + j0.35) / 1 metre, 4 metre).C", TP_LINE[1, 0], "line: C = sinh γℓ/Zc"),
+    ("abcd_xfmr(2 ∠ 30°).A", XF[0, 0], "ideal transformer: A = n"),
+    ("abcd_xfmr(2 ∠ 30°).D", XF[1, 1], "ideal transformer: D = 1/n*"),
+    (TP_F + ".A", TP[0, 0], "cascade: matrix product"),
+    (TP_F + ".B", TP[0, 1], "cascade: matrix product"),
+    (TP_F + ".C", TP[1, 0], "cascade: matrix product"),
+    (TP_F + ".D", TP[1, 1], "cascade: matrix product"),
+    ("abcd_send(" + TP2_F + ", Vs, I1).V", SEND[0], "V1 = A·V2 + B·I2"),
+    ("abcd_send(" + TP2_F + ", Vs, I1).I", SEND[1], "I1 = C·V2 + D·I2"),
+    ("abcd_zin(" + TP_F + ", Zc)", (TP[0, 0] * Zc + TP[0, 1]) / (TP[1, 0] * Zc + TP[1, 1]), "Zin = (A·ZL + B)/(C·ZL + D)"),
+    ("abcd_zin(" + TP2_F + ", 1 Ω / 0)", TP2[0, 0] / TP2[1, 0], "open load: Zin = A/C"),
     ("vdrop(240 V, 228 V ∠ -3°)", (mp.mpf(240) - 228) / 240, "drop as a fraction of sending voltage"),
     ("vreg(250 V, 240 V)", (mp.mpf(250) - 240) / 240, "regulation as a fraction of full-load voltage"),
 ]

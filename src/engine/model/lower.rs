@@ -313,13 +313,26 @@ impl Lowerer<'_> {
         }
         let mut ops = Vec::with_capacity(args.len());
         let mut qs = Vec::with_capacity(args.len());
-        for a in args {
-            let (o, q) = self.scalar(em, a)?;
-            ops.push(o);
-            qs.push(q);
+        for (k, a) in args.iter().enumerate() {
+            match f.param_at(k).record() {
+                None => {
+                    let (o, q) = self.scalar(em, a)?;
+                    ops.push(o);
+                    qs.push(q);
+                }
+                Some(r) => {
+                    for (o, q) in self.record_arg(em, a, f, k, r)? {
+                        ops.push(o);
+                        qs.push(q);
+                    }
+                }
+            }
         }
         let shape = (f.ty)(&qs, &self.ctx).map_err(|ae| {
-            let span = ae.arg.and_then(|i| args.get(i)).map_or(whole.span, |a| a.span);
+            let span = ae
+                .arg
+                .and_then(|i| args.get(f.written_arg(args.len(), i)))
+                .map_or(whole.span, |a| a.span);
             Diagnostic::error(ErrorCode::FunctionArgs, span, format!("{}: {}", f.name, ae.message))
                 .with_label(ae.arg.map_or_else(String::new, |i| qs[i].describe()))
                 .with_hint(format!("{}: {}", signature(f), f.summary))
@@ -332,5 +345,45 @@ impl Lowerer<'_> {
             Shape::Scalar(q) => Val::Scalar(outs[0], q),
             Shape::Record(fields) => Val::Record(fields.into_iter().zip(outs).map(|((n, q), o)| (n, o, q)).collect()),
         })
+    }
+
+    /// A record argument for a record parameter: its fields' values in the
+    /// parameter's order.
+    fn record_arg(
+        &self,
+        em: &mut Emitter,
+        a: &Expr,
+        f: &funcs::Builtin,
+        k: usize,
+        r: &funcs::RecordParam,
+    ) -> R<Vec<(Operand, Quantity)>> {
+        let param = f.param_at(k).name;
+        let wanted = format!(
+            "`{param}` must be {} (a record with fields {})",
+            r.what,
+            r.fields.join(", ")
+        );
+        let refuse = |message: String, label: String| {
+            Diagnostic::error(ErrorCode::FunctionArgs, a.span, format!("{}: {message}", f.name))
+                .with_label(label)
+                .with_hint(format!("{}; {}: {}", r.hint, signature(f), f.summary))
+        };
+        match self.expr(em, a)? {
+            Val::Scalar(_, q) => Err(refuse(format!("{wanted}, but this is {}", q.describe()), q.describe())),
+            Val::Record(have) => {
+                let names: Vec<&str> = have.iter().map(|h| h.0).collect();
+                r.fields
+                    .iter()
+                    .map(|n| {
+                        have.iter().find(|h| h.0 == *n).map(|h| (h.1, h.2)).ok_or_else(|| {
+                            refuse(
+                                format!("{wanted}, but this record has no field `{n}`"),
+                                format!("fields: {}", names.join(", ")),
+                            )
+                        })
+                    })
+                    .collect()
+            }
+        }
     }
 }

@@ -43,8 +43,12 @@ impl Substituter<'_> {
                 }
             }
             ExprKind::Name(id) => match m.id(&id.name) {
-                Some(cid) => self.cell_value(cid, 0, pos),
-                None => id.name.clone(),
+                // A record passed whole (a two-port to `cascade`) keeps its
+                // name: it has no single value to put in its place.
+                Some(cid) if !matches!(m.cells[cid as usize].shape, Some(Shape::Record(_))) => {
+                    self.cell_value(cid, 0, pos)
+                }
+                _ => id.name.clone(),
             },
             ExprKind::Field(base, field) => {
                 if let ExprKind::Name(id) = &base.kind {
