@@ -1,0 +1,450 @@
+//! Running one sheet over a table of cases.
+//!
+//! A `Plan` ties the columns of a cases table to the sheet's inputs and
+//! chooses the shown values. Each case's values are read with the sheet
+//! language's own rules for numbers and units (a plain number takes the
+//! unit in its column header), checked against the input's dimension, and
+//! evaluated 64 cases at a time by the block evaluator. `run_stream` reads
+//! the table in chunks, evaluates chunks in parallel and writes them back in
+//! input order, with a fixed number of chunks in flight, so memory stays
+//! the same however long the table is.
+//!
+//! A bad row (a value that does not read, a wrong unit, a NaN result) is
+//! reported with its row, column and reason, and the other rows go on.
+
+mod cases;
+mod rows;
+mod stream;
+mod values;
+
+pub use cases::{Cases, Row, Rows};
+pub use rows::{csv_line, RowError, Worker};
+#[cfg(unix)]
+pub use stream::run_stream_at;
+pub use stream::{chunks_in_flight, run_stream, StreamError, StreamOptions, Summary};
+pub use values::ValueReader;
+
+use std::sync::Arc;
+
+use crate::diag::{did_you_mean, Diagnostic, ErrorCode};
+use crate::engine::ops::Op;
+use crate::engine::program::Program;
+use crate::engine::{eval, CellId, Model, Role};
+use crate::funcs::Shape;
+use crate::units::format::base_symbol;
+use crate::units::{parse_unit_expr, Kind, Quantity, Unit, UnitError};
+
+/// How a complex value is written: two columns either way.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ComplexForm {
+    /// Real and imaginary parts.
+    Rect,
+    /// Magnitude and angle in degrees.
+    Polar,
+}
+
+/// A column of the cases table: the input it sets.
+#[derive(Clone, Debug)]
+pub struct CaseColumn {
+    /// The header as written.
+    pub header: String,
+    pub name: String,
+    pub cell: CellId,
+    pub slot: u32,
+    /// The input's dimension and kind.
+    pub want: Quantity,
+    /// The unit in the header (`Vll [kV]`), for values without one.
+    pub unit: Option<Unit>,
+    /// The factor a plain number in this column is multiplied by when
+    /// such a number can set the input (its header's unit, or none where
+    /// the input is a plain number); `None` when a plain number is an error.
+    pub plain_factor: Option<f64>,
+}
+
+/// One shown value: a scalar cell or one field of a record cell.
+#[derive(Clone, Debug)]
+pub struct Shown {
+    /// `I`, or `y.a` for a record field.
+    pub label: String,
+    pub cell: CellId,
+    pub slot: u32,
+    /// Real by construction (its imaginary part is zero for every case):
+    /// one column instead of two.
+    pub real: bool,
+    /// Written values are divided by this (display unit, degrees).
+    pub scale: f64,
+    /// The unit written in the header; empty for plain numbers.
+    pub unit: String,
+    /// The value does not depend on any column of the cases: its text,
+    /// written once and copied into every row.
+    pub fixed: Option<Vec<u8>>,
+}
+
+/// Columns in, columns out, and the compiled sheet.
+#[derive(Clone, Debug)]
+pub struct Plan {
+    pub model: Arc<Model>,
+    pub columns: Vec<CaseColumn>,
+    pub shown: Vec<Shown>,
+    pub form: ComplexForm,
+}
+
+const DEG: f64 = std::f64::consts::PI / 180.0;
+
+fn plan_error(message: impl Into<String>) -> Diagnostic {
+    Diagnostic::unplaced(ErrorCode::BadCases, message)
+}
+
+/// `Vll [kV]` → (`Vll`, `Some("kV")`).
+fn split_header(h: &str) -> Result<(&str, Option<&str>), Diagnostic> {
+    let h = h.trim_start_matches('\u{FEFF}').trim();
+    match h.find('[') {
+        None => Ok((h, None)),
+        Some(i) => {
+            let Some(inner) = h[i + 1..].trim_end().strip_suffix(']') else {
+                return Err(plan_error(format!("column header `{h}` has an unclosed `[`"))
+                    .with_hint("write the unit in brackets after the name, e.g. `Vll [kV]`"));
+            };
+            Ok((h[..i].trim(), Some(inner.trim())))
+        }
+    }
+}
+
+fn unit_error_text(text: &str, e: UnitError) -> String {
+    match e {
+        UnitError::AmbiguousMetre => "`m` on its own is ambiguous: write `metre`, `km` or `mm`".into(),
+        UnitError::Exponent(w) => format!("bad power in unit `{w}`"),
+        UnitError::Range(w) => format!("unit `{w}` is beyond the range of a double"),
+        UnitError::Unknown { word, suggestion, hint } => {
+            let mut s = format!("unknown unit `{word}` in `{text}`");
+            if let Some(x) = suggestion {
+                s.push_str(&format!(" (did you mean `{x}`?)"));
+            }
+            if let Some(h) = hint {
+                s.push_str(&format!("; {h}"));
+            }
+            s
+        }
+    }
+}
+
+/// Why a value of quantity `got` cannot set an input of quantity `want`.
+fn quantity_mismatch(name: &str, want: Quantity, got: Quantity) -> Option<String> {
+    if want.dim != got.dim {
+        if got.is_plain_number() {
+            let u = base_symbol(want);
+            return Some(format!(
+                "a plain number, but `{name}` is {}: give the unit in the value (`… {u}`) or in the column header (`{name} [{u}]`)",
+                want.describe()
+            ));
+        }
+        return Some(format!("{}, but `{name}` is {}", got.describe(), want.describe()));
+    }
+    let angle = |q: Quantity| q.kind == Kind::Angle;
+    if angle(want) != angle(got) {
+        return Some(if angle(want) {
+            format!("a plain number, but `{name}` is an angle: write `30°` (or `0.5 rad`), or put the unit in the column header (`{name} [°]`)")
+        } else {
+            format!("an angle, but `{name}` is {}", want.describe())
+        });
+    }
+    let freq = |q: Quantity| match q.kind {
+        Kind::Hertz => 1,
+        Kind::RadPerSec => 2,
+        _ => 0,
+    };
+    if freq(want) * freq(got) == 2 {
+        return Some(format!(
+            "{}, but `{name}` is {}: convert with ω = 2πf",
+            got.describe(),
+            want.describe()
+        ));
+    }
+    None
+}
+
+impl Plan {
+    /// Match the cases table's `headers` to the sheet's inputs and choose
+    /// the shown values (`show`, or every computed cell).
+    pub fn new(
+        model: Arc<Model>,
+        headers: &[String],
+        show: Option<&[String]>,
+        form: ComplexForm,
+    ) -> Result<Plan, Diagnostic> {
+        let m = &*model;
+        let inputs: Vec<&str> = m.inputs().map(|(_, c)| c.name.as_str()).collect();
+        let list = || {
+            if inputs.is_empty() {
+                "the sheet has no inputs (every cell uses another cell)".to_string()
+            } else {
+                format!("the sheet's inputs are: {}", inputs.join(", "))
+            }
+        };
+        let mut columns: Vec<CaseColumn> = Vec::new();
+        for h in headers {
+            let (name, unit_text) = split_header(h)?;
+            if name.is_empty() {
+                return Err(
+                    plan_error(format!("a column of the cases table has no name (header `{h}`)")).with_hint(list()),
+                );
+            }
+            let Some(id) = m.id(name) else {
+                let mut d = plan_error(format!("column `{name}` names no input of the sheet"));
+                if let Some(s) = did_you_mean(name, inputs.iter().copied()) {
+                    d = d.with_hint(format!("did you mean `{s}`? {}", list()));
+                } else {
+                    d = d.with_hint(list());
+                }
+                return Err(d);
+            };
+            let c = &m.cells[id as usize];
+            if c.role != Role::Def || !c.input || c.error.is_some() {
+                return Err(plan_error(format!(
+                    "column `{name}` names a computed cell (`{name} = {}`); a case can only set inputs",
+                    c.formula
+                ))
+                .with_hint(list()));
+            }
+            let Some(want) = c.quantity() else {
+                return Err(plan_error(format!(
+                    "column `{name}` names a cell with several fields; a case sets single values"
+                ))
+                .with_hint(list()));
+            };
+            if !c.code.is_empty() {
+                return Err(plan_error(format!(
+                    "input `{name}` is computed at run time and cannot be set per case"
+                )));
+            }
+            if columns.iter().any(|k| k.name == name) {
+                return Err(plan_error(format!("the cases table has two columns for `{name}`")));
+            }
+            let unit = match unit_text {
+                None => None,
+                Some(t) => {
+                    let u = parse_unit_expr(t).map_err(|e| {
+                        plan_error(format!("column `{h}`: {}", unit_error_text(t, e)))
+                            .with_hint(format!("`{name}` is {}", want.describe()))
+                    })?;
+                    if let Some(why) = quantity_mismatch(name, want, u.q) {
+                        return Err(plan_error(format!("column `{h}`: the unit `{t}` is {why}")));
+                    }
+                    Some(u)
+                }
+            };
+            let plain_q = unit.as_ref().map_or(Quantity::PLAIN, |u| u.q);
+            let plain_factor = match quantity_mismatch(name, want, plain_q) {
+                None => Some(unit.as_ref().map_or(1.0, |u| u.factor)),
+                Some(_) => None,
+            };
+            columns.push(CaseColumn {
+                header: h.clone(),
+                name: name.to_string(),
+                cell: id,
+                slot: c.slot,
+                want,
+                unit,
+                plain_factor,
+            });
+        }
+
+        let set_slots: Vec<u32> = columns.iter().map(|c| c.slot).collect();
+        let real = real_slots(&m.program, &set_slots);
+        let mut shown = Vec::new();
+        let mut add = |id: CellId, field: Option<usize>| {
+            let c = &m.cells[id as usize];
+            let (label, q, slot, display) = match (&c.shape, field) {
+                (Some(Shape::Scalar(q)), _) => (c.name.clone(), *q, c.slot, c.display.as_ref()),
+                (Some(Shape::Record(f)), Some(k)) => {
+                    (format!("{}.{}", c.name, f[k].0), f[k].1, c.slot + k as u32, None)
+                }
+                _ => return,
+            };
+            let (scale, unit) = match display {
+                Some(u) => (u.factor, u.symbol.clone()),
+                None if q.kind == Kind::Angle => (DEG, "°".to_string()),
+                None => (1.0, base_symbol(q)),
+            };
+            shown.push(Shown {
+                label,
+                cell: id,
+                slot,
+                real: real[slot as usize],
+                scale,
+                unit,
+                fixed: None,
+            });
+        };
+        let fields = |id: CellId| match &m.cells[id as usize].shape {
+            Some(Shape::Record(f)) => (0..f.len()).map(Some).collect(),
+            _ => vec![None],
+        };
+        match show {
+            Some(names) => {
+                for n in names {
+                    let n = n.trim();
+                    let (base, field) = match m.id(n) {
+                        Some(_) => (n, None),
+                        None => match n.split_once('.') {
+                            Some((b, f)) => (b, Some(f)),
+                            None => (n, None),
+                        },
+                    };
+                    let id = match m.id(base) {
+                        Some(id) if m.cells[id as usize].role == Role::Def => id,
+                        _ => {
+                            let names = m.defs().map(|(_, c)| c.name.as_str());
+                            let mut d = plan_error(format!("--show: the sheet has no cell `{n}`"));
+                            if let Some(s) = did_you_mean(n, names) {
+                                d = d.with_hint(format!("did you mean `{s}`?"));
+                            }
+                            return Err(d);
+                        }
+                    };
+                    match (field, &m.cells[id as usize].shape) {
+                        (None, _) => fields(id).into_iter().for_each(|f| add(id, f)),
+                        (Some(f), Some(Shape::Record(fs))) => match fs.iter().position(|x| x.0 == f) {
+                            Some(k) => add(id, Some(k)),
+                            None => {
+                                let all: Vec<&str> = fs.iter().map(|x| x.0).collect();
+                                return Err(plan_error(format!("--show: `{base}` has no field `{f}`"))
+                                    .with_hint(format!("its fields are: {}", all.join(", "))));
+                            }
+                        },
+                        (Some(f), _) => {
+                            return Err(plan_error(format!(
+                                "--show: `{base}` is a single value with no field `{f}`"
+                            )))
+                        }
+                    }
+                }
+            }
+            None => {
+                for (id, c) in m.defs() {
+                    if c.error.is_none() && !c.input {
+                        fields(id).into_iter().for_each(|f| add(id, f));
+                    }
+                }
+            }
+        }
+        let mut plan = Plan {
+            model,
+            columns,
+            shown,
+            form,
+        };
+        plan.fix_constants();
+        Ok(plan)
+    }
+
+    /// Format once the shown values that no column of the cases reaches.
+    fn fix_constants(&mut self) {
+        let m = &*self.model;
+        let mut varies = vec![false; m.cells.len()];
+        for c in &self.columns {
+            varies[c.cell as usize] = true;
+        }
+        for &id in &m.order {
+            if m.cells[id as usize].deps.iter().any(|&d| varies[d as usize]) {
+                varies[id as usize] = true;
+            }
+        }
+        let prog = &m.program;
+        let mut slots = prog.init.clone();
+        eval::run(&prog.code, prog, &mut slots);
+        let mut num = zmij::Buffer::new();
+        let mut fixed = Vec::new();
+        for s in &self.shown {
+            let z = slots[s.slot as usize];
+            let nan = z.re.is_nan() || z.im.is_nan();
+            fixed.push((!varies[s.cell as usize] && !nan).then(|| {
+                let mut text = Vec::new();
+                self.write_value(s, z, &mut text, &mut num);
+                text
+            }));
+        }
+        for (s, f) in self.shown.iter_mut().zip(fixed) {
+            s.fixed = f;
+        }
+    }
+
+    /// The header row of the results: the case's columns, then the shown
+    /// values with their units.
+    pub fn out_header(&self) -> Vec<String> {
+        let mut h: Vec<String> = self.columns.iter().map(|c| c.header.clone()).collect();
+        let with = |name: String, unit: &str| {
+            if unit.is_empty() {
+                name
+            } else {
+                format!("{name} [{unit}]")
+            }
+        };
+        for s in &self.shown {
+            if s.real {
+                h.push(with(s.label.clone(), &s.unit));
+                continue;
+            }
+            match self.form {
+                ComplexForm::Rect => {
+                    h.push(with(format!("{}.re", s.label), &s.unit));
+                    h.push(with(format!("{}.im", s.label), &s.unit));
+                }
+                ComplexForm::Polar => {
+                    h.push(with(format!("{}.mag", s.label), &s.unit));
+                    h.push(with(format!("{}.ang", s.label), "°"));
+                }
+            }
+        }
+        h
+    }
+
+    fn n_out_fields(&self) -> usize {
+        self.shown.iter().map(|s| if s.real { 1 } else { 2 }).sum()
+    }
+}
+
+/// Which slots hold a real value whatever the cases: constants with no
+/// imaginary part, inputs the cases do not set, and results of operations
+/// that keep reals real (any imaginary part they could get is NaN, which
+/// fails the row anyway).
+pub fn real_slots(prog: &Program, set_by_cases: &[u32]) -> Vec<bool> {
+    let mut real: Vec<bool> = prog.init.iter().map(|z| z.im == 0.0).collect();
+    for &s in set_by_cases {
+        real[s as usize] = false;
+    }
+    for ins in &prog.code {
+        let a = || real[ins.a as usize];
+        let ab = || real[ins.a as usize] && real[ins.b as usize];
+        let r = match ins.op {
+            Op::Re | Op::Im | Op::Abs | Op::Arg | Op::Atan2 | Op::Search(_) => true,
+            Op::Lt | Op::Le | Op::Gt | Op::Ge => true,
+            Op::Copy | Op::Neg | Op::Conj | Op::Recip | Op::PowI | Op::Exp | Op::Sin | Op::Cos | Op::Tan | Op::Atan => {
+                a()
+            }
+            Op::Add | Op::Sub | Op::Mul | Op::Div | Op::Par | Op::Min | Op::Max => ab(),
+            Op::Sqrt | Op::Ln | Op::Log10 | Op::Asin | Op::Acos | Op::Pow | Op::Polar => false,
+            Op::Call(_) => {
+                let width = prog.call_args[ins.a as usize];
+                for k in 0..width {
+                    real[(ins.dst + k) as usize] = false;
+                }
+                continue;
+            }
+        };
+        real[ins.dst as usize] = r;
+    }
+    real
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn headers_split_name_and_unit() {
+        assert_eq!(split_header("Vll [kV]").unwrap(), ("Vll", Some("kV")));
+        assert_eq!(split_header("\u{FEFF}R").unwrap(), ("R", None));
+        assert!(split_header("Vll [kV").is_err());
+    }
+}
