@@ -255,6 +255,14 @@ x9 = a - a * k
 x10 = k^-n
 x11 = (b + c)^2 / (1 Ω)
 x12 = sqrt(abs(a) * abs(a)) - -a
+x13 = a * k ∠ th
+x14 = a / n ∠ -th
+x15 = -2 * b || c
+x16 = b || -c
+x17 = (a < a * k) * n
+x18 = 2 * b -- c
+x19 = abs(a) >= 1 V
+x20 = -(k^n) + (-k)^n
 ";
     let sheet = Sheet::from_text("t.ohm", src);
     let m = compile(&sheet);
@@ -273,6 +281,13 @@ x12 = sqrt(abs(a) * abs(a)) - -a
     assert_eq!(x3.substituted, "((3 - j4) Ω)^2");
     let x5 = r.steps.iter().find(|s| s.name == "x5").unwrap();
     assert_eq!(x5.substituted, "(-5 V) ∠ (-30°)");
+    // The magnitude of `∠` is the whole product: no bracket needed, and
+    // none added.
+    let x13 = r.steps.iter().find(|s| s.name == "x13").unwrap();
+    assert_eq!(x13.substituted, "(-5 V) × 0.25 ∠ (-30°)");
+    // A minus on a number literal stays part of the number before `||`.
+    let x15 = r.steps.iter().find(|s| s.name == "x15").unwrap();
+    assert_eq!(x15.substituted, "-2 × (3 - j4) Ω || j2 Ω");
 }
 
 #[test]
