@@ -57,22 +57,29 @@ pub(super) fn syntax_error(line: &str, e: pest::error::Error<Rule>, file: FileId
     let rest = &line[pos.min(line.len())..];
     let found: String = rest.chars().take_while(|c| !c.is_whitespace()).take(12).collect();
     let end = pos + rest.chars().next().map_or(0, char::len_utf8);
-    let what = if found.is_empty() {
-        "the end of the line".to_string()
+    let message = if found.is_empty() {
+        "the line ends too soon".to_string()
     } else {
-        format!("`{found}`")
+        format!("unexpected `{found}`")
     };
-    let mut d = Diagnostic::error(
-        ErrorCode::Syntax,
-        Span::new(file, offset + pos, offset + end),
-        format!("unexpected {what}"),
-    );
+    let mut d = Diagnostic::error(ErrorCode::Syntax, Span::new(file, offset + pos, offset + end), message);
     if !expected.is_empty() {
         d = d.with_label(format!("expected {}", join_or(&expected)));
     }
     // Targeted hints for common slips.
     let before = line[..pos.min(line.len())].trim_end();
-    if rest.starts_with("==") || (rest.starts_with('=') && before.contains('=')) {
+    if rest.starts_with('*') && before.ends_with('*') {
+        d = d.with_hint(power_hint(before, rest));
+    } else if rest.starts_with("=>") {
+        d = d.with_hint("greater than or equal is written `>=` (or `≥`)");
+    } else if rest.starts_with("=<") {
+        d = d.with_hint("less than or equal is written `<=` (or `≤`)");
+    } else if rest.starts_with('>') && before.ends_with('<') || rest.starts_with("!=") {
+        d = d.with_hint(
+            "there is no not-equal operator; to test that two values differ write `abs(a - b) > tol`, \
+             or check that they agree with `check a ~= b +- 1%`",
+        );
+    } else if rest.starts_with("==") || (rest.starts_with('=') && before.contains('=')) {
         d = d.with_hint("a definition has one `=`; to check that two values agree write `check a ~= b +- 1%`; `<`, `<=`, `>`, `>=` compare and give 1 or 0");
     } else if rest.starts_with("+-") || rest.starts_with('±') {
         d = d.with_hint("`+-` (±) only separates a tolerance in a `check`; to add a negative write `a + (-b)`");
@@ -86,6 +93,24 @@ pub(super) fn syntax_error(line: &str, e: pest::error::Error<Rule>, file: FileId
         d = d.with_hint("`--` is the series operator; to subtract a negative write `a - -b` with a space");
     }
     d
+}
+
+/// The hint for `a ** b`: written with the user's operands where they are
+/// plain words or numbers.
+fn power_hint(before: &str, rest: &str) -> String {
+    let plain = |t: &str| !t.is_empty() && t.chars().all(|c| c.is_alphanumeric() || c == '.' || c == '_');
+    let left = before.trim_end_matches('*').trim_end();
+    let left = left.rsplit(char::is_whitespace).next().unwrap_or("");
+    let right = rest[1..].trim_start();
+    let right: String = right
+        .chars()
+        .take_while(|c| c.is_alphanumeric() || *c == '.' || *c == '_')
+        .collect();
+    if plain(left) && plain(&right) {
+        format!("a power is written with `^`: `{left}^{right}`")
+    } else {
+        "a power is written with `^`, as in `2^3`".to_string()
+    }
 }
 
 fn join_or(items: &[&str]) -> String {

@@ -281,3 +281,21 @@ fn long_chains_do_not_overflow() {
     let signs = format!("x = {}1", "- ".repeat(3000));
     assert!(parse_line(&signs, FileId(0), 0, 1).is_err());
 }
+
+#[test]
+fn common_slips_get_their_hint() {
+    let hint = |src: &str| err_of(src).hint.unwrap_or_default();
+    assert_eq!(hint("x = 2 ** 3"), "a power is written with `^`: `2^3`");
+    assert_eq!(hint("x = Vll**2"), "a power is written with `^`: `Vll^2`");
+    assert!(hint("x = (a + b) ** 2").contains("`^`"));
+    assert!(hint("x = a => b").contains("`>=`"));
+    assert!(hint("x = a =< b").contains("`<=`"));
+    assert!(hint("x = a <> b").contains("no not-equal"));
+    assert!(hint("x = a != b").contains("no not-equal"));
+    // The message reads as a sentence when the line ends early.
+    for src in ["x =", "x = 1 +", "x = (1 + 2) *", "x = 2 ∠"] {
+        let d = err_of(src);
+        assert_eq!(d.message, "the line ends too soon", "{src}");
+        assert!(!d.message.contains("unexpected the"), "{src}");
+    }
+}
