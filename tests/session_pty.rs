@@ -416,3 +416,94 @@ fn two_sessions_on_one_sheet_neither_loses_the_others_work() {
     assert!(mine.contains("R1 = 5 Ω") && mine.contains("R2 = 20 Ω"), "{mine}");
     assert_eq!(std::fs::read_to_string(&sheet).unwrap(), after_a);
 }
+
+/// The prompt names the sheet from the current folder (the session was
+/// started with its absolute path); `/forward` makes again what `/back`
+/// took back. Values: Ohm's law on the divider (16 A, then 12 A with
+/// R2 = 30 Ω).
+#[test]
+fn the_prompt_names_the_sheet_from_here_and_forward_redoes_a_back() {
+    let env = Env::new();
+    let sheet = env.sheet(DIVIDER);
+    assert!(sheet.is_absolute());
+    let mut t = env.spawn(Some(&sheet));
+    let greet = t.expect("feeder.ohm ▸ ");
+    let dir = env.dir.path().display().to_string();
+    assert!(!greet.contains(&dir), "the absolute path is shown:\n{greet}");
+
+    t.line("R2 = 30 Ω");
+    t.regex(r"I\s+16 A\s+→\s+12 A");
+    t.expect("feeder.ohm* ▸ ");
+    t.line("/back");
+    t.expect("back to: R2 = 20 Ω");
+    t.expect("feeder.ohm ▸ ");
+    t.line("/forward");
+    t.expect("forward to: R2 = 30 Ω");
+    t.regex(r"I\s+16 A\s+→\s+12 A");
+    t.expect("feeder.ohm* ▸ ");
+    t.line("/forward");
+    t.expect("nothing to redo");
+    t.prompt();
+    t.line("/help");
+    t.expect("/forward");
+    t.prompt();
+    t.line("/save");
+    t.expect("saved feeder.ohm");
+    t.prompt();
+    t.line("/done");
+    t.eof();
+    assert_eq!(
+        std::fs::read_to_string(&sheet).unwrap(),
+        DIVIDER.replace("R2 = 20 Ω", "R2 = 30 Ω")
+    );
+}
+
+/// `/save` keeps the sheet's own layout: unchanged, the same bytes; a
+/// changed value keeps its line's alignment before `=` and its comment
+/// column.
+#[test]
+fn save_keeps_the_sheets_layout() {
+    const ALIGNED: &str = "# Pump house feeder (invented numbers)\n\
+\n\
+Vs    = 480 V        # bus\n\
+R1    = 10 Ω         # feeder\n\
+R2    = 20 Ω\n\
+Rt    = R1 + R2      # total\n\
+I     = Vs / Rt\n";
+    let env = Env::new();
+    let sheet = env.sheet(ALIGNED);
+    let mut t = env.spawn(Some(&sheet));
+    t.prompt();
+    t.line("/save");
+    t.expect("saved feeder.ohm");
+    t.prompt();
+    assert_eq!(std::fs::read_to_string(&sheet).unwrap(), ALIGNED);
+    t.line("R1 = 12 Ω");
+    t.expect("(was 10 Ω)");
+    t.prompt();
+    t.line("/save");
+    t.expect("saved feeder.ohm");
+    t.prompt();
+    t.line("/done");
+    t.eof();
+    assert_eq!(
+        std::fs::read_to_string(&sheet).unwrap(),
+        ALIGNED.replace("R1    = 10 Ω         # feeder", "R1    = 12 Ω         # feeder")
+    );
+}
+
+/// `/feeds` lists a check by its own text, once.
+#[test]
+fn feeds_lists_a_check_once() {
+    let env = Env::new();
+    let sheet = env.sheet(&format!("{DIVIDER}check I ~= 16 A +- 1%\n"));
+    let mut t = env.spawn(Some(&sheet));
+    t.prompt();
+    t.line("/feeds Rt");
+    let out = t.expect("(• uses it directly)");
+    assert!(out.contains("check I ~= 16 A +- 1%  holds"), "{out}");
+    assert!(!out.contains("check check"), "{out}");
+    t.prompt();
+    t.line("/done");
+    t.eof();
+}

@@ -20,6 +20,9 @@ pub struct DocLine {
     /// For an `@include` line: the statements of the library sheet (and of
     /// the sheets it includes), which take this line's place in the order.
     pub included: Vec<Stmt>,
+    /// How this line ended in the file (`Some(true)`: `\r\n`); `None` for
+    /// a line the session added, which ends as the document's lines do.
+    pub cr: Option<bool>,
 }
 
 impl DocLine {
@@ -44,6 +47,11 @@ pub struct Doc {
     pub lines: Vec<DocLine>,
     /// Lines end in `\r\n`.
     pub crlf: bool,
+    /// The last line ended with a line break (a file without one is saved
+    /// without one).
+    pub final_newline: bool,
+    /// The file began with a UTF-8 byte-order mark (kept on saving).
+    pub bom: bool,
     /// The file the original text was read from (spans of unchanged lines
     /// point into it).
     pub main: FileId,
@@ -62,19 +70,25 @@ impl Doc {
         let crlf = text.contains("\r\n");
         let mut raw: Vec<&str> = text.split('\n').collect();
         // A final newline ends the last line; it does not start a new one.
+        let final_newline = text.is_empty() || text.ends_with('\n');
         if raw.len() > 1 && raw.last() == Some(&"") {
             raw.pop();
         }
+        let last = raw.len().saturating_sub(1);
         if raw == [""] {
             raw.clear();
         }
         let mut lines: Vec<DocLine> = raw
             .iter()
-            .map(|l| DocLine {
+            .enumerate()
+            .map(|(i, l)| DocLine {
                 text: l.strip_suffix('\r').unwrap_or(l).to_string(),
                 stmt: None,
                 error: None,
                 included: Vec::new(),
+                // The last line of a file without a final newline has no
+                // ending of its own.
+                cr: (i < last || final_newline).then(|| l.ends_with('\r')),
             })
             .collect();
         // The line of the main file whose `@include` brought `file` in.
@@ -116,6 +130,8 @@ impl Doc {
         Doc {
             lines,
             crlf,
+            final_newline,
+            bom: false,
             main: sheet.main,
             files: sheet.files.clone(),
             included_errors,
@@ -132,23 +148,49 @@ impl Doc {
     }
 
     /// The text that replaces line `idx` when the user types `typed` for
-    /// it: what was typed, keeping the old line's trailing comment (and
-    /// the spacing before it) when the new text has no comment of its own.
+    /// it, in the sheet's own layout: a definition of the same name keeps
+    /// the old line's text up to its formula (indent, the spaces that align
+    /// its `=`), and a comment — the old one when none was typed — stays in
+    /// its column (pushed two spaces past a new formula that reaches it).
     pub fn merged_text(&self, idx: usize, typed: &str) -> String {
         let typed = typed.trim();
-        if find_comment_start(typed).is_some() {
-            return typed.to_string();
-        }
         let old = &self.lines[idx].text;
-        match find_comment_start(old) {
+        let old_comment = find_comment_start(old);
+        let old_body = &old[..old_comment.unwrap_or(old.len())];
+        let (typed_body, typed_comment) = match find_comment_start(typed) {
+            Some(c) => (typed[..c].trim_end(), Some(&typed[c..])),
+            None => (typed, None),
+        };
+        let body = match (self.lines[idx].defines(), def_split(old_body), def_split(typed_body)) {
+            (Some(_), Some((old_lhs, old_formula)), Some((lhs, formula))) if same_words(lhs, old_lhs) => {
+                let lead = old_formula.len() - old_formula.trim_start().len();
+                let keep = old_lhs.len() + 1 + lead;
+                format!("{}{}", &old_body[..keep], formula.trim())
+            }
+            _ => typed_body.to_string(),
+        };
+        let comment = typed_comment.or(old_comment.map(|c| &old[c..]));
+        let Some(comment) = comment else {
+            return body;
+        };
+        let gap = match old_comment {
             Some(c) => {
                 let before = &old[..c];
-                let gap = &before[before.trim_end().len()..];
-                let gap = if gap.is_empty() { "  " } else { gap };
-                format!("{typed}{gap}{}", &old[c..])
+                let col = before.chars().count();
+                let len = body.chars().count();
+                if len < col {
+                    " ".repeat(col - len)
+                } else if let Some(tc) = typed_comment {
+                    // Past the column: the spacing typed before the comment.
+                    typed[typed_body.len()..typed.len() - tc.len()].to_string()
+                } else {
+                    "  ".to_string()
+                }
             }
-            None => typed.to_string(),
-        }
+            // A comment typed on a line that had none: as typed.
+            None => typed[typed_body.len()..typed.len() - comment.len()].to_string(),
+        };
+        format!("{body}{gap}{comment}")
     }
 
     /// The sheet the compiler sees: every statement in document order,
@@ -170,17 +212,54 @@ impl Doc {
         }
     }
 
-    /// The document as text, with the line endings it came with and a
-    /// final newline.
+    /// The document as text, each line with the ending it came with (an
+    /// added line with the document's usual one), a final newline only if
+    /// the file had one, and its byte-order mark: an unchanged document
+    /// gives back the file's bytes.
     pub fn text(&self) -> String {
-        let eol = if self.crlf { "\r\n" } else { "\n" };
         let mut out = String::new();
-        for l in &self.lines {
+        if self.bom {
+            out.push('\u{FEFF}');
+        }
+        let n = self.lines.len();
+        for (i, l) in self.lines.iter().enumerate() {
             out.push_str(&l.text);
-            out.push_str(eol);
+            if i + 1 == n && !self.final_newline && l.cr.is_none() {
+                // The file's last line had no ending; a line the session
+                // appended after it gets one below, this one does not.
+                break;
+            }
+            let cr = l.cr.unwrap_or(self.crlf);
+            out.push_str(if cr { "\r\n" } else { "\n" });
         }
         out
     }
+}
+
+/// A definition's text cut at its `=`: the name side and the formula
+/// side. `None` when there is no `=` standing alone before any quote.
+fn def_split(body: &str) -> Option<(&str, &str)> {
+    let b = body.as_bytes();
+    for (i, &c) in b.iter().enumerate() {
+        match c {
+            b'"' => return None,
+            b'=' => {
+                let prev = i.checked_sub(1).map(|p| b[p]);
+                let next = b.get(i + 1).copied();
+                if matches!(prev, Some(b'<' | b'>' | b'!' | b'~' | b'=')) || next == Some(b'=') {
+                    return None;
+                }
+                return Some((&body[..i], &body[i + 1..]));
+            }
+            _ => {}
+        }
+    }
+    None
+}
+
+/// Two name sides alike but for spacing (`Vs   ` and `Vs`).
+fn same_words(a: &str, b: &str) -> bool {
+    a.split_whitespace().eq(b.split_whitespace())
 }
 
 #[cfg(test)]
@@ -211,6 +290,7 @@ I = Vs / (Zs + Zl)\n";
             stmt: parse_line(text, f, 0, 1).unwrap(),
             error: None,
             included: Vec::new(),
+            cr: None,
         }
     }
 
@@ -260,8 +340,11 @@ I = Vs / (Zs + Zl)\n";
     }
 
     #[test]
-    fn no_final_newline_gets_one_and_empty_stays_empty() {
-        assert_eq!(doc("a = 1").0.text(), "a = 1\n");
+    fn no_final_newline_stays_so_and_empty_stays_empty() {
+        assert_eq!(doc("a = 1").0.text(), "a = 1");
+        assert_eq!(doc("a = 1\r\nb = 2").0.text(), "a = 1\r\nb = 2");
+        // Mixed endings: each line keeps its own.
+        assert_eq!(doc("a = 1\r\nb = 2\nc = 3\r\n").0.text(), "a = 1\r\nb = 2\nc = 3\r\n");
         assert_eq!(doc("").0.text(), "");
         assert_eq!(doc("").0.lines.len(), 0);
         assert_eq!(doc("\n\n").0.text(), "\n\n");

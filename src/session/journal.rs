@@ -34,6 +34,8 @@ pub enum Entry {
     Remove(String),
     /// The last change undone.
     Back,
+    /// The last change undone made again.
+    Forward,
 }
 
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]

@@ -21,6 +21,7 @@ pub fn entry_text(e: &Entry) -> String {
         Entry::Line(t) => t.clone(),
         Entry::Remove(n) => format!("/remove {n}"),
         Entry::Back => "/back".into(),
+        Entry::Forward => "/forward".into(),
     }
 }
 
@@ -254,7 +255,8 @@ pub fn feeds(s: &Session, id: CellId) -> String {
         let c = &m.cells[d as usize];
         let mark = if direct.contains(&d) { "•" } else { " " };
         let text = if c.role == Role::Check {
-            format!("check {}  {}", c.formula.trim(), s.cell_value(d))
+            // The check's formula reads `check a ~= b …` already.
+            format!("{}  {}", c.formula.trim(), s.cell_value(d))
         } else {
             format!("{} = {}  ⇒ {}", c.name, c.formula.trim(), s.cell_value(d))
         };

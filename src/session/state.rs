@@ -100,6 +100,9 @@ pub struct Session {
     pub doc: Doc,
     pub engine: Engine,
     undo: Vec<(Edit, u64)>,
+    /// Changes taken back with `/back`, newest last, for `/forward`; a new
+    /// change clears it.
+    redo: Vec<(Edit, u64)>,
     version: u64,
     next_version: u64,
     saved_version: u64,
@@ -130,7 +133,10 @@ impl Session {
             Some(p) => (Sheet::from_text(&p.display().to_string(), ""), true),
             None => (Sheet::from_text("unnamed", ""), true),
         };
-        let doc = Doc::from_sheet(&sheet);
+        let mut doc = Doc::from_sheet(&sheet);
+        // The byte-order mark is dropped when the sheet is read; a save
+        // writes it back.
+        doc.bom = path.is_some_and(|p| std::fs::read(p).is_ok_and(|b| b.starts_with(&[0xEF, 0xBB, 0xBF])));
         let mut model = compile(&sheet);
         model.diagnostics.retain(|d| d.code != ErrorCode::EmptySheet);
         let engine = Engine::new(model);
@@ -142,6 +148,7 @@ impl Session {
             doc,
             engine,
             undo: Vec::new(),
+            redo: Vec::new(),
             version: 0,
             next_version: 1,
             saved_version: 0,
@@ -183,10 +190,13 @@ impl Session {
         Ok((s, greet))
     }
 
-    /// The sheet's name as shown in the prompt and messages.
+    /// The sheet's name as shown in the prompt and messages: its path
+    /// relative to the current folder (`site.ohm`, `jobs/site.ohm`,
+    /// `../lib/site.ohm`), absolute only when the two share nothing but
+    /// the root.
     pub fn display_name(&self) -> String {
         match &self.path {
-            Some(p) => p.display().to_string(),
+            Some(p) => relative_name(p, std::env::current_dir().ok().as_deref()),
             None => "unnamed".into(),
         }
     }
@@ -325,6 +335,31 @@ impl Session {
         out.push_str(&show::changes(&rest));
         out
     }
+}
+
+/// `path` as seen from the folder `cwd`.
+pub(super) fn relative_name(path: &Path, cwd: Option<&Path>) -> String {
+    use std::path::Component;
+    let Some(cwd) = cwd.filter(|_| path.is_absolute()) else {
+        let s = path.display().to_string();
+        return s.strip_prefix("./").map(str::to_string).unwrap_or(s);
+    };
+    let p: Vec<Component> = path.components().collect();
+    let c: Vec<Component> = cwd.components().collect();
+    let common = p.iter().zip(&c).take_while(|(a, b)| a == b).count();
+    // Only the root in common (or a `..` in either): the path as given.
+    let plain = |x: &Component| matches!(x, Component::Normal(_));
+    if common <= 1 || !p[common..].iter().all(plain) || !c[common..].iter().all(plain) {
+        return path.display().to_string();
+    }
+    let mut rel = PathBuf::new();
+    for _ in common..c.len() {
+        rel.push("..");
+    }
+    for x in &p[common..] {
+        rel.push(x);
+    }
+    rel.display().to_string()
 }
 
 pub(super) fn plural(n: usize) -> &'static str {

@@ -15,27 +15,32 @@ use crate::syntax::ast::{Stmt, StmtKind};
 use crate::units::format::Style;
 
 impl Session {
-    /// The document line for typed `text` replacing line `idx`: the old
-    /// line's comment is kept when none was typed.
+    /// The document line for typed `text` replacing line `idx`, in the
+    /// old line's layout (`Doc::merged_text`) and with its line ending.
     pub(super) fn line_for(&mut self, idx: usize, text: &str, stmt: Stmt) -> DocLine {
+        let cr = self.doc.lines[idx].cr;
         let merged = self.doc.merged_text(idx, text);
-        if merged == text.trim() {
-            return plain_line(text, stmt);
-        }
-        match self.parse(&merged) {
-            Ok(Some(s)) => DocLine {
-                text: merged,
-                stmt: Some(s),
-                error: None,
-                included: Vec::new(),
-            },
-            // Cannot happen (a comment never changes what parses); keep
-            // what was typed.
-            _ => plain_line(text, stmt),
-        }
+        let line = if merged == text.trim() {
+            plain_line(text, stmt)
+        } else {
+            match self.parse(&merged) {
+                Ok(Some(s)) => DocLine {
+                    text: merged,
+                    stmt: Some(s),
+                    error: None,
+                    included: Vec::new(),
+                    cr: None,
+                },
+                // Cannot happen (layout never changes what parses); keep
+                // what was typed.
+                _ => plain_line(text, stmt),
+            }
+        };
+        DocLine { cr, ..line }
     }
 
     pub(super) fn push_undo(&mut self, inverse: Edit) {
+        self.redo.clear();
         self.undo.push((inverse, self.version));
         self.version = self.next_version;
         self.next_version += 1;
@@ -172,6 +177,7 @@ pub(super) fn plain_line(text: &str, stmt: Stmt) -> DocLine {
         stmt: Some(stmt),
         error: None,
         included: Vec::new(),
+        cr: None,
     }
 }
 

@@ -19,6 +19,7 @@ pub const COMMANDS: &[(&str, &str, &str)] = &[
     ("feeds", "NAME", "the cells that use a cell, directly or further on"),
     ("remove", "NAME", "remove a cell no other cell uses"),
     ("back", "", "undo the last change"),
+    ("forward", "", "make again the change /back took back"),
     ("show", "[digits N | polar | rect]", "how values are shown"),
     ("about", "NAME", "a function, unit or cell explained"),
     ("open", "FILE", "work on another sheet"),
@@ -46,6 +47,7 @@ impl Session {
             "feeds" => self.with_cell(arg, |s, id| Reply::ok(show::feeds(s, id))),
             "remove" => self.remove(arg, true),
             "back" => self.back(true),
+            "forward" => self.forward(true),
             "show" => self.show_cmd(arg),
             "about" => Reply::ok(show::about(self, arg)),
             "open" => {
@@ -145,11 +147,40 @@ impl Session {
             Edit::Delete(i) => format!("took back: {}", self.doc.lines[*i].text.trim()),
         };
         match self.apply(edit, true) {
-            Ok((_, shown)) => {
+            Ok((inverse, shown)) => {
+                self.redo.push((inverse, self.version));
                 self.version = version;
                 let mut out = String::new();
                 if journal {
                     self.record(Entry::Back, &mut out);
+                }
+                out.push_str(&what);
+                out.push('\n');
+                let all: Vec<&Shown> = shown.iter().collect();
+                out.push_str(&show::changes(&all));
+                Reply::ok(out)
+            }
+            Err(t) => Reply::refused(t),
+        }
+    }
+
+    /// `/forward`: make again the change the last `/back` took back (as
+    /// long as no other change was made since).
+    pub(super) fn forward(&mut self, journal: bool) -> Reply {
+        let Some((edit, version)) = self.redo.pop() else {
+            return Reply::refused("nothing to redo: /forward makes again a change /back took back\n");
+        };
+        let what = match &edit {
+            Edit::Replace(_, l) | Edit::Insert(_, l) => format!("forward to: {}", l.text.trim()),
+            Edit::Delete(i) => format!("forward: took out {}", self.doc.lines[*i].text.trim()),
+        };
+        match self.apply(edit, true) {
+            Ok((inverse, shown)) => {
+                self.undo.push((inverse, self.version));
+                self.version = version;
+                let mut out = String::new();
+                if journal {
+                    self.record(Entry::Forward, &mut out);
                 }
                 out.push_str(&what);
                 out.push('\n');

@@ -83,6 +83,7 @@ impl Session {
             Entry::Line(t) => self.statement(t, false),
             Entry::Remove(n) => self.remove(n, false),
             Entry::Back => self.back(false),
+            Entry::Forward => self.forward(false),
         }
     }
 
@@ -150,7 +151,7 @@ impl Session {
         let lines = self.doc.lines.len();
         Ok(format!(
             "saved {} ({lines} line{}){}\n",
-            path.display(),
+            self.display_name(),
             plural(lines),
             if moved { "; it is now this session's file" } else { "" }
         ))

@@ -3,6 +3,7 @@
 
 use super::*;
 use num_complex::Complex64 as C64;
+use std::path::Path;
 
 const SITE: &str = "# Pump house feeder (invented)\n\
 Vs = 480 V      # bus\n\
@@ -319,4 +320,160 @@ fn an_unnamed_session_saves_where_it_is_told() {
     ok(&mut s, &format!("/save {}", p.display()));
     assert_eq!(std::fs::read_to_string(&p).unwrap(), "Zs = (0.1 + j0.4) Ω\nZl = 8 Ω\n");
     assert_eq!(s.path.as_deref(), Some(p.as_path()));
+}
+
+/// Every demo sheet, opened and saved with no change, is written back
+/// byte for byte (the library sheets it includes come along in the copy).
+#[test]
+fn every_demo_sheet_round_trips_byte_for_byte() {
+    let demo = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("sheets-demo");
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::create_dir(dir.path().join("lib")).unwrap();
+    for e in std::fs::read_dir(demo.join("lib")).unwrap() {
+        let p = e.unwrap().path();
+        std::fs::copy(&p, dir.path().join("lib").join(p.file_name().unwrap())).unwrap();
+    }
+    let mut n = 0;
+    for e in std::fs::read_dir(&demo).unwrap() {
+        let p = e.unwrap().path();
+        if p.extension().is_none_or(|x| x != "ohm") {
+            continue;
+        }
+        let bytes = std::fs::read(&p).unwrap();
+        let copy = dir.path().join(p.file_name().unwrap());
+        std::fs::write(&copy, &bytes).unwrap();
+        let (mut s, _) = Session::open(Some(&copy), Some(dir.path().join("data")), false).unwrap();
+        ok(&mut s, "/save");
+        assert_eq!(std::fs::read(&copy).unwrap(), bytes, "{}", p.display());
+        n += 1;
+    }
+    assert!(n >= 8, "found {n} demo sheets");
+}
+
+/// A byte-order mark, `\r\n` on some lines only and no final newline all
+/// survive a save; a changed line keeps its own ending.
+#[test]
+fn a_save_keeps_the_files_bom_line_endings_and_missing_final_newline() {
+    let text = "\u{FEFF}a  = 1 V   # first\r\nb = a * 2\nc = b + 1 V";
+    let f = Fixture::new(text);
+    let mut s = f.open();
+    ok(&mut s, "/save");
+    assert_eq!(std::fs::read_to_string(&f.path).unwrap(), text);
+    ok(&mut s, "a = 2 V");
+    ok(&mut s, "/save");
+    assert_eq!(
+        std::fs::read_to_string(&f.path).unwrap(),
+        "\u{FEFF}a  = 2 V   # first\r\nb = a * 2\nc = b + 1 V"
+    );
+}
+
+/// A changed value keeps its line's alignment before `=` and its comment
+/// column; only the value's text changes.
+#[test]
+fn a_changed_value_keeps_the_lines_alignment_and_comment_column() {
+    let text = "# aligned (invented)\n\
+Vs    = 480 V        # bus\n\
+R1    = 10 Ω         # feeder\n\
+Rt    = R1 + 5 Ω     # total\n\
+I     = Vs / Rt\n";
+    let f = Fixture::new(text);
+    let mut s = f.open();
+    ok(&mut s, "Vs = 415 V");
+    // Typed without spaces; a typed comment goes to the old column.
+    ok(&mut s, "R1=12.5 Ω # feeder, measured");
+    // A formula past the comment's column pushes it two spaces past.
+    ok(&mut s, "Rt = R1 + 5 Ω + 0.25 Ω + 0.125 Ω");
+    // A comment typed on a line that had none stays as typed.
+    ok(&mut s, "I = Vs / Rt  # line current");
+    ok(&mut s, "/save");
+    assert_eq!(
+        std::fs::read_to_string(&f.path).unwrap(),
+        "# aligned (invented)\n\
+Vs    = 415 V        # bus\n\
+R1    = 12.5 Ω       # feeder, measured\n\
+Rt    = R1 + 5 Ω + 0.25 Ω + 0.125 Ω  # total\n\
+I     = Vs / Rt  # line current\n"
+    );
+    // Taking the changes back restores the lines exactly.
+    for _ in 0..4 {
+        ok(&mut s, "/back");
+    }
+    assert_eq!(s.doc.text(), text);
+}
+
+#[test]
+fn forward_makes_again_what_back_took_back() {
+    let f = Fixture::new(SITE);
+    let mut s = f.open();
+    let mut snapshots = vec![(s.doc.text(), val(&s, "I"))];
+    for line in ["R2 = 30 Ω", "g = 2 A", "h = g * Vs", "/remove h", "Vs = 240 V"] {
+        ok(&mut s, line);
+        snapshots.push((s.doc.text(), val(&s, "I")));
+    }
+    for _ in 1..snapshots.len() {
+        ok(&mut s, "/back");
+    }
+    assert!(!s.dirty());
+    for (text, i) in snapshots.iter().skip(1) {
+        let out = ok(&mut s, "/forward");
+        assert!(out.starts_with("forward"), "{out}");
+        assert_eq!(&s.doc.text(), text);
+        assert_eq!(val(&s, "I"), *i);
+    }
+    // 240 V across 10 Ω + 30 Ω (Ohm's law).
+    assert_eq!(val(&s, "I"), C64::new(6.0, 0.0));
+    let r = s.handle("/forward");
+    assert!(r.refused && r.text.contains("nothing to redo"), "{}", r.text);
+    // A new change after /back ends what /forward could redo.
+    ok(&mut s, "/back");
+    ok(&mut s, "R1 = 5 Ω");
+    assert!(s.handle("/forward").refused);
+    // Back then forward is where it was, saved state included.
+    ok(&mut s, "/save");
+    ok(&mut s, "/back");
+    assert!(s.dirty());
+    ok(&mut s, "/forward");
+    assert!(!s.dirty());
+}
+
+#[test]
+fn a_forward_is_journalled_and_replayed() {
+    let f = Fixture::new(SITE);
+    let mut a = f.open();
+    ok(&mut a, "R2 = 30 Ω");
+    ok(&mut a, "Vs = 400 V");
+    ok(&mut a, "/back");
+    ok(&mut a, "/back");
+    ok(&mut a, "/forward");
+    let text = a.doc.text();
+    drop(a);
+    let mut b = f.open();
+    let rec = b.recovery().unwrap();
+    assert_eq!(rec.entries.last(), Some(&journal::Entry::Forward));
+    b.restore(&rec);
+    assert_eq!(b.doc.text(), text);
+    // 480 V across 10 Ω + 30 Ω.
+    assert_eq!(val(&b, "I"), C64::new(12.0, 0.0));
+    ok(&mut b, "/forward");
+    assert_eq!(val(&b, "I"), C64::new(10.0, 0.0));
+}
+
+#[test]
+fn feeds_names_a_check_once() {
+    let f = Fixture::new("a = 2 V\nb = a * 2\ncheck b ~= 4 V +- 1%\n");
+    let mut s = f.open();
+    let out = ok(&mut s, "/feeds a");
+    assert!(out.contains("  check b ~= 4 V +- 1%  holds"), "{out}");
+    assert!(!out.contains("check check"), "{out}");
+}
+
+#[test]
+fn the_name_shown_is_relative_to_the_current_folder() {
+    let rel = |p: &str, c: &str| relative_name(Path::new(p), Some(Path::new(c)));
+    assert_eq!(rel("/home/ann/jobs/site.ohm", "/home/ann/jobs"), "site.ohm");
+    assert_eq!(rel("/home/ann/jobs/a/site.ohm", "/home/ann/jobs"), "a/site.ohm");
+    assert_eq!(rel("/home/ann/lib/site.ohm", "/home/ann/jobs"), "../lib/site.ohm");
+    assert_eq!(rel("/srv/site.ohm", "/home/ann"), "/srv/site.ohm");
+    assert_eq!(relative_name(Path::new("./site.ohm"), None), "site.ohm");
+    assert_eq!(relative_name(Path::new("jobs/site.ohm"), None), "jobs/site.ohm");
 }
