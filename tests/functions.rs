@@ -578,9 +578,9 @@ fn wrong_units_are_refused() {
     refused("x = q_of(3 H)", "`Z` must be an impedance");
 }
 
-// Lines, RF and two-ports: each argument refuses the wrong unit, naming what it wants.
+// Lines, RF, two-ports and π/T matching: each argument refuses the wrong unit, naming what it wants.
 #[test]
-fn wrong_units_are_refused_by_line_and_two_port_functions() {
+fn wrong_units_are_refused_by_line_two_port_and_pi_t_functions() {
     refused("x = refl(50 V, 50 Ω)", "`ZL` must be an impedance");
     refused("x = refl(50 Ω, 1 pu)", "must both be in Ω or both per-unit");
     refused("x = vswr(0.3 V)", "`G` must be a plain number");

@@ -21,6 +21,7 @@ mod kill_during_write;
 mod language;
 mod limits;
 mod lines_rf;
+mod matching_pi_t;
 mod misreadings;
 mod properties;
 mod readme;

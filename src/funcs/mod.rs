@@ -161,6 +161,11 @@ pub struct Builtin {
     /// The published method or reference the function follows and is
     /// tested against (for the listing, docs and hover); empty if none.
     pub source: &'static str,
+    /// For `Impl::Scalar`: instructions that turn the arguments into the
+    /// values the scalar function (and the domain check) receive, one for
+    /// one — ω in rad/s from a frequency given in Hz or rad/s (`omega`),
+    /// which a scalar function cannot tell apart from the value alone.
+    pub prepare: Option<LowerFn>,
 }
 
 impl Builtin {
@@ -196,6 +201,14 @@ impl Builtin {
     /// The same function with its source named.
     pub fn with_source(self, source: &'static str) -> Builtin {
         Builtin { source, ..self }
+    }
+    /// The same (scalar) function with its arguments prepared by
+    /// instructions first (see `prepare`).
+    pub fn with_prepare(self, prepare: LowerFn) -> Builtin {
+        Builtin {
+            prepare: Some(prepare),
+            ..self
+        }
     }
 }
 
@@ -437,6 +450,7 @@ pub fn lowered(
         imp: Impl::Lower(lower),
         domain: None,
         source: "",
+        prepare: None,
     }
 }
 
@@ -459,6 +473,7 @@ pub fn scalar_fn(
         imp: Impl::Scalar(eval),
         domain: None,
         source: "",
+        prepare: None,
     }
 }
 

@@ -34,6 +34,11 @@ Sources:
   from memory); for a complex load the closed form in Pozar, Microwave
   Engineering, §5.1 (from memory), and each solution is verified here by
   computing the network's input impedance.
+- π and T networks for a loaded Q: two L-networks back to back through a
+  virtual resistance, Rv = Rhi/(Q² + 1) (π) or Rlo·(Q² + 1) (T) (Bowick,
+  RF Circuit Design, ch. 4 — from memory); each design is verified here
+  by computing the network's input impedance with the load, which must be
+  exactly Rs.
 - Decibels: IEC 60027-3 (logarithmic quantities): 20·log10 of a
   root-power ratio, 10·log10 of a power ratio, and back: 10^(L/10),
   10^(L/20).
@@ -150,6 +155,35 @@ def lmatch_complex(rs, zl, sign):
     assert abs(zin - rs) < mp.mpf("1e-40") * rs, zin
     return out
 
+
+def pi_t(rs, rl, q, f, kind):
+    """Bowick ch. 4; returns the three element values, source end first,
+    and Rv, for kind in pi_lp, pi_hp, t_lp, t_hp."""
+    rs, rl, q, w = mp.mpf(rs), mp.mpf(rl), mp.mpf(q), 2 * PI * mp.mpf(f)
+    hi, lo = max(rs, rl), min(rs, rl)
+    if kind.startswith("pi"):
+        rv = hi / (q**2 + 1)
+        qs, ql = mp.sqrt(rs / rv - 1), mp.sqrt(rl / rv - 1)
+        x = [rs / qs, rv * (qs + ql), rl / ql]  # shunt, series, shunt
+    else:
+        rv = lo * (q**2 + 1)
+        qs, ql = mp.sqrt(rv / rs - 1), mp.sqrt(rv / rl - 1)
+        x = [qs * rs, rv / (qs + ql), ql * rl]  # series, shunt, series
+    caps = {"pi_lp": [1, 0, 1], "pi_hp": [0, 1, 0], "t_lp": [0, 1, 0], "t_hp": [1, 0, 1]}[kind]
+    el = [1 / (w * xi) if c else xi / w for xi, c in zip(x, caps)]
+    z = [1 / (J * w * e) if c else J * w * e for e, c in zip(el, caps)]
+    if kind.startswith("pi"):
+        zin = par(z[0], z[1] + par(z[2], rl))
+    else:
+        zin = z[0] + par(z[1], z[2] + rl)
+    assert abs(zin - rs) < mp.mpf("1e-40") * rs, (kind, zin)
+    return el + [rv]
+
+
+PI_LP = pi_t(50, 1000, 10, "10e6", "pi_lp")
+PI_HP = pi_t(600, 75, 5, "3.5e6", "pi_hp")
+T_LP = pi_t(50, 300, 4, "144e6", "t_lp")
+T_HP = pi_t(200, 50, 3, "1e6", "t_hp")
 
 d = [Za, Zb, Zc]  # as a delta: Zab, Zbc, Zca
 sd = sum(d)
@@ -332,6 +366,20 @@ CASES = [
     ("lmatch_z(50 Ω, (300 - j140) Ω, 1).Xs", lz3[0], "Pozar §5.1, RL > Rs"),
     ("lmatch_z(50 Ω, (300 - j140) Ω, 1).Xp", lz3[1], "Pozar §5.1, RL > Rs"),
     ("lmatch_z(50 Ω, (300 - j140) Ω, 1).at_load", mp.mpf(lz3[2]), "shunt across the load"),
+    ("pimatch_lp(50 Ω, 1000 Ω, 10, 10 MHz).C1", PI_LP[0], "Bowick ch. 4: π, shunt C across Rs"),
+    ("pimatch_lp(50 Ω, 1000 Ω, 10, 10 MHz).L", PI_LP[1], "Bowick ch. 4: π, series L"),
+    ("pimatch_lp(50 Ω, 1000 Ω, 10, 10 MHz).C2", PI_LP[2], "Bowick ch. 4: π, shunt C across RL"),
+    ("pimatch_lp(50 Ω, 1000 Ω, 10, 10 MHz).Rv", PI_LP[3], "π virtual resistance Rhi/(Q² + 1)"),
+    ("pimatch_hp(600 Ω, 75 Ω, 5, 3.5 MHz).L1", PI_HP[0], "Bowick ch. 4: π high-pass"),
+    ("pimatch_hp(600 Ω, 75 Ω, 5, 3.5 MHz).C", PI_HP[1], "Bowick ch. 4: π high-pass"),
+    ("pimatch_hp(600 Ω, 75 Ω, 5, 3.5 MHz).L2", PI_HP[2], "Bowick ch. 4: π high-pass"),
+    ("tmatch_lp(50 Ω, 300 Ω, 4, 144 MHz).L1", T_LP[0], "Bowick ch. 4: T, series L next to Rs"),
+    ("tmatch_lp(50 Ω, 300 Ω, 4, 144 MHz).C", T_LP[1], "Bowick ch. 4: T, shunt C"),
+    ("tmatch_lp(50 Ω, 300 Ω, 4, 144 MHz).L2", T_LP[2], "Bowick ch. 4: T, series L next to RL"),
+    ("tmatch_lp(50 Ω, 300 Ω, 4, 144 MHz).Rv", T_LP[3], "T virtual resistance Rlo·(Q² + 1)"),
+    ("tmatch_hp(200 Ω, 50 Ω, 3, (2*pi*1e6) rad/s).C1", T_HP[0], "Bowick ch. 4: T high-pass, ω in rad/s"),
+    ("tmatch_hp(200 Ω, 50 Ω, 3, 1 MHz).L", T_HP[1], "Bowick ch. 4: T high-pass"),
+    ("tmatch_hp(200 Ω, 50 Ω, 3, 1 MHz).C2", T_HP[2], "Bowick ch. 4: T high-pass"),
     ("db_v(0.5)", 20 * mp.log10(mp.mpf("0.5")), "IEC 60027-3: 20·log10"),
     ("db_v(-3 + j4)", 20 * mp.log10(5), "IEC 60027-3: of the magnitude"),
     ("db_p(2)", 10 * mp.log10(2), "IEC 60027-3: 10·log10"),

@@ -339,7 +339,13 @@ impl Lowerer<'_> {
         })?;
         let outs = match &f.imp {
             Impl::Lower(lower) => lower(em, &ops, &qs),
-            Impl::Scalar(_) => em.call(fid, &ops, shape.width()),
+            Impl::Scalar(_) => match f.prepare {
+                Some(prepare) => {
+                    let ops = prepare(em, &ops, &qs);
+                    em.call(fid, &ops, shape.width())
+                }
+                None => em.call(fid, &ops, shape.width()),
+            },
         };
         Ok(match shape {
             Shape::Scalar(q) => Val::Scalar(outs[0], q),
