@@ -48,6 +48,11 @@ ENTRIES = [
     ("ambiguous-operators", "Operators side by side that a reader could group two ways: more than one value as the "
      "angle of `∠`, `||` and `--` mixed, a minus before the left side of `||` or `--` or before a power, chained "
      "powers or comparisons. The hint writes out both bracketings.", "Vp = 230 V\nV = Vp ∠ 120° * 2\n", None),
+    ("kind-mismatch", "Quantities of one dimension but different kinds combined where the result would be "
+     "misread: a real or reactive power added to a reactive power (`P + Q`; write `P + j*Q`), an imaginary "
+     "value in W or var, dB with % or pu, Hz with rad/s. A value given to an input of another kind "
+     "(`--set`, `--vary`, a cases column) is refused the same way.",
+     "P = 800 kW\nQ = 600 kvar\nS = P + Q\n", None),
     ("not-a-record", "`.field` on a single value.", "z = 3\nx = z.re\n", None),
     ("record-as-value", "A record used where one value is needed.", "p = parts(3 + j4)\nx = p * 2\n", None),
     ("bad-tolerance", "A check's tolerance without the unit of the values compared.",
@@ -80,7 +85,7 @@ ENTRIES = [
     ("search-failed", "A search found no answer: the target is never reached in the range, is reached "
      "at several places, or the curve only jumps across it. The message says where it came closest or "
      "where the several answers lie. (`ohmsheet solve` exits 1 for this.)",
-     "P = 400 kW\nQ = 320 kvar\nV = 480 V\nC = 1 mF\nf = 60 Hz\nQc = 2*pi*f*C*V^2\npf = P / abs(P + j*(Q - Qc))\n"
+     "P = 400 kW\nQ = 320 kvar\nV = 480 V\nC = 1 mF\nf = 60 Hz\nQc = 2*pi*f*C*V^2 [kvar]\npf = P / abs(P + j*(Q - Qc))\n"
      "Cfix = C in 0 .. 1 mF where pf = 0.95\n", None),
     ("bad-search", "A search that cannot be set up: an expression that does not depend on the varied "
      "input, a range or target value that changes with it, or (`ohmsheet solve`) a target without `=`.",

@@ -49,7 +49,7 @@ fn kvar_multipliers_match_the_red_book_table() {
 // reactive power, Q = P·tan φ; a leading target needs more than unity.
 #[test]
 fn correction_to_unity_cancels_the_load_kvar() {
-    let s = "S = 300 kW + j225 kvar\nk = pf(S)\nQc = q_pfc(re(S), k, 1)\nQlead = q_pfc(re(S), k, -0.95)";
+    let s = "S = 300 kW + j225 kVA\nk = pf(S)\nQc = q_pfc(re(S), k, 1)\nQlead = q_pfc(re(S), k, -0.95)";
     let e = engine(s);
     assert_close!(value(&e, "k"), re(0.8), 1e-12);
     assert_close!(value(&e, "Qc"), re(225e3), 1e-12);

@@ -224,6 +224,8 @@ const PRINTABLE: &[(Dim, Kind)] = &[
     (Dim::FREQUENCY, Kind::RadPerSec),
     (Dim::NONE, Kind::Plain),
     (Dim::NONE, Kind::PerUnit),
+    (Dim::NONE, Kind::Percent),
+    (Dim::NONE, Kind::Decibel),
     (Dim::TIME, Kind::Plain),
     (Dim::CHARGE, Kind::Plain),
     (Dim::FREQUENCY, Kind::Plain),
@@ -263,6 +265,9 @@ proptest! {
     ) {
         let z = z * 10f64.powi(scale);
         let (dim, kind) = PRINTABLE[which];
+        // W and var are real numbers (S = P + jQ): a value in them has no
+        // imaginary part, and a literal with one is refused.
+        let z = if matches!(kind, Kind::RealPower | Kind::ReactivePower) { C64::new(z.re, 0.0) } else { z };
         let q = Quantity::new(dim, kind);
         let f = format_value(z, q, None, Style { digits });
         let e = engine(&as_sheet(&f.rect, &f.unit));

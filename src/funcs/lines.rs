@@ -205,8 +205,14 @@ fn s_return_loss(a: &[C64], out: &mut [C64], _: &Ctx) {
     };
 }
 
+/// A return loss is a level in dB.
+fn ty_return_loss(qs: &[Quantity], c: &Ctx) -> Result<Shape, ArgError> {
+    ty_gamma_in(qs, c)?;
+    Ok(Shape::Scalar(Quantity::new(Dim::NONE, Kind::Decibel)))
+}
+
 fn ty_from_db(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
-    if qs[0].dim.is_none() && !matches!(qs[0].kind, Kind::Angle | Kind::PerUnit) {
+    if qs[0].dim.is_none() && !matches!(qs[0].kind, Kind::Angle | Kind::PerUnit | Kind::Percent) {
         return Ok(Shape::Scalar(Quantity::PLAIN));
     }
     Err(ArgError::at(
@@ -529,8 +535,8 @@ pub fn funcs() -> Vec<Builtin> {
             "return_loss",
             "return loss −20·log10|Γ| in dB from a reflection coefficient (positive for a passive load, ∞ matched)",
             &[p!("G", "1")],
-            "1 (dB)",
-            ty_gamma_in,
+            "dB",
+            ty_return_loss,
             s_return_loss,
         )
         .with_source("IEEE Std 100 (return loss); IEC 60027-3 (root-power level)"),

@@ -8,8 +8,8 @@ use super::*;
 use crate::engine::ops::Op;
 
 fn ty_db(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
-    if qs[0].dim.is_none() && qs[0].kind != Kind::Angle {
-        return Ok(Shape::Scalar(Quantity::PLAIN));
+    if qs[0].dim.is_none() && !matches!(qs[0].kind, Kind::Angle | Kind::Decibel) {
+        return Ok(Shape::Scalar(Quantity::new(Dim::NONE, Kind::Decibel)));
     }
     Err(ArgError::at(
         0,
@@ -69,7 +69,7 @@ pub fn funcs() -> Vec<Builtin> {
             "db_v",
             "decibels of a voltage or current ratio: 20·log10|r|",
             &[p!("r", "1")],
-            "1 (dB)",
+            "dB",
             ty_db,
             l_db_v,
         ),
@@ -77,7 +77,7 @@ pub fn funcs() -> Vec<Builtin> {
             "db_p",
             "decibels of a power ratio: 10·log10|r|",
             &[p!("r", "1")],
-            "1 (dB)",
+            "dB",
             ty_db,
             l_db_p,
         ),

@@ -144,6 +144,13 @@ fn shown(q: Quantity) -> Shown {
             };
         }
         Kind::PerUnit => return Shown::new("pu", 0),
+        Kind::Percent => {
+            return Shown {
+                scale: 0.01,
+                ..Shown::new("%", 0)
+            };
+        }
+        Kind::Decibel => return Shown::new("dB", 0),
         Kind::RealPower | Kind::ReactivePower | Kind::ApparentPower if q.dim == Dim::ENERGY => {
             let (sym, glued) = energy_of(q.kind).unwrap_or(("J", "J"));
             return Shown {
@@ -188,8 +195,11 @@ fn shown(q: Quantity) -> Shown {
 /// the SI unit the numbers are kept in; `W·s`, `var·s` for energies of a
 /// power kind).
 pub fn base_symbol(q: Quantity) -> String {
-    if q.kind == Kind::Angle {
-        return "rad".into();
+    match q.kind {
+        Kind::Angle => return "rad".into(),
+        // kept as a fraction: 12 % is 0.12
+        Kind::Percent => return String::new(),
+        _ => {}
     }
     if q.dim == Dim::ENERGY {
         if let Some((sym, _)) = energy_of(q.kind) {

@@ -209,7 +209,7 @@ const BASE_UNITS: &[BaseUnit] = &[
         symbols: &["%"],
         dim: Dim::NONE,
         factor: 0.01,
-        kind: Kind::Plain,
+        kind: Kind::Percent,
         prefixable: false,
     },
     BaseUnit {
@@ -217,6 +217,14 @@ const BASE_UNITS: &[BaseUnit] = &[
         dim: Dim::NONE,
         factor: 1.0,
         kind: Kind::PerUnit,
+        prefixable: false,
+    },
+    // A level: the number is the dB value itself (20 dB is stored as 20).
+    BaseUnit {
+        symbols: &["dB"],
+        dim: Dim::NONE,
+        factor: 1.0,
+        kind: Kind::Decibel,
         prefixable: false,
     },
 ];

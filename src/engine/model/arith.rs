@@ -5,7 +5,7 @@ use super::*;
 use crate::diag::{Diagnostic, ErrorCode};
 use crate::engine::ops::Op;
 use crate::engine::program::{Emitter, Operand};
-use crate::units::kind::{kind_of_product, kind_of_quotient, kind_of_sum};
+use crate::units::kind::{kind_of_product, kind_of_quotient, kind_of_sum, KindClash};
 use crate::units::{Dim, Kind, Quantity};
 
 impl Lowerer<'_> {
@@ -36,10 +36,7 @@ impl Lowerer<'_> {
                     }
                     return Err(d);
                 }
-                let k = kind_of_sum(qa.kind, qb.kind, qa.dim).map_err(|m| {
-                    Diagnostic::error(ErrorCode::AngleAmbiguous, whole.span, m.to_string())
-                        .with_hint("give the number its unit: `30°`, `0.5 rad`, `60 Hz` or `377 rad/s`")
-                })?;
+                let k = kind_of_sum(qa.kind, qb.kind, qa.dim).map_err(|c| kind_clash(c, whole, a, qa, b, qb))?;
                 let o = em.bin(if op == BinOp::Add { Op::Add } else { Op::Sub }, x, y);
                 Ok(Val::Scalar(o, Quantity::new(qa.dim, k)))
             }
@@ -57,16 +54,16 @@ impl Lowerer<'_> {
                     )
                     .with_hint("the result would have a unit power beyond ±127"));
                 };
+                // A constant factor's value decides two kinds: f·2π is in
+                // rad/s, and j·Q is a complex power.
+                let ca = x.konst().filter(|_| qa.dim.is_none());
+                let cb = y.konst().filter(|_| qb.dim.is_none());
                 let k = if op == BinOp::Mul {
-                    kind_of_product(
-                        qa.kind,
-                        qb.kind,
-                        x.real_const().filter(|_| qa.is_plain_number()),
-                        y.real_const().filter(|_| qb.is_plain_number()),
-                    )
+                    kind_of_product(qa.kind, qb.kind, dim, ca, cb)
                 } else {
-                    kind_of_quotient(qa.kind, qb.kind, y.real_const().filter(|_| qb.is_plain_number()))
-                };
+                    kind_of_quotient(qa.kind, qb.kind, dim, cb)
+                }
+                .map_err(|c| kind_clash(c, whole, a, qa, b, qb))?;
                 let o = em.bin(if op == BinOp::Mul { Op::Mul } else { Op::Div }, x, y);
                 Ok(Val::Scalar(o, Quantity::new(dim, k)))
             }
@@ -124,7 +121,19 @@ impl Lowerer<'_> {
                 Ok(Val::Scalar(o, Quantity::new(d, k)))
             }
             BinOp::Angle => {
-                if !qb.dim.is_none() || qb.kind == Kind::PerUnit {
+                if matches!(qa.kind, Kind::RealPower | Kind::ReactivePower) {
+                    return Err(Diagnostic::error(
+                        ErrorCode::KindMismatch,
+                        whole.span,
+                        format!(
+                            "{} is a real number and has no angle: only a complex power (VA) has one",
+                            qa.describe()
+                        ),
+                    )
+                    .with_label("W and var are the parts of S = P + jQ")
+                    .with_hint("write the magnitude in VA: `100 kVA ∠ 30°`"));
+                }
+                if !qb.dim.is_none() || !matches!(qb.kind, Kind::Plain | Kind::Angle) {
                     return Err(Diagnostic::error(
                         ErrorCode::DimensionMismatch,
                         b.span,
@@ -217,4 +226,19 @@ impl Lowerer<'_> {
         )
         .with_hint("divide by the unit first, e.g. `(x / 1 V)^p`"))
     }
+}
+
+/// The error for two kinds that do not combine, pointing at both operands.
+fn kind_clash(c: KindClash, whole: &Expr, a: &Expr, qa: Quantity, b: &Expr, qb: Quantity) -> Diagnostic {
+    let code = if c.angle {
+        ErrorCode::AngleAmbiguous
+    } else {
+        ErrorCode::KindMismatch
+    };
+    let mut d = Diagnostic::error(code, whole.span, c.message)
+        .with_secondary(a.span, qa.describe())
+        .with_label(qb.describe())
+        .with_hint(c.hint);
+    d.span = Some(b.span);
+    d
 }

@@ -39,6 +39,21 @@ impl Lowerer<'_> {
                     )
                     .with_hint("write the angle with its unit in the formula: `30°` or `0.52 rad`"));
                 }
+                if let Some(why) = display_kind_clash(q.kind, u.q.kind) {
+                    return Err(Diagnostic::error(
+                        ErrorCode::KindMismatch,
+                        display_span,
+                        format!(
+                            "`{}` is {}, but it is to be shown in {}",
+                            cell.name,
+                            q.describe(),
+                            u.symbol
+                        ),
+                    )
+                    .with_label(format!("{} is {}", u.symbol, u.q.describe()))
+                    .with_secondary(e.span, "the formula gives this")
+                    .with_hint(why));
+                }
                 let kind = if u.q.kind != Kind::Plain || q.kind == Kind::Angle {
                     u.q.kind
                 } else {
@@ -82,11 +97,20 @@ impl Lowerer<'_> {
         }
         kind_of_sum(ql.kind, qr.kind, ql.dim).map_err(|m| {
             Diagnostic::error(
-                ErrorCode::AngleAmbiguous,
+                if m.angle {
+                    ErrorCode::AngleAmbiguous
+                } else {
+                    ErrorCode::KindMismatch
+                },
                 c.rhs.span,
-                format!("cannot compare these: {m}"),
+                format!("cannot compare these: {}", m.message),
             )
-            .with_hint("give the angle its unit: `45°` or `0.785 rad`")
+            .with_secondary(c.lhs.span, ql.describe())
+            .with_hint(if m.angle {
+                "give the angle its unit: `45°` or `0.785 rad`"
+            } else {
+                m.hint
+            })
         })?;
         let (t, tol) = match &c.tol {
             Tolerance::Relative(f, span) => {
@@ -163,7 +187,12 @@ impl Lowerer<'_> {
                 };
                 match unit {
                     None => Ok(Val::Scalar(Operand::Const(c), Quantity::PLAIN)),
-                    Some(u) => Ok(Val::Scalar(Operand::Const(c * u.unit.factor), u.unit.q)),
+                    Some(u) => {
+                        if *imag {
+                            imaginary_in_real_kind(u, e.span)?;
+                        }
+                        Ok(Val::Scalar(Operand::Const(c * u.unit.factor), u.unit.q))
+                    }
                 }
             }
             ExprKind::Paren(inner, unit) => {
@@ -181,6 +210,11 @@ impl Lowerer<'_> {
                     )
                     .with_secondary(inner.span, q.describe())
                     .with_hint("the bracket already has a unit; to convert, divide: `x / 1 kV`"));
+                }
+                // `(1 ∠ 180°) W` is -1 W: an imaginary part at rounding
+                // level (|im| ≤ 1e-12·|z|) is no imaginary part.
+                if o.konst().is_some_and(|c| c.im.abs() > 1e-12 * c.norm()) {
+                    imaginary_in_real_kind(u, e.span)?;
                 }
                 let f = em.konst(u.unit.factor, 0.0);
                 Ok(Val::Scalar(em.bin(Op::Mul, o, f), u.unit.q))
@@ -392,4 +426,46 @@ impl Lowerer<'_> {
             }
         }
     }
+}
+
+/// Why a value of kind `have` cannot be shown in a unit of kind `shown`
+/// (same dimension), if it cannot. A display unit declares what a value is,
+/// so a complex power may be shown in W or var (the sheet says which part
+/// it stands for), but a real power is never shown as reactive or the
+/// other way round, a reactive power never as VA, and only a level in dB is
+/// shown in dB.
+fn display_kind_clash(have: Kind, shown: Kind) -> Option<&'static str> {
+    use Kind::*;
+    match (have, shown) {
+        (RealPower, ReactivePower) | (ReactivePower, RealPower) => {
+            Some("a real power (W) and a reactive power (var) are different parts of S = P + jQ")
+        }
+        (ReactivePower, ApparentPower) => Some("Q in VA would read as a complex power; for S write `P + j*Q`"),
+        (Decibel, k) if k != Decibel => Some("a level in decibels is shown in dB"),
+        (k, Decibel) if k != Decibel => {
+            Some("a ratio is not a level: write `db_v(r)` for a voltage or current ratio, `db_p(r)` for a power ratio")
+        }
+        _ => None,
+    }
+}
+
+/// W and var are real numbers (the parts of S = P + jQ): a literal with an
+/// imaginary part in one of them would be read two ways (`j225 kvar` as
+/// S = j225 kVA, or as Q = 225 kvar?), so it is refused.
+fn imaginary_in_real_kind(u: &UnitRef, span: Span) -> R<()> {
+    if !matches!(u.unit.q.kind, Kind::RealPower | Kind::ReactivePower) {
+        return Ok(());
+    }
+    let what = if u.unit.q.kind == Kind::RealPower {
+        "a real power (W)"
+    } else {
+        "a reactive power (var)"
+    };
+    Err(Diagnostic::error(
+        ErrorCode::KindMismatch,
+        span,
+        format!("{what} is a real number and cannot have an imaginary part"),
+    )
+    .with_label(format!("`{}` is {what}", u.unit.symbol))
+    .with_hint("a complex power is in VA (`300 kW + j225 kVA`); or write `P + j*Q` with Q in var"))
 }
