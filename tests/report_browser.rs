@@ -2,8 +2,9 @@
 //! its DOM is checked (the checks table, a result value), a screenshot is
 //! saved and the page is printed to PDF.
 //!
-//! .ci/run installs Chromium from the system packages; only where it cannot
-//! be installed does this test stop early, saying so.
+//! .ci/run installs Chromium from the system packages. Under CI (`CI=true`)
+//! a missing Chromium fails this test; elsewhere it is skipped and the skip
+//! is shown in the test output (`common::outside`).
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
@@ -11,21 +12,6 @@ use std::time::{Duration, Instant};
 
 use crate::common::ohmsheet;
 use crate::report::{folder, LIB, SHEET};
-
-fn browser() -> Option<PathBuf> {
-    if let Some(p) = std::env::var_os("OHMSHEET_CHROMIUM") {
-        return Some(PathBuf::from(p));
-    }
-    for name in ["chromium", "chromium-browser"] {
-        for dir in std::env::split_paths(&std::env::var_os("PATH").unwrap_or_default()) {
-            let p = dir.join(name);
-            if p.is_file() {
-                return Some(p);
-            }
-        }
-    }
-    None
-}
 
 /// Run the browser headless with a fresh profile; its stdout.
 fn chromium(bin: &Path, profile: &Path, extra: &[String], page: &Path) -> String {
@@ -67,11 +53,13 @@ fn chromium(bin: &Path, profile: &Path, extra: &[String], page: &Path) -> String
 
 #[test]
 fn html_report_in_a_real_browser() {
-    let Some(bin) = browser() else {
-        eprintln!(
-            "SKIPPED html_report_in_a_real_browser: no Chromium found on PATH \
-             (install it with `apt-get install chromium`, as .ci/run does, or set OHMSHEET_CHROMIUM)"
-        );
+    let Some(bin) = crate::common::outside::need(
+        "report_browser::html_report_in_a_real_browser",
+        "Chromium",
+        &["chromium", "chromium-browser"],
+        "OHMSHEET_CHROMIUM",
+        "apt-get install chromium",
+    ) else {
         return;
     };
     let d = folder(&[("rl.ohm", SHEET), ("lib/parts.ohm", LIB)]);
@@ -140,4 +128,55 @@ fn html_report_in_a_real_browser() {
     );
     let bytes = std::fs::read(&pdf).expect("PDF written");
     assert!(bytes.starts_with(b"%PDF-"), "not a PDF");
+}
+
+/// The rule for tests that need an outside program: under CI a missing
+/// program is a failure, outside CI a skip; a present one runs.
+#[test]
+fn a_missing_program_fails_under_ci_and_is_skipped_elsewhere() {
+    use crate::common::outside::{decide, under_ci, Outcome};
+    let p = PathBuf::from("/usr/bin/chromium");
+    assert_eq!(decide(Some(p.clone()), Some("true")), Outcome::Run(p.clone()));
+    assert_eq!(decide(Some(p.clone()), None), Outcome::Run(p));
+    assert_eq!(decide(None, Some("true")), Outcome::Fail);
+    assert_eq!(decide(None, Some("TRUE")), Outcome::Fail);
+    assert_eq!(decide(None, Some("1")), Outcome::Fail);
+    assert_eq!(decide(None, None), Outcome::Skip);
+    assert_eq!(decide(None, Some("false")), Outcome::Skip);
+    assert!(!under_ci(Some("")));
+}
+
+/// Run outside CI without the browser, the test binary says the test was
+/// skipped, after the summary line (not hidden in captured output); under
+/// CI=true the same run fails.
+#[test]
+fn a_skipped_browser_test_is_shown_and_fails_under_ci() {
+    let exe = std::env::current_exe().unwrap();
+    let run = |ci: Option<&str>| {
+        let mut cmd = Command::new(&exe);
+        cmd.args([
+            "--exact",
+            "report_browser::html_report_in_a_real_browser",
+            "--test-threads=1",
+        ])
+        .env("PATH", "/nonexistent")
+        .env_remove("OHMSHEET_CHROMIUM")
+        .env_remove("CI");
+        if let Some(v) = ci {
+            cmd.env("CI", v);
+        }
+        cmd.output().unwrap()
+    };
+    let out = run(None);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(out.status.success(), "{err}");
+    assert!(
+        err.contains("SKIPPED report_browser::html_report_in_a_real_browser: no Chromium"),
+        "{err}"
+    );
+    assert!(err.contains("SKIPPED 1 test for want of an outside program"), "{err}");
+    let ci = run(Some("true"));
+    assert!(!ci.status.success());
+    let text = String::from_utf8_lossy(&ci.stdout);
+    assert!(text.contains("this is a CI run"), "{text}");
 }

@@ -3,6 +3,8 @@
 
 use std::path::PathBuf;
 
+pub mod outside;
+
 use num_complex::Complex64 as C64;
 use ohmsheet::engine::{compile, Engine, Model};
 use ohmsheet::sheet::Sheet;
