@@ -83,13 +83,29 @@ pub fn functions_listing() -> String {
 /// The unit symbols and prefixes.
 pub fn units_listing() -> String {
     let mut out = String::from("units:    ");
-    out.push_str(&crate::units::table::all_symbols().collect::<Vec<_>>().join("  "));
+    // Each spelling once; a look-alike that reads as another spelling is
+    // on a line of its own.
+    let mut symbols: Vec<&str> = Vec::new();
+    for s in crate::units::table::all_symbols() {
+        if !symbols.contains(&s) {
+            symbols.push(s);
+        }
+    }
+    out.push_str(&symbols.join("  "));
     out.push_str("\nprefixes: ");
+    let look_alike = |p: &str| {
+        crate::units::lookalike::ACCEPTED
+            .iter()
+            .any(|a| p.starts_with(a.reads_as))
+    };
     let p: Vec<String> = crate::units::table::PREFIXES
         .iter()
+        .filter(|(p, _)| !look_alike(p))
         .map(|(p, f)| format!("{p}={f:e}"))
         .collect();
     out.push_str(&p.join("  "));
+    out.push_str("\nequivalent: ");
+    out.push_str(&crate::units::lookalike::listing());
     out.push_str(
         "\n\nA prefix glued to a number scales it (4.7k, 10u, 5m = 0.005); a unit follows a number\n\
          or a bracket (20 Ω, 4.7 µF, (6 + j10) Ω). Compound units: Ω/km, rad/s, m^2.\n\

@@ -3,6 +3,7 @@
 pub mod dim;
 pub mod format;
 pub mod kind;
+pub mod lookalike;
 pub mod table;
 
 pub use dim::Dim;

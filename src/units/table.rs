@@ -42,7 +42,7 @@ const DEG: f64 = std::f64::consts::PI / 180.0;
 
 const BASE_UNITS: &[BaseUnit] = &[
     BaseUnit {
-        symbols: &["Ω", "Ω", "ohm"],
+        symbols: &["Ω", "ohm"],
         dim: Dim::IMPEDANCE,
         factor: 1.0,
         kind: Kind::Plain,
@@ -272,6 +272,9 @@ fn suggestion_pool() -> Vec<String> {
 
 /// Look up one unit word, with an optional SI prefix: `kV`, `µF`, `Ω`.
 pub fn lookup_unit(word: &str) -> Result<Unit, UnitError> {
+    // The ohm sign U+2126 is Ω (see `lookalike`).
+    let folded = super::lookalike::fold(word);
+    let word: &str = &folded;
     for u in BASE_UNITS {
         if u.symbols.contains(&word) {
             return Ok(Unit {
@@ -299,6 +302,7 @@ pub fn lookup_unit(word: &str) -> Result<Unit, UnitError> {
 
 fn unknown(word: &str) -> UnitError {
     let hint = match word {
+        w if super::lookalike::hint(w).is_some() => super::lookalike::hint(w),
         "K" => Some("kilo is a lowercase `k` (4.7k, 4.7 kΩ); kelvin is not a unit here".to_string()),
         "ohms" | "Ohm" | "Ohms" => Some("write `Ω` or `ohm`".to_string()),
         "mho" | "mhos" => Some("admittance is in siemens, `S`".to_string()),
@@ -352,6 +356,8 @@ fn split_power(item: &str) -> Result<(&str, i32), UnitError> {
 /// factors joined by `*`, `·` or `/`, each with an optional integer power.
 /// Everything after the first `/` is in the denominator (`W/m/s` is W/(m·s)).
 pub fn parse_unit_expr(text: &str) -> Result<Unit, UnitError> {
+    let folded = super::lookalike::fold(text);
+    let text: &str = &folded;
     if text == "m" {
         return Err(UnitError::AmbiguousMetre);
     }

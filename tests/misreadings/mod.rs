@@ -5,4 +5,5 @@
 mod angle;
 mod display;
 mod kinds;
+mod lookalikes;
 mod numerics;

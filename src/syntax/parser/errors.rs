@@ -68,7 +68,13 @@ pub(super) fn syntax_error(line: &str, e: pest::error::Error<Rule>, file: FileId
     }
     // Targeted hints for common slips.
     let before = line[..pos.min(line.len())].trim_end();
-    if rest.starts_with('*') && before.ends_with('*') {
+    let look_alike = rest
+        .chars()
+        .next()
+        .and_then(|c| crate::units::lookalike::hint(c.encode_utf8(&mut [0; 4])));
+    if let Some(h) = look_alike {
+        d = d.with_hint(h);
+    } else if rest.starts_with('*') && before.ends_with('*') {
         d = d.with_hint(power_hint(before, rest));
     } else if rest.starts_with("=>") {
         d = d.with_hint("greater than or equal is written `>=` (or `≥`)");
