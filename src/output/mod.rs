@@ -219,17 +219,65 @@ pub fn to_csv(cells: &[CellRow]) -> String {
     String::from_utf8(w.into_inner().unwrap_or_default()).unwrap_or_default()
 }
 
-/// A float written so it reads back to the same bits.
+/// A float written so it reads back to the same bits, as a plain decimal
+/// (`60`, `0`, `0.5`, `-3.25`) for 1e-5 ≤ |x| < 1e16 and in exponent form
+/// (`1.5e-7`, `2e20`) outside that range; `NaN`, `inf`, `-inf`.
 pub fn num(x: f64) -> String {
-    if x.is_nan() {
-        "NaN".into()
-    } else if x.is_infinite() {
-        if x > 0.0 {
-            "inf".into()
-        } else {
-            "-inf".into()
-        }
+    let mut b = ryu::Buffer::new();
+    let mut out = Vec::new();
+    write_num(&mut out, &mut b, x);
+    String::from_utf8(out).unwrap_or_default()
+}
+
+/// `num` into a byte buffer, for writers of many rows.
+#[inline]
+pub fn write_num(out: &mut Vec<u8>, buf: &mut ryu::Buffer, x: f64) {
+    if x.is_finite() {
+        // ryu gives the shortest digits that read back, as a decimal
+        // in [1e-5, 1e16) and in exponent form outside it.
+        let s = buf.format_finite(x);
+        let s = s.strip_suffix(".0").unwrap_or(s);
+        out.extend_from_slice(if s == "-0" { b"0" } else { s.as_bytes() });
+    } else if x.is_nan() {
+        out.extend_from_slice(b"NaN");
+    } else if x > 0.0 {
+        out.extend_from_slice(b"inf");
     } else {
-        format!("{x:e}")
+        out.extend_from_slice(b"-inf");
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::num;
+
+    // Plain decimals as spreadsheets and people write them (common
+    // practice); every string reads back to the same bits (Rust's f64
+    // parser is correctly rounded).
+    #[test]
+    fn csv_numbers_are_plain_decimals() {
+        for (x, want) in [
+            (60.0, "60"),
+            (0.0, "0"),
+            (-0.0, "0"),
+            (0.5, "0.5"),
+            (-3.25, "-3.25"),
+            (1e-5, "0.00001"),
+            (9.99e-6, "9.99e-6"),
+            (1.5e-7, "1.5e-7"),
+            (123456789012345.6, "123456789012345.6"),
+            (9.999e15, "9999000000000000"),
+            (1e16, "1e16"),
+            (2.5e20, "2.5e20"),
+            (0.1 + 0.2, "0.30000000000000004"),
+            (f64::NAN, "NaN"),
+            (f64::INFINITY, "inf"),
+            (f64::NEG_INFINITY, "-inf"),
+        ] {
+            assert_eq!(num(x), want, "{x:e}");
+            if x.is_finite() {
+                assert_eq!(num(x).parse::<f64>().unwrap().to_bits(), (x + 0.0).to_bits());
+            }
+        }
     }
 }

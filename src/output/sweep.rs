@@ -138,15 +138,7 @@ impl<W: Write> CsvRows<W> {
 
     #[inline]
     fn num(&mut self, x: f64) {
-        if x.is_finite() {
-            self.line.extend_from_slice(self.buf.format_finite(x).as_bytes());
-        } else if x.is_nan() {
-            self.line.extend_from_slice(b"NaN");
-        } else if x > 0.0 {
-            self.line.extend_from_slice(b"inf");
-        } else {
-            self.line.extend_from_slice(b"-inf");
-        }
+        super::write_num(&mut self.line, &mut self.buf, x);
     }
 
     /// One row: the axis values (SI) and the shown values (SI).

@@ -30,7 +30,11 @@ pub fn cells_table(model: &Model, cells: &[CellRow]) -> String {
                 c.name.clone()
             };
             // The polar form of a real number says nothing new.
-            let polar = if c.im == 0.0 { String::new() } else { c.polar.clone() };
+            let polar = if c.polar == c.display {
+                String::new()
+            } else {
+                c.polar.clone()
+            };
             // Cells from an included library sheet say where they came from.
             let main = model.sources.files().first().map(|f| f.name.as_str());
             let formula = if main.is_some_and(|m| m != c.file) {

@@ -259,7 +259,14 @@ pub fn format_value(z: C64, q: Quantity, display: Option<&Unit>, style: Style) -
     };
     let is_angle_unit = unit == "°" || unit == "deg";
     let rect = join_unit(&rect_string(scaled, style.digits), &unit, is_angle_unit);
-    let polar = join_unit(&polar_string(scaled, style.digits), &unit, is_angle_unit);
+    // A real value has no polar form of its own: `3 Ω`, not `3 ∠ 0° Ω`,
+    // and `-5 V`, not `5 ∠ 180° V` (common practice: a phasor angle is
+    // given for a phasor).
+    let polar = if is_real(scaled) {
+        rect.clone()
+    } else {
+        join_unit(&polar_string(scaled, style.digits), &unit, is_angle_unit)
+    };
     Formatted { rect, polar, unit }
 }
 
@@ -377,6 +384,14 @@ fn trim_zeros(s: &str) -> String {
     } else {
         s.to_string()
     }
+}
+
+/// The value has no imaginary part beyond rounding noise (see
+/// `rect_string`), so it is shown as a real number.
+pub fn is_real(z: C64) -> bool {
+    let mag = z.norm();
+    let noise = if mag.is_finite() { mag * 1e-12 } else { 0.0 };
+    z.im == 0.0 || (z.im.abs() <= noise && !z.re.is_nan())
 }
 
 /// `a + jb` form. A part smaller than 1e-12 of the magnitude is rounding

@@ -82,3 +82,96 @@ fn no_base_unit_strings_where_named_units_fit() {
     assert_eq!(get("V2"), "52900 V²");
     assert_eq!(get("P2"), "2500 kW²");
 }
+
+// ------------------------------------------------- real values, CSV numbers
+
+// A real value has no polar form of its own: `3 Ω`, not `3 ∠ 0° Ω`
+// (common practice: a magnitude and angle are given for a phasor). A
+// phasor keeps both forms.
+#[test]
+fn real_values_are_not_shown_at_zero_degrees() {
+    let src = "R = 3 Ω\nV = -5 V\nZ = 3 Ω + j4 Ω\nI = 10 A ∠ 90°\n";
+    let rs = rows(src);
+    let get = |n: &str| rs.iter().find(|r| r.name == n).unwrap().clone();
+    assert_eq!(get("R").polar, "3 Ω");
+    assert_eq!(get("V").polar, "-5 V");
+    assert_eq!(get("Z").polar, "5 ∠ 53.13° Ω");
+    // cos 90° is not exactly 0: the real part is rounding noise, and
+    // j10 A is not a real value.
+    assert_eq!(get("I").polar, "10 ∠ 90° A");
+    // The same through the JSON of `run` and its table.
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("s.ohm");
+    std::fs::write(&sheet, src).unwrap();
+    let out = ohmsheet()
+        .args(["run", "--format", "json"])
+        .arg(&sheet)
+        .output()
+        .unwrap();
+    let doc: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    for c in doc["cells"].as_array().unwrap() {
+        let polar = c["polar"].as_str().unwrap();
+        assert!(!polar.contains("∠ 0°") && !polar.contains("∠ 180°"), "{polar}");
+    }
+    let out = ohmsheet().arg("run").arg(&sheet).output().unwrap();
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(!text.contains("∠ 0°") && !text.contains("∠ 180°"), "{text}");
+    assert!(text.contains("5 ∠ 53.13° Ω"), "{text}");
+}
+
+// `/show polar` in a session shows a real value once, a phasor in polar.
+#[test]
+fn session_polar_view_shows_real_values_once() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("s.ohm");
+    std::fs::write(&sheet, "R = 3 Ω\nZ = R + j4 Ω\n").unwrap();
+    let (mut s, _) =
+        ohmsheet::session::state::Session::open(Some(&sheet), Some(dir.path().join("data")), false).unwrap();
+    assert!(!s.handle("/show polar").refused);
+    let r = s.handle("R").text;
+    assert!(r.contains("3 Ω") && !r.contains('∠'), "{r}");
+    let z = s.handle("Z").text;
+    assert!(z.contains("5 ∠ 53.13° Ω"), "{z}");
+}
+
+// Numbers in CSV are plain decimals, as spreadsheets and people write
+// them (`60`, `0`, not `6e1`, `0e0`), in exponent form only below 1e-5
+// or from 1e16 (common practice); each reads back to the same double.
+#[test]
+fn csv_numbers_are_plain_decimals() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("s.ohm");
+    std::fs::write(&sheet, "f = 60 Hz\nC = 0.5 µF\nz = 0\nV = 480 V\n").unwrap();
+    let out = ohmsheet()
+        .args(["run", "--format", "csv"])
+        .arg(&sheet)
+        .output()
+        .unwrap();
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(text.contains("\nf,60 Hz,Hz,60,0,"), "{text}");
+    assert!(text.contains("\nC,0.5 µF,F,5e-7,0,"), "{text}");
+    assert!(text.contains("\nz,0,,0,0,"), "{text}");
+    assert!(
+        !text.contains("e0") && !text.contains("e1,") && !text.contains("e2,"),
+        "{text}"
+    );
+    // A sweep's CSV too.
+    let out = ohmsheet()
+        .args([
+            "sweep",
+            "--vary",
+            "f=50Hz..60Hz",
+            "--points",
+            "3",
+            "--show",
+            "V",
+            "--csv",
+            "-",
+        ])
+        .arg(&sheet)
+        .output()
+        .unwrap();
+    let text = String::from_utf8(out.stdout).unwrap();
+    let lines: Vec<&str> = text.lines().collect();
+    assert_eq!(lines[1..], ["50,480,0", "55,480,0", "60,480,0"], "{text}");
+}

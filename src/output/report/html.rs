@@ -1,8 +1,6 @@
 //! The report as one self-contained HTML file.
 
-use super::layout::{
-    check_summary, file_contents, is_real_positive, lower_first, same_text, show_substituted, STEPS_INTRO,
-};
+use super::layout::{check_summary, file_contents, lower_first, one_form, same_text, show_substituted, STEPS_INTRO};
 use super::Report;
 
 fn esc(s: &str) -> String {
@@ -152,7 +150,7 @@ pub fn html(r: &Report) -> String {
             } else {
                 format!("<code>{}</code>", esc(&i.written))
             };
-            let value = if is_real_positive(&i.value) {
+            let value = if one_form(&i.value) {
                 esc(&i.value.rect)
             } else {
                 format!("{}<br>{}", esc(&i.value.rect), esc(&i.value.polar))
@@ -200,7 +198,7 @@ pub fn html(r: &Report) -> String {
         if s.results.len() == 1 {
             let v = &s.results[0].value;
             row(&mut o, "result rect", "", &esc(&v.rect));
-            if !is_real_positive(v) {
+            if !one_form(v) {
                 row(&mut o, "result polar", "", &esc(&v.polar));
             }
         } else {
@@ -209,7 +207,11 @@ pub fn html(r: &Report) -> String {
                     &mut o,
                     "result field",
                     &esc(&res.name),
-                    &format!("{} &nbsp;=&nbsp; {}", esc(&res.value.rect), esc(&res.value.polar)),
+                    &if one_form(&res.value) {
+                        esc(&res.value.rect)
+                    } else {
+                        format!("{} &nbsp;=&nbsp; {}", esc(&res.value.rect), esc(&res.value.polar))
+                    },
                 );
             }
         }

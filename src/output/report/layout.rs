@@ -33,8 +33,10 @@ pub(super) fn same_text(a: &str, b: &str) -> bool {
     norm(a) == norm(b)
 }
 
-pub(super) fn is_real_positive(v: &Value) -> bool {
-    v.im == Some(0.0) && v.re.is_some_and(|x| x >= 0.0)
+/// A real value has one form: its polar form is its rectangular form
+/// (no `∠ 0°`).
+pub(super) fn one_form(v: &Value) -> bool {
+    v.polar == v.rect
 }
 
 /// The hand-calculation lines of a step, `=` signs aligned:
@@ -55,7 +57,7 @@ pub(super) fn equation_lines(s: &Step) -> Vec<String> {
     if s.results.len() == 1 {
         let val = &s.results[0].value;
         v.push(format!("{pad} = {}", val.rect));
-        if !is_real_positive(val) {
+        if !one_form(val) {
             v.push(format!("{pad} = {}", val.polar));
         }
     } else {
@@ -67,10 +69,14 @@ pub(super) fn equation_lines(s: &Step) -> Vec<String> {
             .unwrap_or(0);
         for r in &s.results {
             let gap = " ".repeat(w - UnicodeWidthStr::width(r.name.as_str()));
-            v.push(format!(
-                "{pad}   {}{gap} = {}  =  {}",
-                r.name, r.value.rect, r.value.polar
-            ));
+            if one_form(&r.value) {
+                v.push(format!("{pad}   {}{gap} = {}", r.name, r.value.rect));
+            } else {
+                v.push(format!(
+                    "{pad}   {}{gap} = {}  =  {}",
+                    r.name, r.value.rect, r.value.polar
+                ));
+            }
         }
     }
     v
@@ -86,7 +92,7 @@ pub(super) fn show_substituted(s: &Step) -> bool {
 /// What a step shows, said once before the steps.
 pub(super) const STEPS_INTRO: &str = "Each step gives the formula as written, the formula with the value and unit of \
 each quantity put in its place, and the result. A complex result is given in rectangular form \
-(a + jb) and in polar form (magnitude ∠ angle); a real, positive result is its own magnitude at 0°.";
+(a + jb) and in polar form (magnitude ∠ angle); a real result is given once.";
 
 pub(super) fn check_summary(r: &Report) -> String {
     let failed = r.checks.iter().filter(|c| !c.passed).count();

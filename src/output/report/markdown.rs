@@ -1,8 +1,6 @@
 //! The report as Markdown.
 
-use super::layout::{
-    check_summary, equation_lines, file_contents, is_real_positive, lower_first, same_text, STEPS_INTRO,
-};
+use super::layout::{check_summary, equation_lines, file_contents, lower_first, one_form, same_text, STEPS_INTRO};
 use super::Report;
 
 /// Text for a Markdown paragraph or table cell: characters that start
@@ -132,7 +130,7 @@ pub fn markdown_with_plot_files(r: &Report, plot_files: &[String]) -> String {
             } else {
                 md_code(&i.written)
             };
-            let value = if is_real_positive(&i.value) {
+            let value = if one_form(&i.value) {
                 md_text(&i.value.rect)
             } else {
                 format!("{}<br>{}", md_text(&i.value.rect), md_text(&i.value.polar))
