@@ -91,7 +91,7 @@ fn csv_format() {
         .assert()
         .code(0)
         .stdout(predicate::str::starts_with(
-            "name,formula,unit,re,im,display,polar\nR,5 Ω,Ω,5e0,0e0,5 Ω,",
+            "name,formula,unit,re,im,display,polar\nR,5 Ω,Ω,5,0,5 Ω,",
         ));
 }
 
