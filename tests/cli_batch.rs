@@ -206,9 +206,17 @@ fn bad_rows_are_reported_and_the_rest_computed() {
         .collect();
     assert_eq!(
         cols,
-        [("2", "V", "12O V"), ("3", "V", "120 A"), ("4", "", ""), ("5", "I", "")]
+        [
+            ("2", "V", "12O V"),
+            ("3", "V", "120 A"),
+            ("4", "", ""),
+            ("5", "I", ""),
+            ("5", "G", "")
+        ]
     );
     assert!(errs[4][4].contains("NaN"), "{:?}", errs[4]);
+    // G = 1 / I is NaN because I is: the reason names where it started.
+    assert!(errs[5][4].contains("because it uses `I`"), "{:?}", errs[5]);
 }
 
 #[test]

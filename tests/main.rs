@@ -3,6 +3,7 @@
 
 mod common;
 
+mod batch_cases;
 mod block_lanes;
 mod check_cmd;
 mod cli_batch;

@@ -13,11 +13,13 @@
 //! reported with its row, column and reason, and the other rows go on.
 
 mod cases;
+mod reason;
 mod rows;
 mod stream;
 mod values;
 
 pub use cases::{Cases, Row, Rows};
+pub use reason::nan_reason;
 pub use rows::{csv_line, RowError, Worker};
 #[cfg(unix)]
 pub use stream::run_stream_at;
@@ -48,6 +50,8 @@ pub enum ComplexForm {
 pub struct CaseColumn {
     /// The header as written.
     pub header: String,
+    /// Its place among the fields of a row.
+    pub field: usize,
     pub name: String,
     pub cell: CellId,
     pub slot: u32,
@@ -84,9 +88,16 @@ pub struct Shown {
 #[derive(Clone, Debug)]
 pub struct Plan {
     pub model: Arc<Model>,
+    /// Every header of the cases table, as written: the inputs a case
+    /// sets and the tags carried through.
+    pub headers: Vec<String>,
+    /// The columns that set inputs (tags have none).
     pub columns: Vec<CaseColumn>,
     pub shown: Vec<Shown>,
     pub form: ComplexForm,
+    /// Significant digits of the written values; `None` writes each
+    /// number with the digits it takes to read back to the same bits.
+    digits: Option<usize>,
 }
 
 const DEG: f64 = std::f64::consts::PI / 180.0;
@@ -163,16 +174,115 @@ fn quantity_mismatch(name: &str, want: Quantity, got: Quantity) -> Option<String
     None
 }
 
+/// The units of `want`'s dimension, the common prefixed forms included:
+/// where a suggestion for a mistyped unit is looked for (`6 mi` for a
+/// length is not answered with minutes).
+fn units_like(want: Quantity) -> Vec<String> {
+    let mut v: Vec<String> = Vec::new();
+    for p in ["", "k", "m", "M", "u", "µ", "n", "p", "G"] {
+        for s in crate::units::table::all_symbols() {
+            // `m` alone is refused as ambiguous; long names take no prefix
+            // in suggestions.
+            let w = format!("{p}{s}");
+            if w == "m" || (!p.is_empty() && s.chars().count() > 3) || v.contains(&w) {
+                continue;
+            }
+            if crate::units::lookup_unit(&w).is_ok_and(|u| u.q.dim == want.dim) {
+                v.push(w);
+            }
+        }
+    }
+    v
+}
+
+/// A unit error worded for an input of quantity `want`: a did-you-mean
+/// only among units of its dimension, else a few such units.
+pub(crate) fn unit_error_for(text: &str, e: UnitError, name: &str, want: Quantity) -> String {
+    let UnitError::Unknown { word, hint, .. } = e else {
+        return unit_error_text(text, e);
+    };
+    let like = units_like(want);
+    let mut s = format!("unknown unit `{word}` in `{text}`");
+    if let Some(h) = hint {
+        s.push_str(&format!("; {h}"));
+    }
+    // Two letters are too few to guess from (`mi` is neither `mm` nor `min`).
+    let guess = if word.chars().count() > 2 {
+        did_you_mean(&word, like.iter().map(String::as_str))
+    } else {
+        None
+    };
+    match guess {
+        Some(x) => s.push_str(&format!(" (did you mean `{x}`?)")),
+        None if want.is_plain_number() => s.push_str(&format!("; `{name}` is a plain number")),
+        None if !like.is_empty() => {
+            let few: Vec<&str> = like.iter().take(6).map(String::as_str).collect();
+            s.push_str(&format!(
+                "; `{name}` is {}: units such as {}",
+                want.describe(),
+                few.join(", ")
+            ));
+        }
+        None => s.push_str(&format!("; `{name}` is {}", want.describe())),
+    }
+    s
+}
+
 impl Plan {
     /// Match the cases table's `headers` to the sheet's inputs and choose
-    /// the shown values (`show`, or every computed cell).
+    /// the shown values (`show`, or every computed cell). Every column
+    /// must name an input; see [`Plan::with_tags`] for tag columns.
     pub fn new(
         model: Arc<Model>,
         headers: &[String],
         show: Option<&[String]>,
         form: ComplexForm,
     ) -> Result<Plan, Diagnostic> {
+        Plan::build(model, headers, None, show, form)
+    }
+
+    /// [`Plan::new`], where a column that names no input is a tag, carried
+    /// through to the results unchanged, unless its name is close to an
+    /// input's (a typo: an error with its did-you-mean) or its header
+    /// gives a unit. The columns named in `tags` are tags whatever their
+    /// name.
+    pub fn with_tags(
+        model: Arc<Model>,
+        headers: &[String],
+        tags: &[String],
+        show: Option<&[String]>,
+        form: ComplexForm,
+    ) -> Result<Plan, Diagnostic> {
+        Plan::build(model, headers, Some(tags), show, form)
+    }
+
+    fn build(
+        model: Arc<Model>,
+        headers: &[String],
+        tags: Option<&[String]>,
+        show: Option<&[String]>,
+        form: ComplexForm,
+    ) -> Result<Plan, Diagnostic> {
         let m = &*model;
+        let clean = |h: &str| h.trim_start_matches('\u{FEFF}').trim().to_string();
+        if let Some(tags) = tags {
+            for t in tags {
+                let t = t.trim();
+                let found = headers.iter().any(|h| {
+                    let h = clean(h);
+                    h == t || split_header(&h).is_ok_and(|(n, _)| n == t)
+                });
+                if !found {
+                    let all: Vec<String> = headers.iter().map(|h| clean(h)).collect();
+                    let mut d = plan_error(format!("--tag `{t}`: the cases table has no column `{t}`"));
+                    d = match did_you_mean(t, all.iter().map(String::as_str)) {
+                        Some(x) => d.with_hint(format!("did you mean `{x}`? its columns are: {}", all.join(", "))),
+                        None => d.with_hint(format!("its columns are: {}", all.join(", "))),
+                    };
+                    return Err(d);
+                }
+            }
+        }
         let inputs: Vec<&str> = m.inputs().map(|(_, c)| c.name.as_str()).collect();
         let list = || {
             if inputs.is_empty() {
@@ -181,8 +291,26 @@ impl Plan {
                 format!("the sheet's inputs are: {}", inputs.join(", "))
             }
         };
+        let tagging = tags.is_some();
+        let tag_hint = |name: &str| {
+            if tagging {
+                format!("; if it is a tag to carry through, name it with --tag \"{name}\"")
+            } else {
+                String::new()
+            }
+        };
         let mut columns: Vec<CaseColumn> = Vec::new();
-        for h in headers {
+        for (field, h) in headers.iter().enumerate() {
+            let whole = clean(h);
+            if let Some(tags) = tags {
+                let named = |t: &String| {
+                    let t = t.trim();
+                    t == whole || split_header(&whole).is_ok_and(|(n, _)| n == t)
+                };
+                if tags.iter().any(named) {
+                    continue;
+                }
+            }
             let (name, unit_text) = split_header(h)?;
             if name.is_empty() {
                 return Err(
@@ -190,9 +318,21 @@ impl Plan {
                 );
             }
             let Some(id) = m.id(name) else {
+                let close = did_you_mean(name, inputs.iter().copied());
+                // A column that names no input, is not close to one and
+                // gives no unit is a tag.
+                if tagging && close.is_none() && unit_text.is_none() {
+                    continue;
+                }
                 let mut d = plan_error(format!("column `{name}` names no input of the sheet"));
-                if let Some(s) = did_you_mean(name, inputs.iter().copied()) {
-                    d = d.with_hint(format!("did you mean `{s}`? {}", list()));
+                if let Some(s) = close {
+                    d = d.with_hint(format!("did you mean `{s}`? {}{}", list(), tag_hint(name)));
+                } else if unit_text.is_some() {
+                    d = d.with_hint(format!(
+                        "a column with a unit in its header sets an input; {}{}",
+                        list(),
+                        tag_hint(name)
+                    ));
                 } else {
                     d = d.with_hint(list());
                 }
@@ -204,7 +344,7 @@ impl Plan {
                     "column `{name}` names a computed cell (`{name} = {}`); a case can only set inputs",
                     c.formula
                 ))
-                .with_hint(list()));
+                .with_hint(format!("{}{}", list(), tag_hint(name))));
             }
             let Some(want) = c.quantity() else {
                 return Err(plan_error(format!(
@@ -224,7 +364,7 @@ impl Plan {
                 None => None,
                 Some(t) => {
                     let u = parse_unit_expr(t).map_err(|e| {
-                        plan_error(format!("column `{h}`: {}", unit_error_text(t, e)))
+                        plan_error(format!("column `{h}`: {}", unit_error_for(t, e, name, want)))
                             .with_hint(format!("`{name}` is {}", want.describe()))
                     })?;
                     if let Some(why) = quantity_mismatch(name, want, u.q) {
@@ -240,6 +380,7 @@ impl Plan {
             };
             columns.push(CaseColumn {
                 header: h.clone(),
+                field,
                 name: name.to_string(),
                 cell: id,
                 slot: c.slot,
@@ -330,12 +471,22 @@ impl Plan {
         }
         let mut plan = Plan {
             model,
+            headers: headers.to_vec(),
             columns,
             shown,
             form,
+            digits: None,
         };
         plan.fix_constants();
         Ok(plan)
+    }
+
+    /// Write values with `digits` significant digits (`None`: as many as
+    /// it takes to read each back to the same bits, the default).
+    pub fn with_digits(mut self, digits: Option<usize>) -> Plan {
+        self.digits = digits.map(|d| d.clamp(1, 17));
+        self.fix_constants();
+        self
     }
 
     /// Format once the shown values that no column of the cases reaches.
@@ -372,7 +523,7 @@ impl Plan {
     /// The header row of the results: the case's columns, then the shown
     /// values with their units.
     pub fn out_header(&self) -> Vec<String> {
-        let mut h: Vec<String> = self.columns.iter().map(|c| c.header.clone()).collect();
+        let mut h: Vec<String> = self.headers.clone();
         let with = |name: String, unit: &str| {
             if unit.is_empty() {
                 name

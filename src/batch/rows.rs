@@ -152,7 +152,7 @@ impl Plan {
         errors: &mut Vec<RowError>,
     ) {
         let prog = &self.model.program;
-        let ncols = self.columns.len();
+        let ncols = self.headers.len();
         for (g, first) in (0..rows.len()).step_by(LANES).enumerate() {
             let group = || (first..rows.len().min(first + LANES)).map(|i| rows.row(i)).enumerate();
             let mut ok = [true; LANES];
@@ -178,7 +178,7 @@ impl Plan {
                     continue;
                 }
                 for (k, col) in self.columns.iter().enumerate() {
-                    let text = rec.get(k).unwrap_or_default();
+                    let text = rec.get(col.field).unwrap_or_default();
                     match w.reader.read(self, k, text) {
                         Ok(z) => w.block.set(col.slot, lane, z),
                         Err(reason) => {
@@ -191,18 +191,23 @@ impl Plan {
             w.block.run(&prog.code, prog);
             let suspect = self.suspect_lanes(&w.block);
             for (lane, rec) in group() {
+                // A case whose values read but some of whose shown values
+                // are not numbers: those cells are left empty, the others
+                // written.
+                let mut marks = None;
                 if ok[lane] && suspect & (1 << lane) != 0 {
-                    if let Some(e) = self.nan_in_lane(&w.block, lane) {
-                        ok[lane] = false;
-                        let case = first_case + (g * LANES + lane) as u64 + 1;
+                    let (m, failed) = self.failed_cells(&w.block, lane);
+                    let case = first_case + (g * LANES + lane) as u64 + 1;
+                    for (column, reason) in failed {
                         errors.push(RowError {
                             case,
                             line: rec.line(),
-                            column: e.0,
+                            column,
                             value: String::new(),
-                            reason: e.1,
+                            reason,
                         });
                     }
+                    marks = Some(m);
                 }
                 // The case's own fields: as written, where that is how
                 // they are written back.
@@ -226,7 +231,11 @@ impl Plan {
                     out.push(b'\n');
                     continue;
                 }
-                self.write_shown(&w.block, lane, ncols > 0, out);
+                if marks.is_some() || self.digits.is_some() {
+                    self.write_shown_each(&w.block, lane, ncols > 0, marks.as_deref(), out);
+                } else {
+                    self.write_shown(&w.block, lane, ncols > 0, out);
+                }
                 out.push(b'\n');
             }
         }
@@ -237,10 +246,42 @@ impl Plan {
     /// One shown value: one number, or two joined by a comma.
     pub(super) fn write_value(&self, s: &Shown, z: C64, out: &mut Vec<u8>, num: &mut zmij::Buffer) {
         let (a, b) = self.numbers(s, z);
-        push_num(out, a, num);
+        self.push_number(out, a, num);
         if let Some(b) = b {
             out.push(b',');
-            push_num(out, b, num);
+            self.push_number(out, b, num);
+        }
+    }
+
+    /// A number with the plan's digits, or in full.
+    fn push_number(&self, out: &mut Vec<u8>, x: f64, num: &mut zmij::Buffer) {
+        match self.digits {
+            Some(d) if x.is_finite() => push_short(out, crate::units::format::fmt_sig(x, d).as_bytes()),
+            _ => push_num(out, x, num),
+        }
+    }
+
+    /// The shown values of `lane` one at a time (the general path of
+    /// [`Plan::write_shown`]): with the plan's digits, and an empty field
+    /// (two for a complex value) for each shown value marked in `marks`.
+    fn write_shown_each(&self, block: &Block, lane: usize, lead: bool, marks: Option<&[bool]>, out: &mut Vec<u8>) {
+        let mut num = zmij::Buffer::new();
+        let mut first = !lead;
+        for (i, s) in self.shown.iter().enumerate() {
+            if !first {
+                out.push(b',');
+            }
+            first = false;
+            if marks.is_some_and(|m| m[i]) {
+                if !s.real {
+                    out.push(b',');
+                }
+                continue;
+            }
+            match &s.fixed {
+                Some(text) => push_short(out, text),
+                None => self.write_value(s, block.get(s.slot, lane), out, &mut num),
+            }
         }
     }
 
@@ -322,47 +363,70 @@ impl Plan {
         bad.iter().enumerate().fold(0, |m, (l, &x)| m | (u64::from(x) << l))
     }
 
-    /// The first shown value of `lane` that is NaN, with where the NaN was
-    /// born (found by re-running the case one cell at a time).
-    fn nan_in_lane(&self, b: &Block, lane: usize) -> Option<(String, String)> {
-        let s = self.shown.iter().find(|s| {
-            let z = b.get(s.slot, lane);
-            z.re.is_nan() || z.im.is_nan() || (s.real && z.im != 0.0)
-        })?;
-        let z = b.get(s.slot, lane);
-        if !z.re.is_nan() && !z.im.is_nan() {
-            return Some((
-                s.label.clone(),
-                format!("`{}` has an imaginary part where none was expected", s.label),
-            ));
-        }
+    /// The shown values of `lane` that are not numbers (a mark for each
+    /// shown value), and for each such value its label and the reason: for
+    /// a NaN, the cell where it was born and why (found by re-running the
+    /// case one cell at a time, see [`super::reason::nan_reason`]).
+    fn failed_cells(&self, b: &Block, lane: usize) -> (Vec<bool>, Vec<(String, String)>) {
+        let marks: Vec<bool> = self
+            .shown
+            .iter()
+            .map(|s| {
+                let z = b.get(s.slot, lane);
+                s.fixed.is_none() && (z.re.is_nan() || z.im.is_nan() || (s.real && z.im != 0.0))
+            })
+            .collect();
         let m = &*self.model;
-        let prog = &m.program;
-        let mut slots = prog.init.clone();
-        for c in &self.columns {
-            slots[c.slot as usize] = b.get(c.slot, lane);
-        }
-        eval::run(&prog.code, prog, &mut slots);
-        let nan = |id: CellId| {
-            let c = &m.cells[id as usize];
-            slots[c.slot as usize..(c.slot + c.width) as usize]
+        let mut slots: Option<Vec<C64>> = None;
+        let mut failed = Vec::new();
+        for (s, _) in self.shown.iter().zip(&marks).filter(|(_, &bad)| bad) {
+            let z = b.get(s.slot, lane);
+            if !z.re.is_nan() && !z.im.is_nan() {
+                failed.push((
+                    s.label.clone(),
+                    format!("`{}` has an imaginary part where none was expected", s.label),
+                ));
+                continue;
+            }
+            let slots = slots.get_or_insert_with(|| {
+                let prog = &m.program;
+                let mut slots = prog.init.clone();
+                for c in &self.columns {
+                    slots[c.slot as usize] = b.get(c.slot, lane);
+                }
+                eval::run(&prog.code, prog, &mut slots);
+                slots
+            });
+            let nan = |id: CellId| {
+                let c = &m.cells[id as usize];
+                slots[c.slot as usize..(c.slot + c.width) as usize]
+                    .iter()
+                    .any(|z| z.re.is_nan() || z.im.is_nan())
+            };
+            // Back from the shown cell through NaN cells, earliest first,
+            // to one whose own inputs are all numbers.
+            let mut origin = s.cell;
+            while let Some(d) = m.cells[origin as usize]
+                .deps
                 .iter()
-                .any(|z| z.re.is_nan() || z.im.is_nan())
-        };
-        let origin = m.order.iter().copied().find(|&id| {
-            m.cells[id as usize].role == Role::Def && nan(id) && !m.cells[id as usize].deps.iter().any(|&d| nan(d))
-        });
-        let at = match origin {
-            Some(o) if o != s.cell => format!("; it starts at `{}`", m.cells[o as usize].name),
-            _ => String::new(),
-        };
-        Some((
-            s.label.clone(),
-            format!(
-                "`{}` is NaN (not a number){at}: look for 0/0, ∞ − ∞ or 0·∞ in this case",
-                s.label
-            ),
-        ))
+                .copied()
+                .filter(|&d| m.cells[d as usize].role == Role::Def && nan(d))
+                .min_by_key(|&d| m.rank[d as usize])
+            {
+                origin = d;
+            }
+            let why = super::reason::nan_reason(m, slots, origin);
+            let reason = if origin == s.cell {
+                why
+            } else {
+                format!(
+                    "not computed because it uses `{}`: {why}",
+                    m.cells[origin as usize].name
+                )
+            };
+            failed.push((s.label.clone(), reason));
+        }
+        (marks, failed)
     }
 }
 

@@ -4,7 +4,7 @@ use std::collections::HashMap;
 
 use num_complex::Complex64 as C64;
 
-use super::{quantity_mismatch, CaseColumn, Plan};
+use super::{quantity_mismatch, unit_error_for, CaseColumn, Plan};
 use crate::engine::eval;
 use crate::engine::ops::{self, Op};
 use crate::sheet::Sheet;
@@ -193,7 +193,7 @@ impl ValueReader {
         if let Some(r) = self.slow.get(&key) {
             return r.clone();
         }
-        let r = slow_value(col, text);
+        let r = slow_value(col, text).map_err(|e| unknown_unit(col, text).unwrap_or(e));
         if self.slow.len() >= SLOW_CACHE_MAX {
             self.slow.clear();
         }
@@ -227,6 +227,18 @@ impl ValueReader {
             self.units.insert(text.to_string(), u.clone());
         }
         u
+    }
+}
+
+/// For `number word` where `word` is no unit: the error worded for the
+/// column's input, with a did-you-mean only among units of its dimension.
+fn unknown_unit(col: &CaseColumn, text: &str) -> Option<String> {
+    let (num, unit) = text.split_once([' ', '\t'])?;
+    let unit = unit.trim();
+    plain_number(num)?;
+    match crate::units::parse_unit_expr(unit) {
+        Err(e @ crate::units::UnitError::Unknown { .. }) => Some(unit_error_for(text, e, &col.name, col.want)),
+        _ => None,
     }
 }
 

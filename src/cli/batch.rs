@@ -6,7 +6,7 @@ use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::Instant;
 
-use super::{load_model, report, BatchArgs, ComplexArg, EXIT_CHECK_FAILED, EXIT_ERROR, EXIT_OK};
+use super::{load_sheet, report, BatchArgs, ComplexArg, EXIT_CHECK_FAILED, EXIT_ERROR, EXIT_OK};
 #[cfg(not(unix))]
 use crate::batch::run_stream;
 #[cfg(unix)]
@@ -35,7 +35,7 @@ fn fail(message: String) -> i32 {
 
 pub fn batch(a: &BatchArgs) -> i32 {
     let started = Instant::now();
-    let Ok(model) = load_model(&a.sheet, &a.set) else {
+    let Ok((_, model)) = load_sheet(&a.sheet, &a.set, &a.load.options()) else {
         return EXIT_ERROR;
     };
     let err_path = errors_path(&a.out);
@@ -69,8 +69,8 @@ pub fn batch(a: &BatchArgs) -> i32 {
         ComplexArg::Rect => ComplexForm::Rect,
         ComplexArg::Polar => ComplexForm::Polar,
     };
-    let plan = match Plan::new(Arc::new(model), &headers, a.show.as_deref(), form) {
-        Ok(p) => Arc::new(p),
+    let plan = match Plan::with_tags(Arc::new(model), &headers, &a.tag, a.show.as_deref(), form) {
+        Ok(p) => Arc::new(p.with_digits(a.digits.map(usize::from))),
         Err(d) => {
             let mut d = d;
             d.message = format!("{}: {}", a.cases.display(), d.message);
@@ -170,7 +170,7 @@ pub fn batch(a: &BatchArgs) -> i32 {
             String::new()
         } else {
             format!(
-                "; {} bad row{} left empty, listed in {}",
+                "; {} bad row{} (what was not computed is left empty), listed in {}",
                 summary.bad_rows,
                 if summary.bad_rows == 1 { "" } else { "s" },
                 err_path.display()

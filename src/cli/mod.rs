@@ -99,8 +99,15 @@ impl LoadArgs {
 #[command(
     after_help = "Each column of the cases table names an input of the sheet; its header may give \
 the unit of plain numbers (`Vll [kV]`), or the values carry their own (`13.8 kV`, `(6+j10) Ω`).\n\
-Rows that cannot be computed are listed in RESULTS.errors.csv and left empty in the results.\n\
-Exit status: 0 every row computed, 1 some rows bad, 2 nothing written."
+A column that names no input (a feeder tag, a case number) is carried through unchanged; one whose \
+name is close to an input's is refused as a typo unless named with --tag.\n\
+A value that does not read empties its row; a result that is not a number empties only its own \
+cell; each is listed, with its reason, in RESULTS.errors.csv.\n\
+Exit status: 0 every row computed, 1 some rows bad or cells not computed, 2 nothing written.\n\n\
+Examples:\n  \
+ohmsheet batch feeder.ohm --cases feeders.csv --out results.csv\n  \
+ohmsheet batch feeder.ohm --cases feeders.csv --out results.csv --show I,pf --complex polar --digits 6\n  \
+ohmsheet batch feeder.ohm --cases feeders.csv --out results.csv --tag Vl,note --allow-dir ../lib"
 )]
 pub struct BatchArgs {
     /// The sheet to evaluate (a .ohm file)
@@ -126,6 +133,15 @@ pub struct BatchArgs {
     /// Give a cell a new formula for every case, e.g. --set "f=50 Hz" (repeatable)
     #[arg(long = "set", value_name = "NAME=EXPR")]
     pub set: Vec<String>,
+    /// Columns carried through to the results unchanged, setting no input, e.g. --tag feeder,note
+    /// (needed only for a name close to an input's, or a header with a unit)
+    #[arg(long = "tag", value_delimiter = ',', value_name = "COLUMN,…")]
+    pub tag: Vec<String>,
+    /// Significant digits of the written values (default: as many as it takes to read each back exactly)
+    #[arg(long, value_parser = clap::value_parser!(u8).range(1..=17))]
+    pub digits: Option<u8>,
+    #[command(flatten)]
+    pub load: LoadArgs,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]

@@ -26,7 +26,8 @@ use ranges::add_expression;
 pub use ranges::{check_size, constant, input_cell, parse_expr_at, parse_range, parse_range_at, resolve_axis};
 pub use running::{between, collect, run, sub_program, sweep, AxisRequest, SweepRequest};
 pub use solve::{
-    explain, search_failure, search_outcome, solve, split_target, Solution, SolveError, SolveRequest, Unsolved,
+    explain, search_failure, search_failure_in, search_outcome, solve, split_target, Solution, SolveError,
+    SolveRequest, Unsolved,
 };
 
 use num_complex::Complex64 as C64;

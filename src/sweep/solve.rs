@@ -270,10 +270,15 @@ pub fn search_outcome(engine: &Engine, id: CellId) -> Option<search::Outcome> {
 /// Why the in-sheet search in cell `id` found no answer, as an error at
 /// its line; `None` if the cell is not a search or it found one.
 pub fn search_failure(engine: &Engine, id: CellId) -> Option<Diagnostic> {
-    let m = &engine.model;
+    search_failure_in(&engine.model, engine.slots(), id)
+}
+
+/// [`search_failure`] for a model whose program was run into `slots`
+/// (one case of a batch).
+pub fn search_failure_in(m: &Model, slots: &[C64], id: CellId) -> Option<Diagnostic> {
     let prog = &m.program;
     let k = prog.searches.iter().position(|s| s.cell == id)?;
-    let search::Outcome::Failed(err) = search::outcome(prog, k, engine.slots()) else {
+    let search::Outcome::Failed(err) = search::outcome(prog, k, slots) else {
         return None;
     };
     let sr = &prog.searches[k];
@@ -291,7 +296,7 @@ pub fn search_failure(engine: &Engine, id: CellId) -> Option<Diagnostic> {
         crate::syntax::ast::SearchGoal::Equals(v) => Some(slice(v)),
         _ => None,
     };
-    let (lo, hi) = (engine.slots()[sr.lo as usize].re, engine.slots()[sr.hi as usize].re);
+    let (lo, hi) = (slots[sr.lo as usize].re, slots[sr.hi as usize].re);
     let (lo, hi) = (lo.min(hi), lo.max(hi));
     let (msg, hint) = explain(
         &err,

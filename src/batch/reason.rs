@@ -1,0 +1,26 @@
+//! Why a case's value is not a number, in words.
+//!
+//! The one place a batch run words the cause of a NaN for its errors file;
+//! it gives the reason `run` gives for the same sheet: an in-sheet search
+//! that found no answer says why, any other NaN names the cell where it
+//! was born.
+
+use num_complex::Complex64 as C64;
+
+use crate::engine::{CellId, Model};
+
+/// Why cell `id` is NaN in a case whose values are `slots` (the whole
+/// program run for that case): the message and hint `run` would give.
+pub fn nan_reason(m: &Model, slots: &[C64], id: CellId) -> String {
+    if let Some(d) = crate::sweep::search_failure_in(m, slots, id) {
+        return match &d.hint {
+            Some(h) => format!("{} ({h})", d.message),
+            None => d.message,
+        };
+    }
+    let c = &m.cells[id as usize];
+    format!(
+        "`{}` evaluated to NaN (not a number): look for 0/0, ∞ − ∞, 0·∞ or a function outside its domain in this case",
+        c.name
+    )
+}
