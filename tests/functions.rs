@@ -726,6 +726,7 @@ fn block_evaluator_agrees_on_the_function_demos() {
         "induction-heater-match.ohm",
         "rural-feeder-capacitor.ohm",
         "beacon-antenna-match.ohm",
+        "export-line-ferranti.ohm",
     ] {
         let text = std::fs::read_to_string(crate::common::repo(&format!("sheets-demo/{name}"))).unwrap();
         let e = engine(&text);

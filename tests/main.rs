@@ -11,6 +11,7 @@ mod cli_run;
 mod comparisons;
 mod confinement;
 mod demo_sheets;
+mod demo_verifiers;
 mod demos;
 mod engine_recompute;
 mod errors_catalogue;
