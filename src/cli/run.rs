@@ -1,7 +1,6 @@
 //! `ohmsheet run`, `ohmsheet functions`, `ohmsheet units`.
 
 use super::{load_sheet, Format, RunArgs, EXIT_CHECK_FAILED, EXIT_ERROR, EXIT_OK};
-use crate::diag::{Diagnostic, ErrorCode};
 use crate::engine::model::signature;
 use crate::engine::Engine;
 use crate::output::{self, table};
@@ -35,31 +34,22 @@ pub fn run(a: &RunArgs) -> i32 {
     EXIT_OK
 }
 
-/// Report each NaN where it was born; true if there was one.
+/// Report each NaN where it was born, with the function whose domain was
+/// left when one explains it; true if there was one.
 pub(super) fn report_nans(engine: &Engine) -> bool {
-    // A NaN is reported where it was born.
     let m = &engine.model;
     let origins = engine.nan_origins();
+    if origins.is_empty() {
+        return false;
+    }
+    // explaining evaluates arguments, which needs an engine of its own
+    let mut scratch = engine.clone();
     for &id in &origins {
-        let c = &m.cells[id as usize];
-        let what = if c.is_check() {
-            "this check".to_string()
-        } else {
-            format!("`{}`", c.name)
-        };
         // A search that found no answer says why.
-        let d = crate::sweep::search_failure(engine, id).unwrap_or_else(|| {
-            Diagnostic::error(
-                ErrorCode::NotANumber,
-                c.stmt_span,
-                format!("{what} evaluated to NaN (not a number)"),
-            )
-            .with_label("undefined result produced here")
-            .with_hint("look for 0/0, ∞ − ∞, 0·∞ or an input set to NaN; cells using this one are NaN too")
-        });
+        let d = crate::sweep::search_failure(engine, id).unwrap_or_else(|| scratch.nan_diagnostic(id));
         d.eprint(&m.sources);
     }
-    !origins.is_empty()
+    true
 }
 
 /// Every function with its parameters, units and a one-line description,

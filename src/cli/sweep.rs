@@ -9,6 +9,7 @@ use num_complex::Complex64 as C64;
 use super::{load_sheet, report, LoadArgs, EXIT_CHECK_FAILED, EXIT_ERROR, EXIT_OK};
 use crate::diag::{Diagnostic, ErrorCode, SourceMap};
 use crate::engine::search::Goal;
+use crate::engine::Engine;
 use crate::output::sweep::{self as out, CsvRows, Parts};
 use crate::sweep::{self, Axis, Series, SolveError, SolveRequest, Study, SweepResult};
 use crate::units::format::{format_value, Style};
@@ -275,7 +276,7 @@ pub fn sweep(a: &SweepArgs) -> i32 {
         );
     }
     let r = sweep::collect(&study.engine, &axes, &series, title);
-    emit(&r, a, &name, parts, style, table_only)
+    emit(&study.engine, &r, a, &name, parts, style, table_only)
 }
 
 fn stream_csv(study: &Study, axes: &[Axis], series: &[Series], path: &Path, parts: Parts) -> i32 {
@@ -312,12 +313,15 @@ fn stream_csv(study: &Study, axes: &[Axis], series: &[Series], path: &Path, part
     if let Err(e) = res {
         return io_error(path, e);
     }
-    warn_undefined(undefined, first_bad, axes);
+    warn_undefined(&study.engine, undefined, first_bad, axes);
     EXIT_OK
 }
 
-fn warn_undefined(count: usize, first: Option<usize>, axes: &[Axis]) {
+/// Warn of points with undefined values, and say why the first one is:
+/// the function whose domain it left, located on the argument.
+fn warn_undefined(engine: &Engine, count: usize, first: Option<usize>, axes: &[Axis]) {
     let Some(p) = first else { return };
+
     let at: Vec<String> = axes
         .iter()
         .enumerate()
@@ -331,13 +335,29 @@ fn warn_undefined(count: usize, first: Option<usize>, axes: &[Axis]) {
         if count == 1 { "" } else { "s" },
         at.join(", ")
     );
+    let mut at_point = engine.clone();
+    for (k, a) in axes.iter().enumerate() {
+        at_point.set_input(a.cell, C64::new(a.value(sweep::axis_index(axes, k, p)), 0.0));
+    }
+    for id in at_point.nan_origins() {
+        let d = at_point.nan_diagnostic(id).warning();
+        d.eprint(&at_point.model.sources);
+    }
 }
 
 fn show_x(a: &Axis, x: f64) -> String {
     format_value(C64::new(x, 0.0), a.quantity, a.display.as_ref(), Style { digits: 6 }).rect
 }
 
-fn emit(r: &SweepResult, a: &SweepArgs, sheet_name: &str, parts: Parts, style: Style, table_only: bool) -> i32 {
+fn emit(
+    engine: &Engine,
+    r: &SweepResult,
+    a: &SweepArgs,
+    sheet_name: &str,
+    parts: Parts,
+    style: Style,
+    table_only: bool,
+) -> i32 {
     if let Some(p) = &a.csv {
         if let Err(e) = write_atomic(p, |w| out::write_csv(w, r, parts).map(|_| ())) {
             return io_error(p, e);
@@ -381,7 +401,7 @@ fn emit(r: &SweepResult, a: &SweepArgs, sheet_name: &str, parts: Parts, style: S
         print!("{}", out::table(r, parts, style));
     }
     let bad = r.undefined_points();
-    warn_undefined(bad.len(), bad.first().copied(), &r.axes);
+    warn_undefined(engine, bad.len(), bad.first().copied(), &r.axes);
     EXIT_OK
 }
 
@@ -424,7 +444,7 @@ fn declared(sheet: crate::sheet::Sheet, a: &SweepArgs, name: &str, parts: Parts,
         }
     };
     let table_only = a.csv.is_none() && a.json.is_none() && a.plot.is_none() && !a.chart;
-    emit(&r, a, name, parts, style, table_only)
+    emit(&study.engine, &r, a, name, parts, style, table_only)
 }
 
 pub fn solve(a: &SolveArgs) -> i32 {

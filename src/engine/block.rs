@@ -106,10 +106,17 @@ impl Block {
                     }
                 }
                 Op::Mul => {
+                    let mut careful = false;
                     for l in 0..LANES {
                         let (ar, ai, br, bi) = (*re.add(a + l), *im.add(a + l), *re.add(b + l), *im.add(b + l));
-                        *re.add(d + l) = ar * br - ai * bi;
-                        *im.add(d + l) = ar * bi + ai * br;
+                        let (pr, pi) = (ar * br - ai * bi, ar * bi + ai * br);
+                        // a NaN part: redo with `ops::mul` (an infinite operand)
+                        careful |= pr.is_nan() | pi.is_nan();
+                        *re.add(d + l) = pr;
+                        *im.add(d + l) = pi;
+                    }
+                    if careful {
+                        self.fix_lanes(ins, ops::mul);
                     }
                 }
                 Op::Div => {
@@ -117,7 +124,8 @@ impl Block {
                     for l in 0..LANES {
                         let (ar, ai, br, bi) = (*re.add(a + l), *im.add(a + l), *re.add(b + l), *im.add(b + l));
                         let den = br * br + bi * bi;
-                        careful |= !plain(den);
+                        // the test `ops::div` makes: |b|² plain and `a` finite
+                        careful |= !(plain(den) & finite(ar) & finite(ai));
                         *re.add(d + l) = (ar * br + ai * bi) / den;
                         *im.add(d + l) = (ai * br - ar * bi) / den;
                     }
@@ -257,6 +265,12 @@ impl Block {
 #[inline(always)]
 fn plain(d: f64) -> bool {
     (f64::MIN_POSITIVE..1e300).contains(&d)
+}
+
+/// `x.is_finite()` as one comparison (NaN fails it), so loops vectorise.
+#[inline(always)]
+fn finite(x: f64) -> bool {
+    x.abs() < f64::INFINITY
 }
 
 /// `d.is_normal()` for a value that is never negative.

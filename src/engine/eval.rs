@@ -24,7 +24,7 @@ fn exec(ins: &Instr, prog: &Program, s: &mut [C64]) {
     let v = match ins.op {
         Op::Add => s[ins.a as usize] + s[ins.b as usize],
         Op::Sub => s[ins.a as usize] - s[ins.b as usize],
-        Op::Mul => s[ins.a as usize] * s[ins.b as usize],
+        Op::Mul => super::ops::mul(s[ins.a as usize], s[ins.b as usize]),
         Op::Call(fid) => {
             call(fid, ins, prog, s);
             return;
@@ -111,6 +111,13 @@ impl Engine {
 
     pub fn slots(&self) -> &[C64] {
         &self.slots
+    }
+
+    /// Put every slot's value as given (one case of a batch or sweep, to
+    /// explain it); `slots` is as long as the program's.
+    pub fn load_slots(&mut self, slots: &[C64]) {
+        self.slots.clear();
+        self.slots.extend_from_slice(slots);
     }
 
     /// Give input cell `id` a new value (in coherent SI units) and

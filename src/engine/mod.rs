@@ -4,6 +4,7 @@ pub mod block;
 mod compare;
 pub mod edit;
 pub mod eval;
+pub mod explain;
 pub mod model;
 pub mod ops;
 pub mod program;

@@ -137,12 +137,14 @@ pub fn div_by_zero(a: C64) -> C64 {
 }
 
 /// Complex division. The plain formula is used where |b|² is a normal
-/// number; otherwise Smith's scaled form, so neither tiny nor huge divisors
-/// overflow or underflow.
+/// number and `a` is finite; otherwise Smith's scaled form, so neither
+/// tiny nor huge divisors overflow or underflow, and an infinite `a` over
+/// a finite non-zero `b` is infinite (an open element stays open) rather
+/// than NaN.
 #[inline]
 pub fn div(a: C64, b: C64) -> C64 {
     let d = b.re * b.re + b.im * b.im;
-    if d.is_normal() && d < 1e300 {
+    if d.is_normal() && d < 1e300 && a.re.abs() < f64::INFINITY && a.im.abs() < f64::INFINITY {
         C64::new((a.re * b.re + a.im * b.im) / d, (a.im * b.re - a.re * b.im) / d)
     } else {
         div_careful(a, b)
@@ -163,6 +165,22 @@ pub fn div_careful(a: C64, b: C64) -> C64 {
         }
         return C64::new(f64::NAN, f64::NAN);
     }
+    if a.re.is_nan() || a.im.is_nan() {
+        return C64::new(f64::NAN, f64::NAN);
+    }
+    if a.re.is_infinite() || a.im.is_infinite() {
+        // ∞ / b for a finite, non-zero b (C99 Annex G): the direction of
+        // a's infinite parts divided by b, each non-zero part made infinite.
+        let unit = |x: f64| {
+            if x.is_infinite() {
+                1f64.copysign(x)
+            } else {
+                0f64.copysign(x)
+            }
+        };
+        let q = div(C64::new(unit(a.re), unit(a.im)), b);
+        return C64::new(inf_or_zero(q.re), inf_or_zero(q.im));
+    }
     // Smith (1962).
     if b.re.abs() >= b.im.abs() {
         let r = b.im / b.re;
@@ -173,6 +191,46 @@ pub fn div_careful(a: C64, b: C64) -> C64 {
         let den = b.re * r + b.im;
         C64::new((a.re * r + a.im) / den, (a.im * r - a.re) / den)
     }
+}
+
+/// Complex product. Where the plain product has a NaN part but neither
+/// operand is NaN, an operand is infinite: the product is then infinite in
+/// the direction of the operands (C99 Annex G), so an open element times a
+/// finite non-zero value stays open (`(∞ + j0)·(4 + j0)` is ∞, not
+/// ∞ + jNaN). ∞·0 stays NaN.
+#[inline]
+pub fn mul(a: C64, b: C64) -> C64 {
+    let r = a * b;
+    if r.re.is_nan() || r.im.is_nan() {
+        mul_careful(a, b)
+    } else {
+        r
+    }
+}
+
+#[cold]
+pub fn mul_careful(a: C64, b: C64) -> C64 {
+    let nan = |z: C64| z.re.is_nan() || z.im.is_nan();
+    let zero = |z: C64| z.re == 0.0 && z.im == 0.0;
+    if nan(a) || nan(b) || (is_inf(a) && zero(b)) || (is_inf(b) && zero(a)) {
+        return a * b;
+    }
+    let dir = |z: C64| {
+        if is_inf(z) {
+            let unit = |x: f64| {
+                if x.is_infinite() {
+                    1f64.copysign(x)
+                } else {
+                    0f64.copysign(x)
+                }
+            };
+            C64::new(unit(z.re), unit(z.im))
+        } else {
+            z
+        }
+    };
+    let q = dir(a) * dir(b);
+    C64::new(inf_or_zero(q.re), inf_or_zero(q.im))
 }
 
 /// |z|, without overflow for huge parts or underflow for tiny ones.
@@ -476,7 +534,7 @@ pub fn apply2(op: Op, a: C64, b: C64) -> C64 {
     match op {
         Add => a + b,
         Sub => a - b,
-        Mul => a * b,
+        Mul => mul(a, b),
         Div => div(a, b),
         Pow => pow(a, b),
         Par => par(a, b),
@@ -503,6 +561,26 @@ mod tests {
         assert_eq!(r.re, f64::INFINITY);
         assert_eq!(r.im, 0.0);
         assert!(div(c(0.0, 0.0), c(0.0, 0.0)).re.is_nan());
+    }
+
+    // An open element (∞) divided by a finite one is still open: the
+    // plain formula would give ∞·0 = NaN in one part. C99 Annex G.
+    #[test]
+    fn infinite_times_finite_is_infinite() {
+        assert_eq!(mul(c(f64::INFINITY, 0.0), c(4.0, 0.0)), c(f64::INFINITY, 0.0));
+        assert_eq!(mul(c(2.0, 0.0), c(0.0, f64::NEG_INFINITY)), c(0.0, f64::NEG_INFINITY));
+        assert!(mul(c(f64::INFINITY, 0.0), c(0.0, 0.0)).re.is_nan());
+        assert_eq!(mul(c(3.0, 4.0), c(5.0, -2.0)), c(3.0, 4.0) * c(5.0, -2.0));
+    }
+
+    #[test]
+    fn infinite_over_finite_is_infinite() {
+        let r = div(c(f64::INFINITY, 0.0), c(0.0, 4.0));
+        assert_eq!(r, c(0.0, f64::NEG_INFINITY));
+        let r = div(c(0.0, f64::NEG_INFINITY), c(3.0, 4.0));
+        assert!(r.re.is_infinite() && r.im.is_infinite(), "{r}");
+        assert!(div(c(f64::INFINITY, 0.0), c(f64::INFINITY, 0.0)).re.is_nan());
+        assert_eq!(div(c(f64::INFINITY, 0.0), c(0.0, 0.0)), c(f64::INFINITY, 0.0));
     }
 
     #[test]

@@ -13,6 +13,7 @@
 //! it to that module's `FUNCS`, and add a test against a named outside
 //! source. See DEVELOPERS.md.
 
+pub mod domains;
 pub mod elements;
 pub mod lines;
 pub mod matching;
@@ -213,22 +214,25 @@ impl Builtin {
 }
 
 /// The families of functions, in listing order: a heading and the
-/// functions under it.
+/// functions under it, each with its source and domain (`domains::TABLE`).
 fn families() -> Vec<(&'static str, Vec<Builtin>)> {
     vec![
-        ("Mathematics", math::funcs()),
-        ("Elements at a frequency", elements::funcs()),
-        ("Dividers, sources and equivalents", networks::funcs()),
+        ("Mathematics", domains::annotate(math::funcs())),
+        ("Elements at a frequency", domains::annotate(elements::funcs())),
+        (
+            "Dividers, sources and equivalents",
+            domains::annotate(networks::funcs()),
+        ),
         (
             "Power, maximum power transfer and power-factor correction",
-            power::funcs(),
+            domains::annotate(power::funcs()),
         ),
-        ("Three phase", threephase::funcs()),
-        ("Per-unit", perunit::funcs()),
-        ("Matching networks", matching::funcs()),
-        ("Lines and RF", lines::funcs()),
-        ("Two-ports (ABCD parameters)", twoports::funcs()),
-        ("Ratios", ratios::funcs()),
+        ("Three phase", domains::annotate(threephase::funcs())),
+        ("Per-unit", domains::annotate(perunit::funcs())),
+        ("Matching networks", domains::annotate(matching::funcs())),
+        ("Lines and RF", domains::annotate(lines::funcs())),
+        ("Two-ports (ABCD parameters)", domains::annotate(twoports::funcs())),
+        ("Ratios", domains::annotate(ratios::funcs())),
     ]
 }
 

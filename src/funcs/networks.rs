@@ -22,11 +22,15 @@ fn ty_idiv(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
     Ok(Shape::Scalar(qs[0]))
 }
 
-/// Za·Zb-style ratio Zb/(Za+Zb).
+/// x·Zb/(Za+Zb), written x/(1 + Za/Zb) so that open (∞) and short (0)
+/// elements give their limits: an open Zb or a short Za gives x, an open
+/// Za or a short Zb gives 0 (division by 0 and by ∞ are exact in
+/// `ops::div`). Two shorts or two opens give NaN: no limit exists.
 fn share(e: &mut Emitter, x: Operand, za: Operand, zb: Operand) -> Operand {
-    let sum = e.bin(Op::Add, za, zb);
-    let xz = e.bin(Op::Mul, x, zb);
-    e.bin(Op::Div, xz, sum)
+    let r = e.bin(Op::Div, za, zb);
+    let one = e.konst(1.0, 0.0);
+    let d = e.bin(Op::Add, one, r);
+    e.bin(Op::Div, x, d)
 }
 
 fn l_div(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
@@ -97,15 +101,28 @@ fn ty_as_parallel(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
     Ok(Shape::Record(vec![("R", k), ("X", k)]))
 }
 
-/// Z = R + jX equals Rp ∥ jXp with Rp = |Z|²/R and Xp = |Z|²/X.
-fn l_as_parallel(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
-    let z = a[0];
-    let zc = e.un(Op::Conj, z);
-    let m2 = e.bin(Op::Mul, z, zc);
-    let m2 = e.un(Op::Re, m2);
-    let r = e.un(Op::Re, z);
-    let x = e.un(Op::Im, z);
-    vec![e.bin(Op::Div, m2, r), e.bin(Op::Div, m2, x)]
+/// Z = R + jX equals Rp ∥ jXp with Rp = |Z|²/R = R + X·(X/R) and
+/// Xp = |Z|²/X = X + R·(R/X), in real arithmetic so that limits hold: a
+/// pure reactance (R = 0) gives an open Rp, a pure resistance an open Xp,
+/// an open Z an open pair. A short (Z = 0) has no single equivalent (NaN).
+fn s_as_parallel(a: &[C64], out: &mut [C64], _: &Ctx) {
+    // a zero part of either sign is +0, so an open keeps a sign of its own
+    let (r, x) = (a[0].re + 0.0, a[0].im + 0.0);
+    let (rp, xp) = if r.is_infinite() || x.is_infinite() {
+        // an open in series form is an open in parallel form
+        let open = |v: f64| {
+            if v == 0.0 {
+                f64::INFINITY
+            } else {
+                f64::INFINITY.copysign(v)
+            }
+        };
+        (open(r), open(x))
+    } else {
+        (r + x * (x / r), x + r * (r / x))
+    };
+    out[0] = C64::new(rp, 0.0);
+    out[1] = C64::new(xp, 0.0);
 }
 
 fn ty_as_series(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
@@ -209,13 +226,13 @@ pub fn funcs() -> Vec<Builtin> {
                 l_bus_v,
             )
         },
-        lowered(
+        scalar_fn(
             "as_parallel",
             "series R + jX as its parallel equivalent R ∥ jX",
             &[p!("Z", "Ω|pu")],
             "record R, X (as Z)",
             ty_as_parallel,
-            l_as_parallel,
+            s_as_parallel,
         ),
         scalar_fn(
             "as_series",

@@ -5,11 +5,17 @@
 //! - S = V·I* for RMS phasors; for peak phasors (`@amplitude peak`)
 //!   S = ½·V·I*. P = Re S (W), Q = Im S (var), |S| in VA.
 //! - Q > 0 is a lagging (inductive) load: the current lags the voltage.
-//! - `pf` is signed: +cos φ when lagging or unity, −cos φ when leading
-//!   (Q < 0). The direction of real power does not enter the sign; |P|
-//!   is used. A power-factor argument follows the same rule, so
-//!   `q_pfc(P, 0.7, -0.95)` asks for 0.95 leading.
-//! - The power-factor angle φ is arg S: positive lagging.
+//! - `pf` is a lead/lag-signed power factor, not IEEE Std 1459's P/|S|
+//!   (whose sign is the direction of P): pf = +|P|/|S| when lagging or at
+//!   unity (Q ≥ 0), −|P|/|S| when leading (Q < 0), for a load and for a
+//!   source (P < 0) alike; the direction of real power is read from P
+//!   (`re(S)`, `s_parts(S).P`), never from pf. Lagging means Q > 0 in the
+//!   load convention (current into the element lags its voltage). A
+//!   power-factor argument follows the same rule, so `q_pfc(P, 0.7, -0.95)`
+//!   asks for 0.95 leading.
+//! - The power-factor angle φ = atan(Q/|P|), within ±90°, positive
+//!   lagging: cos φ = |pf| and the sign of φ is the sign of pf. (For a
+//!   load, P > 0, it equals arg S.)
 
 use super::*;
 use crate::engine::ops::Op;
@@ -134,7 +140,8 @@ fn ty_pf_angle(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
     Ok(Shape::Scalar(Quantity::ANGLE))
 }
 
-/// Signed power factor: +|P|/|S| lagging or unity, −|P|/|S| leading.
+/// Lead/lag-signed power factor: +|P|/|S| lagging or unity, −|P|/|S|
+/// leading, whatever the direction of P.
 pub fn signed_pf(s: C64) -> f64 {
     let m = crate::engine::ops::abs(s);
     let pf = s.re.abs() / m;
@@ -149,8 +156,12 @@ fn s_pf(a: &[C64], out: &mut [C64], _: &Ctx) {
     out[0] = C64::new(signed_pf(a[0]), 0.0);
 }
 
+/// φ = atan2(Q, |P|): within ±90°, positive lagging, cos φ = |pf|.
 fn l_pf_angle(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
-    vec![e.un(Op::Arg, a[0])]
+    let q = e.un(Op::Im, a[0]);
+    let p = e.un(Op::Re, a[0]);
+    let p = e.un(Op::Abs, p);
+    vec![e.bin(Op::Atan2, q, p)]
 }
 
 fn ty_s_parts(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
@@ -294,16 +305,17 @@ fn ty_i_line(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
     scalar(Dim::CURRENT, Kind::Plain)
 }
 
-/// |I| = |P|/(√3·k·|V_LL|·|pf|).
-fn l_i_line(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
-    let pw = e.un(Op::Re, a[0]);
-    let pw = e.un(Op::Abs, pw);
-    let v = e.un(Op::Abs, a[1]);
-    let pf = e.un(Op::Abs, a[2]);
-    let c = e.konst(3f64.sqrt() * power_k(e), 0.0);
-    let d = e.bin(Op::Mul, v, pf);
-    let d = e.bin(Op::Mul, d, c);
-    vec![e.bin(Op::Div, pw, d)]
+/// |I| = |P|/(√3·k·|V_LL|·|pf|); NaN (explained by the domain check) for
+/// a power factor that is complex or beyond ±1.
+fn s_i_line(a: &[C64], out: &mut [C64], c: &Ctx) {
+    let pf = a[2];
+    let i = if pf.im != 0.0 || pf.re.is_nan() || pf.re.abs() > 1.0 {
+        f64::NAN
+    } else {
+        let d = 3f64.sqrt() * c.power_factor_k() * crate::engine::ops::abs(a[1]) * pf.re.abs();
+        crate::engine::ops::div(C64::new(a[0].re.abs(), 0.0), C64::new(d, 0.0)).re
+    };
+    out[0] = C64::new(i, 0.0);
 }
 
 pub fn funcs() -> Vec<Builtin> {
@@ -334,7 +346,7 @@ pub fn funcs() -> Vec<Builtin> {
         ),
         scalar_fn(
             "pf",
-            "power factor, signed: +cos φ lagging (Q ≥ 0), −cos φ leading (Q < 0)",
+            "power factor |P|/|S| signed by lead/lag (not by the direction of P): + lagging (Q ≥ 0), − leading (Q < 0)",
             &[p!("S", "VA|Ω")],
             "1",
             ty_pf,
@@ -342,7 +354,7 @@ pub fn funcs() -> Vec<Builtin> {
         ),
         lowered(
             "pf_angle",
-            "power-factor angle φ = arg S, positive lagging",
+            "power-factor angle φ = atan(Q/|P|), within ±90°, positive lagging (cos φ = |pf|)",
             &[p!("S", "VA|Ω")],
             "angle",
             ty_pf_angle,
@@ -350,7 +362,7 @@ pub fn funcs() -> Vec<Builtin> {
         ),
         scalar_fn(
             "s_parts",
-            "P, Q, |S|, signed pf, and lag = +1 lagging, −1 leading, 0 in phase",
+            "P, Q, |S|, pf (±|P|/|S|, + lagging), and lag = +1 lagging, −1 leading, 0 in phase",
             &[p!("S", "VA|pu")],
             "record P (W), Q (var), S (VA), pf (1), lag (±1)",
             ty_s_parts,
@@ -412,13 +424,13 @@ pub fn funcs() -> Vec<Builtin> {
             ty_cap_1ph,
             l_cap_wye,
         ),
-        lowered(
+        scalar_fn(
             "i_line",
             "line current of a balanced three-phase load P at V_LL and pf: P/(√3·V_LL·|pf|)",
             &[p!("P", "W"), p!("V_LL", "V"), p!("pf", "1")],
             "A",
             ty_i_line,
-            l_i_line,
+            s_i_line,
         ),
     ]
 }

@@ -31,13 +31,31 @@ fn k30() -> C64 {
     C64::new(1.5, SQRT3 / 2.0)
 }
 
-fn l_ll_to_ln(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
-    let k = Operand::Const(k30());
+/// 1∠30° = √3/2 + j·1/2.
+fn shift30() -> C64 {
+    C64::new(SQRT3 / 2.0, 0.5)
+}
+
+/// The factor between line and phase voltages: √3∠30° in volts; only the
+/// 30° shift in per-unit, because on the usual three-phase bases (line
+/// base = √3 × phase base) a line voltage and its phase voltage have the
+/// same per-unit magnitude — as `z_base` (V_LL²/S_3φ = V_LN²/S_1φ) and
+/// `i_base` (S_3φ/(√3·V_LL)) assume.
+fn line_factor(q: Quantity) -> C64 {
+    if q.kind == Kind::PerUnit {
+        shift30()
+    } else {
+        k30()
+    }
+}
+
+fn l_ll_to_ln(e: &mut Emitter, a: &[Operand], q: &[Quantity]) -> Vec<Operand> {
+    let k = Operand::Const(line_factor(q[0]));
     vec![e.bin(Op::Div, a[0], k)]
 }
 
-fn l_ln_to_ll(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
-    let k = Operand::Const(k30());
+fn l_ln_to_ll(e: &mut Emitter, a: &[Operand], q: &[Quantity]) -> Vec<Operand> {
+    let k = Operand::Const(line_factor(q[0]));
     vec![e.bin(Op::Mul, a[0], k)]
 }
 
@@ -64,14 +82,16 @@ fn ty_p3(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
     scalar(Dim::POWER, Kind::RealPower)
 }
 
-fn l_p3(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
-    let v = e.un(Op::Abs, a[0]);
-    let i = e.un(Op::Abs, a[1]);
-    let pf = e.un(Op::Abs, a[2]);
-    let c = e.konst(SQRT3 * power_k(e), 0.0);
-    let vi = e.bin(Op::Mul, v, i);
-    let vip = e.bin(Op::Mul, vi, pf);
-    vec![e.bin(Op::Mul, vip, c)]
+/// √3·k·|V_LL|·|I_L|·|pf|; NaN (explained by the domain check) for a
+/// power factor that is complex or beyond ±1, never a number scaled by it.
+fn s_p3(a: &[C64], out: &mut [C64], c: &Ctx) {
+    let pf = a[2];
+    let p = if pf.im != 0.0 || pf.re.is_nan() || pf.re.abs() > 1.0 {
+        f64::NAN
+    } else {
+        SQRT3 * c.power_factor_k() * crate::engine::ops::abs(a[0]) * crate::engine::ops::abs(a[1]) * pf.re.abs()
+    };
+    out[0] = C64::new(p, 0.0);
 }
 
 fn three_impedances(qs: &[Quantity], names: [&str; 3]) -> Result<Quantity, ArgError> {
@@ -93,26 +113,67 @@ fn ty_wye_to_delta(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
     Ok(Shape::Record(vec![("ab", k), ("bc", k), ("ca", k)]))
 }
 
-/// Kennelly: Za = Zab·Zca/Σ, Zb = Zab·Zbc/Σ, Zc = Zbc·Zca/Σ.
-fn l_delta_to_wye(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
-    let (ab, bc, ca) = (a[0], a[1], a[2]);
-    let s = e.bin(Op::Add, ab, bc);
-    let s = e.bin(Op::Add, s, ca);
-    let pa = e.bin(Op::Mul, ab, ca);
-    let pb = e.bin(Op::Mul, ab, bc);
-    let pc = e.bin(Op::Mul, bc, ca);
-    vec![e.bin(Op::Div, pa, s), e.bin(Op::Div, pb, s), e.bin(Op::Div, pc, s)]
+fn is_open(z: C64) -> bool {
+    z.re.is_infinite() || z.im.is_infinite()
 }
 
-/// Kennelly: Zab = N/Zc, Zbc = N/Za, Zca = N/Zb, N = ZaZb + ZbZc + ZcZa.
-fn l_wye_to_delta(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
+fn is_short(z: C64) -> bool {
+    z.re == 0.0 && z.im == 0.0
+}
+
+/// An open element, as `||` gives one.
+const OPEN: C64 = C64::new(f64::INFINITY, 0.0);
+const UNDEFINED: C64 = C64::new(f64::NAN, f64::NAN);
+
+/// Kennelly: Za = Zab·Zca/Σ, Zb = Zab·Zbc/Σ, Zc = Zbc·Zca/Σ. Limits for
+/// open branches: with one branch open, each wye arm touching it equals
+/// the other branch it touches, and the arm between the two closed
+/// branches is 0. Two or more open branches: undefined. A fully shorted
+/// delta is a shorted wye.
+fn s_delta_to_wye(a: &[C64], out: &mut [C64], _: &Ctx) {
+    let (ab, bc, ca) = (a[0], a[1], a[2]);
+    let opens = a[..3].iter().filter(|z| is_open(**z)).count();
+    let (za, zb, zc) = match opens {
+        0 if a[..3].iter().all(|z| is_short(*z)) => (C64::new(0.0, 0.0), C64::new(0.0, 0.0), C64::new(0.0, 0.0)),
+        0 => {
+            let s = ab + bc + ca;
+            (
+                crate::engine::ops::div(ab * ca, s),
+                crate::engine::ops::div(ab * bc, s),
+                crate::engine::ops::div(bc * ca, s),
+            )
+        }
+        1 if is_open(ab) => (ca, bc, C64::new(0.0, 0.0)),
+        1 if is_open(bc) => (C64::new(0.0, 0.0), ab, ca),
+        1 => (ab, C64::new(0.0, 0.0), bc),
+        _ => (UNDEFINED, UNDEFINED, UNDEFINED),
+    };
+    out[0] = za;
+    out[1] = zb;
+    out[2] = zc;
+}
+
+/// One delta branch from the wye arms at its ends (x, y) and the third
+/// arm z: x + y + x·y/z, with the limits of open and short arms.
+fn delta_branch(x: C64, y: C64, z: C64) -> C64 {
+    if is_open(x) || is_open(y) {
+        return OPEN;
+    }
+    if is_open(z) {
+        return x + y;
+    }
+    if is_short(z) {
+        return if is_short(x) || is_short(y) { UNDEFINED } else { OPEN };
+    }
+    x + y + crate::engine::ops::div(x * y, z)
+}
+
+/// Kennelly: Zab = Za + Zb + Za·Zb/Zc, and round.
+fn s_wye_to_delta(a: &[C64], out: &mut [C64], _: &Ctx) {
     let (za, zb, zc) = (a[0], a[1], a[2]);
-    let n1 = e.bin(Op::Mul, za, zb);
-    let n2 = e.bin(Op::Mul, zb, zc);
-    let n3 = e.bin(Op::Mul, zc, za);
-    let n = e.bin(Op::Add, n1, n2);
-    let n = e.bin(Op::Add, n, n3);
-    vec![e.bin(Op::Div, n, zc), e.bin(Op::Div, n, za), e.bin(Op::Div, n, zb)]
+    out[0] = delta_branch(za, zb, zc);
+    out[1] = delta_branch(zb, zc, za);
+    out[2] = delta_branch(zc, za, zb);
 }
 
 fn three_same(qs: &[Quantity]) -> Result<Quantity, ArgError> {
@@ -183,7 +244,7 @@ pub fn funcs() -> Vec<Builtin> {
     vec![
         lowered(
             "ll_to_ln",
-            "line-to-neutral phasor Van from line-to-line Vab: Vab/(√3∠30°), positive sequence",
+            "line-to-neutral phasor Van from line-to-line Vab: Vab/(√3∠30°), positive sequence; in pu only the shift, Vab/(1∠30°)",
             &[p!("Vab", "V|pu")],
             "as Vab",
             ty_ll_to_ln,
@@ -191,7 +252,7 @@ pub fn funcs() -> Vec<Builtin> {
         ),
         lowered(
             "ln_to_ll",
-            "line-to-line phasor Vab from line-to-neutral Van: √3∠30°·Van, positive sequence",
+            "line-to-line phasor Vab from line-to-neutral Van: √3∠30°·Van, positive sequence; in pu only the shift, 1∠30°·Van",
             &[p!("Van", "V|pu")],
             "as Van",
             ty_ln_to_ll,
@@ -205,29 +266,29 @@ pub fn funcs() -> Vec<Builtin> {
             ty_s3,
             l_s3,
         ),
-        lowered(
+        scalar_fn(
             "p3",
             "real power of a balanced three-phase load: √3·|V_LL|·|I_L|·|pf|",
             &[p!("V_LL", "V"), p!("I_L", "A"), p!("pf", "1")],
             "W",
             ty_p3,
-            l_p3,
+            s_p3,
         ),
-        lowered(
+        scalar_fn(
             "delta_to_wye",
             "wye equivalent of delta impedances (unbalanced allowed)",
             &[p!("Zab", "Ω|pu"), p!("Zbc", "Ω|pu"), p!("Zca", "Ω|pu")],
             "record a, b, c (as Zab)",
             ty_delta_to_wye,
-            l_delta_to_wye,
+            s_delta_to_wye,
         ),
-        lowered(
+        scalar_fn(
             "wye_to_delta",
             "delta equivalent of wye impedances (unbalanced allowed)",
             &[p!("Za", "Ω|pu"), p!("Zb", "Ω|pu"), p!("Zc", "Ω|pu")],
             "record ab, bc, ca (as Za)",
             ty_wye_to_delta,
-            l_wye_to_delta,
+            s_wye_to_delta,
         ),
         lowered(
             "to_seq",

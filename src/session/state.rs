@@ -333,7 +333,27 @@ impl Session {
             .map(|(_, s)| s)
             .collect();
         out.push_str(&show::changes(&rest));
+        out.push_str(&self.undefined_notes(shown));
         out
+    }
+
+    /// Why the cells this statement made undefined (NaN) are so: the
+    /// function whose domain was left, located on its argument.
+    fn undefined_notes(&self, shown: &[Shown]) -> String {
+        let m = &self.engine.model;
+        let hit: Vec<_> = self
+            .engine
+            .nan_origins()
+            .into_iter()
+            .filter(|&id| shown.iter().any(|s| s.name == show::cell_label(m, id)))
+            .collect();
+        if hit.is_empty() {
+            return String::new();
+        }
+        let mut scratch = self.engine.clone();
+        hit.into_iter()
+            .map(|id| self.render(&scratch.nan_diagnostic(id)))
+            .collect()
     }
 }
 
