@@ -53,6 +53,10 @@ ENTRIES = [
      "value in W or var, dB with % or pu, Hz with rad/s. A value given to an input of another kind "
      "(`--set`, `--vary`, a cases column) is refused the same way.",
      "P = 800 kW\nQ = 600 kvar\nS = P + Q\n", None),
+    ("trig-radians", "A note, not an error: `sin`, `cos` or `tan` given a plain whole number larger than 2π "
+     "(`cos(30)`), which the language reads as radians. The sheet runs and the exit status is unchanged; the "
+     "note shows `warning[trig-radians]` and the fix (`cos(30°)`, or `cos(30 rad)` to keep radians).", None,
+     "`x = cos(30)` runs, and prints a `warning[trig-radians]` note saying it takes 30 as radians (about 1719°)."),
     ("not-a-record", "`.field` on a single value.", "z = 3\nx = z.re\n", None),
     ("record-as-value", "A record used where one value is needed.", "p = parts(3 + j4)\nx = p * 2\n", None),
     ("bad-tolerance", "A check's tolerance without the unit of the values compared.",

@@ -221,6 +221,7 @@ error_codes! {
     FunctionArgs => "function-args",
     AngleAmbiguous => "angle-ambiguous",
     AmbiguousOperators => "ambiguous-operators",
+    TrigRadians => "trig-radians",
     KindMismatch => "kind-mismatch",
     NotARecord => "not-a-record",
     RecordAsValue => "record-as-value",

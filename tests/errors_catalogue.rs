@@ -62,6 +62,13 @@ fn every_sheet_example_produces_its_code() {
 }
 
 #[test]
+fn trig_radians_is_a_note() {
+    run_sheet_bytes(b"x = cos(30)\n")
+        .code(0)
+        .stderr(predicate::str::contains("warning[trig-radians]"));
+}
+
+#[test]
 fn not_utf8() {
     run_sheet_bytes(b"x = 1\xff\n")
         .code(2)

@@ -245,5 +245,8 @@ pub fn load_sheet(path: &Path, sets: &[String], opts: &LoadOptions) -> Result<(S
         report(&model.sources, &model.diagnostics);
         return Err(Reported);
     }
+    // Notes (warnings) do not stop the sheet, but are shown.
+    let notes: Vec<Diagnostic> = model.diagnostics.iter().filter(|d| !d.is_error()).cloned().collect();
+    report(&model.sources, &notes);
     Ok((sheet, model))
 }

@@ -6,6 +6,7 @@ pub mod edit;
 pub mod eval;
 pub mod explain;
 pub mod model;
+pub mod notes;
 pub mod ops;
 pub mod program;
 pub mod search;

@@ -249,6 +249,10 @@ impl Session {
             Ok(None) => return Reply::ok(""),
             Err(d) => return Reply::refused(format!("{}{UNCHANGED}", self.render(&d))),
         };
+        // Notes on the line (`cos(30)` reads radians), shown after its result.
+        let mut notes = Vec::new();
+        crate::engine::notes::of_statement(&stmt, &mut notes);
+        let notes: String = notes.iter().map(|d| self.render(d)).collect();
         match &stmt.kind {
             StmtKind::Directive(d) if d.name.name == crate::sheet::INCLUDE => {
                 return Reply::refused(format!(
@@ -273,7 +277,7 @@ impl Session {
                 let e = e.clone();
                 return match self.engine.evaluate(&e) {
                     Ok((shape, vals)) => Reply::ok(format!(
-                        "  {}\n",
+                        "  {}\n{notes}",
                         show::value(&shape, &vals, None, self.style, self.polar)
                     )),
                     Err(d) => Reply::refused(self.render(&d)),
@@ -302,6 +306,7 @@ impl Session {
                     self.record(Entry::Line(text.to_string()), &mut out);
                 }
                 out.push_str(&self.report(target.as_deref(), &stmt, &shown));
+                out.push_str(&notes);
                 Reply::ok(out)
             }
             Err(msg) => Reply::refused(format!("{msg}{UNCHANGED}")),

@@ -7,3 +7,4 @@ mod display;
 mod kinds;
 mod lookalikes;
 mod numerics;
+mod trig_note;

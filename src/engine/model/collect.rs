@@ -41,6 +41,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     let mut amplitude_seen: Option<Span> = None;
 
     for stmt in &sheet.stmts {
+        crate::engine::notes::of_statement(stmt, &mut diags);
         match &stmt.kind {
             StmtKind::Def(d) => {
                 let name = &d.name.name;
