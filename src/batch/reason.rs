@@ -2,8 +2,9 @@
 //!
 //! The one place a batch run words the cause of a NaN for its errors file;
 //! it gives the reason `run` gives for the same sheet: an in-sheet search
-//! that found no answer says why, any other NaN names the cell where it
-//! was born.
+//! that found no answer says why, a function whose domain the case left
+//! names the argument (`engine::explain`), any other NaN names the cell
+//! where it was born.
 
 use num_complex::Complex64 as C64;
 
@@ -17,6 +18,15 @@ pub fn nan_reason(m: &Model, slots: &[C64], id: CellId) -> String {
             Some(h) => format!("{} ({h})", d.message),
             None => d.message,
         };
+    }
+    // the function whose domain the case left, located as `run` locates it
+    if let Some(why) = crate::engine::explain::explain(m, slots, id) {
+        return format!(
+            "`{}` is NaN: {} (at {})",
+            m.cells[id as usize].name,
+            why.text(),
+            m.sources.location(why.span)
+        );
     }
     let c = &m.cells[id as usize];
     format!(

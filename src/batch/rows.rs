@@ -295,7 +295,7 @@ impl Plan {
         }
         match self.form {
             ComplexForm::Rect => (scaled(z.re), Some(scaled(z.im))),
-            ComplexForm::Polar => (scaled(ops::abs(z)), Some(z.im.atan2(z.re).to_degrees())),
+            ComplexForm::Polar => (scaled(ops::abs(z)), Some(ops::arg(z).to_degrees())),
         }
     }
 

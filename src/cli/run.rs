@@ -42,11 +42,9 @@ pub(super) fn report_nans(engine: &Engine) -> bool {
     if origins.is_empty() {
         return false;
     }
-    // explaining evaluates arguments, which needs an engine of its own
-    let mut scratch = engine.clone();
     for &id in &origins {
         // A search that found no answer says why.
-        let d = crate::sweep::search_failure(engine, id).unwrap_or_else(|| scratch.nan_diagnostic(id));
+        let d = crate::sweep::search_failure(engine, id).unwrap_or_else(|| engine.nan_diagnostic(id));
         d.eprint(&m.sources);
     }
     true

@@ -67,7 +67,7 @@ fn parts(v: &Val) -> Vec<Operand> {
 
 /// Rewrite every slot an instruction reads or writes (not call argument
 /// lists, which `for_call_args` reaches).
-fn for_slots(ins: &mut Instr, f: &mut impl FnMut(&mut u32)) {
+pub(super) fn for_slots(ins: &mut Instr, f: &mut impl FnMut(&mut u32)) {
     f(&mut ins.dst);
     if !matches!(ins.op, Op::Call(_)) {
         f(&mut ins.a);
@@ -78,7 +78,7 @@ fn for_slots(ins: &mut Instr, f: &mut impl FnMut(&mut u32)) {
 }
 
 /// Rewrite the argument slots of a call instruction.
-fn for_call_args(ins: &Instr, call_args: &mut [u32], f: &mut impl FnMut(&mut u32)) {
+pub(super) fn for_call_args(ins: &Instr, call_args: &mut [u32], f: &mut impl FnMut(&mut u32)) {
     if matches!(ins.op, Op::Call(_)) {
         let start = ins.a as usize + 1;
         for a in &mut call_args[start..start + ins.b as usize] {

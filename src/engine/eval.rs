@@ -113,13 +113,6 @@ impl Engine {
         &self.slots
     }
 
-    /// Put every slot's value as given (one case of a batch or sweep, to
-    /// explain it); `slots` is as long as the program's.
-    pub fn load_slots(&mut self, slots: &[C64]) {
-        self.slots.clear();
-        self.slots.extend_from_slice(slots);
-    }
-
     /// Give input cell `id` a new value (in coherent SI units) and
     /// recompute what depends on it. Returns the cells whose values changed,
     /// the input first, then in evaluation order.

@@ -6,18 +6,22 @@
 //! `report`, `watch`, the session, sweeps and the batch errors file — so
 //! they all say the same thing. It is called only on the error path: it
 //! re-reads the cell's statement, and evaluates the arguments of each call
-//! against the values the failing case had.
+//! against the values the failing case had (a block lane's slots for a
+//! batch case), changing neither the model nor those values.
 
 use num_complex::Complex64 as C64;
 
-use super::eval::Engine;
-use super::model::{CellId, Model};
+use super::edit::{for_call_args, for_slots};
+use super::eval::{run, Engine};
+use super::model::{CellId, Lowerer, Model, Val};
+use super::program::{Emitter, Operand, Program, SlotSpace, TEMP_FLAG};
 
 use crate::diag::{Diagnostic, ErrorCode, Span};
-use crate::funcs::{self, Shape};
+use crate::funcs;
 use crate::syntax::ast::{Expr, ExprKind, StmtKind, Tolerance};
 use crate::syntax::parse_line;
 use crate::units::format::{format_value, Style};
+use crate::units::Quantity;
 
 /// What made a cell's value undefined.
 #[derive(Clone, Debug, PartialEq)]
@@ -82,115 +86,162 @@ fn exprs(stmt: &crate::syntax::ast::Stmt) -> Vec<&Expr> {
     }
 }
 
-impl Engine {
-    /// Why cell `id` is not a finite number, from the current values: the
-    /// first call in its formula whose arguments fail the function's domain
-    /// check. `None` when no function explains it (then the generic
-    /// message stands).
-    pub fn explain(&mut self, id: CellId) -> Option<Why> {
-        let stmt = statement(&self.model, id)?;
-        let mut found = Vec::new();
-        for e in exprs(&stmt) {
-            calls(e, &mut found);
-        }
-        let with_domain: Vec<(&Expr, &'static funcs::Builtin)> = found
-            .into_iter()
-            .filter_map(|e| {
-                let ExprKind::Call { func, .. } = &e.kind else {
-                    return None;
-                };
-                let (_, f) = funcs::find(&func.name)?;
-                f.domain.map(|_| (e, f))
-            })
-            .collect();
-        if with_domain.is_empty() {
-            return None;
-        }
-        let ctx = self.model.ctx;
-        for (e, f) in with_domain {
-            let ExprKind::Call { args, .. } = &e.kind else { continue };
-            let mut vals = Vec::with_capacity(args.len());
-            let mut quantities = Vec::with_capacity(args.len());
-            for a in args {
-                match self.evaluate(a) {
-                    Ok((Shape::Scalar(q), v)) if v.len() == 1 => {
-                        vals.push(v[0]);
-                        quantities.push(q);
-                    }
-                    _ => break,
-                }
-            }
-            if vals.len() != args.len() || vals.iter().any(|z| z.re.is_nan() || z.im.is_nan()) {
-                // an argument that is NaN itself was explained (or not) by
-                // the calls inside it, which come first
-                continue;
-            }
-            let Some(err) = (f.domain?)(&vals, &ctx) else { continue };
-            let (span, message) = match err.arg {
-                Some(i) if i < args.len() => {
-                    let p = f.params.get(i).or(f.params.last()).map_or("?", |p| p.name);
-                    let shown = format_value(vals[i], quantities[i], None, Style { digits: 6 }).rect;
-                    (
-                        args[i].span,
-                        format!("argument `{p}` = {shown} is out of range: {}", err.message),
-                    )
-                }
-                _ => (e.span, err.message),
-            };
-            return Some(Why {
-                func: f.name,
-                span,
-                call_span: e.span,
-                message,
-            });
-        }
-        None
+/// The value of expression `e` (a call's argument) in one case: lowered
+/// against `model` into code of its own and run over a copy of `slots`.
+/// Neither the model nor the slots change.
+fn argument(model: &Model, slots: &[C64], e: &Expr) -> Option<(Quantity, C64)> {
+    let searches = std::cell::RefCell::new(Vec::new());
+    let lw = Lowerer {
+        cells: &model.cells,
+        by_name: &model.by_name,
+        sources: &model.sources,
+        ctx: model.ctx,
+        current: CellId::MAX,
+        searches: &searches,
+    };
+    let base = slots.len();
+    let mut code = Vec::new();
+    let mut call_args = Vec::new();
+    let mut space = SlotSpace::with_base(base);
+    let mut em = Emitter {
+        code: &mut code,
+        call_args: &mut call_args,
+        slots: &mut space,
+        next_temp: 0,
+        peak: model.ctx.peak,
+    };
+    let val = lw.expr(&mut em, e).ok()?;
+    let temps = em.next_temp;
+    if !searches.borrow().is_empty() {
+        return None;
     }
-
-    /// The error for a cell whose value came out NaN: the function whose
-    /// domain was left, located on the argument, or else the general
-    /// message.
-    pub fn nan_diagnostic(&mut self, id: CellId) -> Diagnostic {
-        let what = {
-            let c = &self.model.cells[id as usize];
-            if c.is_check() {
-                "this check".to_string()
-            } else {
-                format!("`{}`", c.name)
-            }
-        };
-        if let Some(why) = self.explain(id) {
-            let label = if why.span == why.call_span {
-                "undefined here"
-            } else {
-                "out of range"
-            };
-            let mut d = Diagnostic::error(
-                ErrorCode::NotANumber,
-                why.span,
-                format!("{what} is NaN: {}", why.text()),
-            )
-            .with_label(label);
-            if why.call_span != why.span {
-                d = d.with_secondary(why.call_span, format!("`{}` is undefined here", why.func));
-            }
-            return d.with_hint("cells using this one are undefined too");
+    let Val::Scalar(out, q) = val else { return None };
+    // temporaries go after the new constants
+    let tbase = space.init.len() as u32;
+    let mut vals = space.init;
+    vals[..base].copy_from_slice(slots);
+    vals.resize((tbase + temps.max(1)) as usize, C64::new(0.0, 0.0));
+    let mut place = |s: &mut u32| {
+        if *s & TEMP_FLAG != 0 {
+            *s = tbase + (*s & !TEMP_FLAG);
         }
-        Diagnostic::error(
-            ErrorCode::NotANumber,
-            self.model.cells[id as usize].stmt_span,
-            format!("{what} evaluated to NaN (not a number)"),
-        )
-        .with_label("undefined result produced here")
-        .with_hint("look for 0/0, ∞ − ∞, 0·∞ or an input set to NaN; cells using this one are NaN too")
+    };
+    for ins in &mut code {
+        for_slots(ins, &mut place);
+        for_call_args(ins, &mut call_args, &mut place);
     }
+    let prog = Program {
+        call_args,
+        peak: model.ctx.peak,
+        ..Program::default()
+    };
+    run(&code, &prog, &mut vals);
+    let v = match out {
+        Operand::Const(c) => c,
+        Operand::Slot(mut s) => {
+            place(&mut s);
+            vals[s as usize]
+        }
+    };
+    Some((q, v))
 }
 
-/// `explain` for one case of a batch or sweep. `engine` is a scratch engine
-/// over the sheet's model (made once, `Engine::new(model.clone())`, and kept
-/// between cases); `slots` are the case's values, as the block evaluator
-/// left them for its lane (`Block::lane_slots`).
-pub fn explain_case(engine: &mut Engine, slots: &[C64], id: CellId) -> Option<Why> {
-    engine.load_slots(slots);
-    engine.explain(id)
+/// Why cell `id` of `model` is not a finite number in the case whose slot
+/// values are `slots`: the first call in its formula whose arguments fail
+/// the function's domain check. `None` when no function explains it (then
+/// the generic message stands).
+pub fn explain(model: &Model, slots: &[C64], id: CellId) -> Option<Why> {
+    let stmt = statement(model, id)?;
+    let mut found = Vec::new();
+    for e in exprs(&stmt) {
+        calls(e, &mut found);
+    }
+    for e in found {
+        let ExprKind::Call { func, args } = &e.kind else {
+            continue;
+        };
+        let Some((_, f)) = funcs::find(&func.name) else {
+            continue;
+        };
+        let Some(domain) = f.domain else { continue };
+        let mut vals = Vec::with_capacity(args.len());
+        let mut quantities = Vec::with_capacity(args.len());
+        for a in args {
+            let Some((q, v)) = argument(model, slots, a) else { break };
+            vals.push(v);
+            quantities.push(q);
+        }
+        if vals.len() != args.len() || vals.iter().any(|z| z.re.is_nan() || z.im.is_nan()) {
+            // an argument that is NaN itself was explained (or not) by
+            // the calls inside it, which come first
+            continue;
+        }
+        let Some(err) = domain(&vals, &model.ctx) else { continue };
+        let (span, message) = match err.arg {
+            Some(i) if i < args.len() => {
+                let p = f.params.get(i).or(f.params.last()).map_or("?", |p| p.name);
+                let shown = format_value(vals[i], quantities[i], None, Style { digits: 6 }).rect;
+                (
+                    args[i].span,
+                    format!("argument `{p}` = {shown} is out of range: {}", err.message),
+                )
+            }
+            _ => (e.span, err.message),
+        };
+        return Some(Why {
+            func: f.name,
+            span,
+            call_span: e.span,
+            message,
+        });
+    }
+    None
+}
+
+/// The error for cell `id` whose value came out NaN in the case `slots`:
+/// the function whose domain was left, located on the argument, or else
+/// the general message.
+pub fn nan_diagnostic(model: &Model, slots: &[C64], id: CellId) -> Diagnostic {
+    let c = &model.cells[id as usize];
+    let what = if c.is_check() {
+        "this check".to_string()
+    } else {
+        format!("`{}`", c.name)
+    };
+    if let Some(why) = explain(model, slots, id) {
+        let label = if why.span == why.call_span {
+            "undefined here"
+        } else {
+            "out of range"
+        };
+        let mut d = Diagnostic::error(
+            ErrorCode::NotANumber,
+            why.span,
+            format!("{what} is NaN: {}", why.text()),
+        )
+        .with_label(label);
+        if why.call_span != why.span {
+            d = d.with_secondary(why.call_span, format!("`{}` is undefined here", why.func));
+        }
+        return d.with_hint("cells using this one are undefined too");
+    }
+    Diagnostic::error(
+        ErrorCode::NotANumber,
+        c.stmt_span,
+        format!("{what} evaluated to NaN (not a number)"),
+    )
+    .with_label("undefined result produced here")
+    .with_hint("look for 0/0, ∞ − ∞, 0·∞ or an input set to NaN; cells using this one are NaN too")
+}
+
+impl Engine {
+    /// `explain` with the engine's current values.
+    pub fn explain(&self, id: CellId) -> Option<Why> {
+        explain(&self.model, &self.slots, id)
+    }
+
+    /// `nan_diagnostic` with the engine's current values.
+    pub fn nan_diagnostic(&self, id: CellId) -> Diagnostic {
+        nan_diagnostic(&self.model, &self.slots, id)
+    }
 }

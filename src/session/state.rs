@@ -355,9 +355,8 @@ impl Session {
         if hit.is_empty() {
             return String::new();
         }
-        let mut scratch = self.engine.clone();
         hit.into_iter()
-            .map(|id| self.render(&scratch.nan_diagnostic(id)))
+            .map(|id| self.render(&self.engine.nan_diagnostic(id)))
             .collect()
     }
 }

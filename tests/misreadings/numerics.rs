@@ -508,7 +508,7 @@ fn each_domain_error_names_the_argument_and_why() {
     for &(formula, says, at) in DOMAIN_CASES {
         // `open` is an open element: a capacitor of 0 F at 50 Hz (−j∞ Ω)
         let src = format!("open = z_cap(0 F, 50 Hz)\nx = {formula}\n");
-        let mut e = engine(&src);
+        let e = engine(&src);
         let id = e.model.id("x").unwrap();
         let why = e.explain(id).unwrap_or_else(|| panic!("{formula}: no explanation"));
         assert!(why.message.contains(says), "{formula}: {}", why.message);
@@ -710,4 +710,39 @@ fn switching_a_bank_off_with_set_gives_the_open_circuit_limit() {
     assert_eq!(row("Vl"), (277.0, 0.0));
     assert_eq!(row("Zth"), (0.02, 0.08));
     assert_eq!(row("Zp"), (0.02, 0.08));
+}
+
+#[test]
+fn the_batch_errors_file_says_which_argument_is_out_of_range() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("pfc.ohm");
+    std::fs::write(&sheet, "P = 100 kW\npf1 = 0.8\nQ = q_pfc(P, pf1, 0.95)\n").unwrap();
+    // 70 cases (two blocks of lanes); case 3 and case 66 out of range
+    let mut cases = String::from("pf1\n");
+    for i in 1..=70 {
+        cases.push_str(if i == 3 || i == 66 { "1.2\n" } else { "0.8\n" });
+    }
+    let cases_path = dir.path().join("cases.csv");
+    std::fs::write(&cases_path, cases).unwrap();
+    let out = dir.path().join("r.csv");
+    ohmsheet()
+        .args([
+            "batch",
+            sheet.to_str().unwrap(),
+            "--cases",
+            cases_path.to_str().unwrap(),
+        ])
+        .args(["--out", out.to_str().unwrap(), "--quiet"])
+        .assert()
+        .code(1);
+    let errs = std::fs::read_to_string(dir.path().join("r.errors.csv")).unwrap();
+    let lines: Vec<&str> = errs.lines().filter(|l| l.contains("q_pfc")).collect();
+    assert_eq!(lines.len(), 2, "{errs}");
+    for l in lines {
+        assert!(
+            l.contains("argument `pf1` = 1.2 is out of range: a power factor lies within −1 … +1"),
+            "{l}"
+        );
+        assert!(l.contains("pfc.ohm:3:14"), "located on the argument: {l}");
+    }
 }
