@@ -211,3 +211,54 @@ fn out_of_domain_is_an_error_not_a_number() {
             .stderr(predicate::str::contains("NaN"));
     }
 }
+
+// IEC 60027-3: a return loss is a level, shown in dB; a level in dB (or
+// a plain number read as one) goes back to a ratio; a percentage is not a
+// level and is refused.
+#[test]
+fn return_loss_is_a_level_in_decibels() {
+    let e = engine("rl = return_loss(0.2)\np = from_db_p(3 dB)\nv = from_db_v(rl)");
+    let q = e.model.cell("rl").unwrap().quantity().expect("a scalar");
+    assert_eq!(q.kind, ohmsheet::units::Kind::Decibel);
+    assert_close!(value(&e, "p"), re(10f64.powf(0.3)), 1e-12);
+    // RL = −20·log10|Γ|, so 10^(RL/20) = 1/|Γ|
+    assert_close!(value(&e, "v"), re(5.0), 1e-12);
+    let d = crate::common::errors("x = from_db_p(30 %)");
+    assert!(d[0].message.contains("must be a level in decibels"), "{}", d[0].message);
+}
+
+// The functions run lane by lane in a batch, and follow an input change.
+#[test]
+fn a_batch_over_line_lengths_and_an_input_change() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("line.ohm");
+    let cases = dir.path().join("cases.csv");
+    let out = dir.path().join("out.csv");
+    std::fs::write(
+        &sheet,
+        "len = 100 km\nline = line_pi_exact(j0.33 Ω/km, j3.5 µS/km, len)\nrise = 1 / abs(line.A)\n",
+    )
+    .unwrap();
+    std::fs::write(&cases, "len [km]\n0\n250\n500\n").unwrap();
+    ohmsheet()
+        .args(["batch", sheet.to_str().unwrap(), "--cases", cases.to_str().unwrap()])
+        .args(["--out", out.to_str().unwrap(), "--show", "rise"])
+        .assert()
+        .success();
+    let text = std::fs::read_to_string(&out).unwrap();
+    let rows: Vec<f64> = text
+        .lines()
+        .skip(1)
+        .map(|l| l.rsplit(',').next().unwrap().trim().parse().unwrap())
+        .collect();
+    // lossless line: 1/cos βℓ (Grainger & Stevenson ch. 6, from memory)
+    let b = (0.33e-3f64 * 3.5e-9).sqrt();
+    for (got, len) in rows.iter().zip([0.0, 250e3, 500e3]) {
+        assert!((got - 1.0 / (b * len).cos()).abs() < 1e-5, "{text}");
+    }
+    // the incremental engine: a new length re-runs the line and its rise
+    let mut e = engine("len = 100 km\nline = line_pi_exact(j0.33 Ω/km, j3.5 µS/km, len)\nrise = 1 / abs(line.A)");
+    let id = e.model.id("len").unwrap();
+    e.set_input(id, re(500e3));
+    assert_close!(value(&e, "rise"), re(1.0 / (b * 500e3).cos()), 1e-12);
+}
