@@ -29,11 +29,13 @@ fn cfg() -> ProptestConfig {
     }
 }
 
-/// A passive impedance: R ≥ 0, any X, magnitudes from 10 mΩ to 10 kΩ.
+/// A passive impedance, never zero (a shunt short has no ABCD
+/// parameters): R ≥ 0, any X, magnitudes from 10 mΩ to 10 kΩ.
 fn passive() -> impl Strategy<Value = (f64, f64)> {
-    (-2.0f64..4.0, -1.0f64..1.0, 0.0f64..1.0).prop_map(|(e, x, r)| {
+    (-2.0f64..4.0, -90.0f64..90.0).prop_map(|(e, deg)| {
         let m = 10f64.powf(e);
-        (m * r, m * x)
+        let t = deg.to_radians();
+        (m * t.cos(), m * t.sin())
     })
 }
 
