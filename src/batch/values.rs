@@ -236,6 +236,11 @@ fn unknown_unit(col: &CaseColumn, text: &str) -> Option<String> {
     let (num, unit) = text.split_once([' ', '\t'])?;
     let unit = unit.trim();
     plain_number(num)?;
+    // `2 ∠ 30 * 3` is a formula, not a number and a word: its own error
+    // (here, that it reads two ways) stands.
+    if unit.contains(char::is_whitespace) {
+        return None;
+    }
     match crate::units::parse_unit_expr(unit) {
         Err(e @ crate::units::UnitError::Unknown { .. }) => Some(unit_error_for(text, e, &col.name, col.want)),
         _ => None,

@@ -269,3 +269,62 @@ proptest! {
         }
     }
 }
+
+/// The same reading and the same refusals wherever a formula is typed: a
+/// `--set`, a cases table's value, a session line.
+#[test]
+fn every_entry_point_reads_alike() {
+    use predicates::prelude::*;
+    let d = tempfile::tempdir().unwrap();
+    let sheet = d.path().join("s.ohm");
+    std::fs::write(&sheet, "Vs = 1 V\nI = Vs / 2 Ω\n").unwrap();
+    let s = sheet.to_str().unwrap();
+    crate::common::ohmsheet()
+        .args(["run", s, "--set", "Vs=2 V ∠ 30° * 3"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("error[ambiguous-operators]"))
+        .stderr(predicate::str::contains("`(2 V ∠ 30°) * 3`"));
+    let out = crate::common::ohmsheet()
+        .args(["run", s, "--set", "Vs=480 V / sqrt(3) ∠ -30°", "--format", "json"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+    // cases: one value read, one refused with the same hint
+    let cases = d.path().join("cases.csv");
+    std::fs::write(&cases, "Vs\n480 V / sqrt(3) ∠ -30°\n2 V ∠ 30° * 3\n").unwrap();
+    let results = d.path().join("out.csv");
+    crate::common::ohmsheet()
+        .args([
+            "batch",
+            s,
+            "--cases",
+            cases.to_str().unwrap(),
+            "--out",
+            results.to_str().unwrap(),
+        ])
+        .assert()
+        .stderr(predicate::str::contains("(2 V ∠ 30°) * 3"));
+    let errs = std::fs::read_to_string(d.path().join("out.errors.csv")).unwrap();
+    assert!(errs.contains("2 V ∠ (30° * 3)"), "{errs}");
+    // the first row: I = (480/√3 V ∠ -30°) / 2 Ω, |I| = 138.56 A
+    let text = std::fs::read_to_string(&results).unwrap();
+    let row = text.lines().nth(1).unwrap();
+    let want = C64::from_polar(480.0 / 3f64.sqrt() / 2.0, (-30f64).to_radians());
+    // (read the old way, 480 V / (√3 ∠ -30°), the imaginary part would be +69.28)
+    let im: f64 = row.rsplit(',').next().unwrap().parse().unwrap();
+    assert!((im - want.im).abs() < 1e-9 * want.norm(), "{row} vs {want}");
+    // a session line
+    let out = crate::common::ohmsheet()
+        .arg(s)
+        .env("HOME", d.path())
+        .env("XDG_DATA_HOME", d.path())
+        .write_stdin("Vs = -x^2\n")
+        .output()
+        .unwrap();
+    let said = String::from_utf8_lossy(&out.stdout).to_string() + &String::from_utf8_lossy(&out.stderr);
+    assert!(
+        said.contains("ambiguous-operators") && said.contains("`(-x)^2`"),
+        "{said}"
+    );
+}
