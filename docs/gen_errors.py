@@ -57,6 +57,9 @@ ENTRIES = [
      "(`cos(30)`), which the language reads as radians. The sheet runs and the exit status is unchanged; the "
      "note shows `warning[trig-radians]` and the fix (`cos(30°)`, or `cos(30 rad)` to keep radians).", None,
      "`x = cos(30)` runs, and prints a `warning[trig-radians]` note saying it takes 30 as radians (about 1719°)."),
+    ("broken-cell", "A reference (an `@sweep` series, a session expression) to a cell that has no value because "
+     "its formula, or one it uses, has an error. The message names that error and its line; correct it first.",
+     "Vs = 480 V\nZ = 3 + j4 Ω\nI = Vs / Z\n@sweep \"Load current\" Vs = 400 V .. 500 V, 3 points : I\n", None),
     ("not-a-record", "`.field` on a single value.", "z = 3\nx = z.re\n", None),
     ("record-as-value", "A record used where one value is needed.", "p = parts(3 + j4)\nx = p * 2\n", None),
     ("bad-tolerance", "A check's tolerance without the unit of the values compared.",

@@ -223,6 +223,7 @@ error_codes! {
     AmbiguousOperators => "ambiguous-operators",
     TrigRadians => "trig-radians",
     KindMismatch => "kind-mismatch",
+    BrokenCell => "broken-cell",
     NotARecord => "not-a-record",
     RecordAsValue => "record-as-value",
     BadTolerance => "bad-tolerance",

@@ -18,7 +18,7 @@ use sha2::{Digest, Sha256};
 
 use crate::diag::{Diagnostic, ErrorCode, FileId, SourceFile, SourceMap, Span};
 use crate::engine::model::META_KEYS;
-use crate::syntax::ast::{Definition, Directive, Ident, Stmt, StmtKind};
+use crate::syntax::ast::{Definition, Directive, Expr, Ident, Stmt, StmtKind};
 use crate::syntax::{parse_line, parse_sheet};
 
 /// The directive that merges a library sheet.
@@ -84,6 +84,20 @@ pub struct Sheet {
     pub errors: Vec<Diagnostic>,
     /// The main file and every file it includes, in hashing order.
     pub files: Vec<SheetFile>,
+    /// Cells given a new formula by `--set`, with the formula they had:
+    /// the compiler checks the new value has the old one's dimension and
+    /// kind, and reports a mismatch at the `--set`.
+    pub overrides: Vec<Override>,
+}
+
+/// One `--set NAME=EXPR`.
+#[derive(Clone, Debug)]
+pub struct Override {
+    pub name: String,
+    /// The formula the sheet gives the cell.
+    pub original: Expr,
+    /// The whole `NAME=EXPR` text (in its own source file, `--set`).
+    pub span: Span,
 }
 
 /// Decode sheet bytes: UTF-8 (an error names the first bad byte), with a
@@ -137,6 +151,7 @@ impl Sheet {
                 meta: Vec::new(),
                 included_at: None,
             }],
+            overrides: Vec::new(),
         }
     }
 
@@ -202,6 +217,7 @@ impl Sheet {
                     stmts: ld.stmts,
                     errors: ld.errors,
                     files: ld.files,
+                    overrides: Vec::new(),
                 })
             }
             Err((at, good)) => {
@@ -262,6 +278,10 @@ impl Sheet {
         });
         match target {
             Some(def) => {
+                let original = match self.overrides.iter().find(|o| o.name == def.name.name) {
+                    Some(o) => o.original.clone(),
+                    None => def.expr.clone(),
+                };
                 let keep_display = def.display.take();
                 *def = Definition {
                     name: Ident {
@@ -271,6 +291,13 @@ impl Sheet {
                     expr: stmt.expr,
                     display: stmt.display.or(keep_display),
                 };
+                let name = stmt.name.name;
+                self.overrides.retain(|o| o.name != name);
+                self.overrides.push(Override {
+                    name,
+                    original,
+                    span: Span::new(id, 0, assignment.len()),
+                });
                 Ok(())
             }
             None => {

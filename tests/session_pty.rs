@@ -159,10 +159,13 @@ fn a_bad_line_shows_a_caret_and_leaves_the_sheet_intact() {
     let mut t = env.spawn(Some(&sheet));
     t.prompt();
 
+    // A wrong unit for an input is reported at the edit (issue 13 item 7),
+    // not at the later line it would upset (`Rt = R1 + R2`).
     t.line("R2 = 30 V");
     t.expect("error[dimension-mismatch]");
-    t.expect("Rt = R1 + R2");
-    t.expect("^^");
+    t.expect("`R2` is an impedance");
+    t.expect("input:1:6");
+    t.expect("^^^^");
     t.expect("the sheet is as it was");
     t.prompt();
 

@@ -171,6 +171,20 @@ fn quantity_mismatch(name: &str, want: Quantity, got: Quantity) -> Option<String
             want.describe()
         ));
     }
+    // Powers of another kind (a kvar column for an input in MW), a plain
+    // number for a percentage.
+    if !crate::units::kind::fits_input(want, got) {
+        let unit = if want.kind == Kind::Percent {
+            "%".to_string()
+        } else {
+            base_symbol(want)
+        };
+        return Some(format!(
+            "{}, but `{name}` is {}: give it in {unit}, or put the unit in the column header (`{name} [{unit}]`)",
+            got.describe(),
+            want.describe()
+        ));
+    }
     None
 }
 

@@ -12,7 +12,7 @@ use std::collections::HashMap;
 use std::ops::Range;
 
 use super::program::{Operand, Program};
-use crate::diag::{Diagnostic, FileId, SourceMap, Span};
+use crate::diag::{Diagnostic, ErrorCode, FileId, SourceMap, Span};
 use crate::funcs::{self, Ctx, Shape};
 use crate::syntax::ast::*;
 use crate::units::{Quantity, Unit};
@@ -194,6 +194,80 @@ impl Model {
     pub fn inputs(&self) -> impl Iterator<Item = (CellId, &Cell)> {
         self.defs().filter(|(_, c)| c.input && c.error.is_none())
     }
+
+    /// The error for a reference, at `at`, to cell `id` when that cell has
+    /// an error (its own, or one in a cell it uses): it names the cell and
+    /// the error rather than denying the cell exists. `None` if the cell
+    /// is sound.
+    pub fn broken_ref(&self, id: CellId, at: Option<Span>) -> Option<Diagnostic> {
+        broken_ref(&self.cells, &self.diagnostics, &self.sources, id, at)
+    }
+}
+
+/// `Model::broken_ref` over the parts of a model being built (`diags` may
+/// be empty: the message then gives the place of the error but not its
+/// text).
+pub(super) fn broken_ref(
+    cells: &[Cell],
+    diags: &[Diagnostic],
+    sources: &SourceMap,
+    id: CellId,
+    at: Option<Span>,
+) -> Option<Diagnostic> {
+    let cell = &cells[id as usize];
+    cell.error?;
+    // Follow the chain of upstream errors to the cell whose own formula is
+    // wrong (a cycle ends the walk where it closes).
+    let mut root = id;
+    for _ in 0..cells.len() {
+        match cells[root as usize].error {
+            Some(CellError::Upstream(b)) if b != root => root = b,
+            _ => break,
+        }
+    }
+    let r = &cells[root as usize];
+    let place = format!("{}:{}", sources.get(r.file).name, r.line);
+    let own = diags.iter().find(|d| {
+        d.is_error()
+            && d.span
+                .is_some_and(|s| s.file == r.stmt_span.file && s.start >= r.stmt_span.start && s.end <= r.stmt_span.end)
+    });
+    let what = match own {
+        Some(d) => format!("{} ({place})", d.message),
+        None => format!("an error at {place}"),
+    };
+    let message = if root == id {
+        format!(
+            "`{}` has no value: its formula has {}",
+            cell.name,
+            if own.is_some() {
+                format!("an error: {what}")
+            } else {
+                what.clone()
+            }
+        )
+    } else {
+        format!(
+            "`{}` has no value: it uses `{}`, whose formula has {}",
+            cell.name,
+            r.name,
+            if own.is_some() {
+                format!("an error: {what}")
+            } else {
+                what.clone()
+            }
+        )
+    };
+    let mut d = match at {
+        Some(at) => {
+            Diagnostic::error(ErrorCode::BrokenCell, at, message).with_label(format!("`{}` has an error", cell.name))
+        }
+        None => Diagnostic::unplaced(ErrorCode::BrokenCell, message),
+    };
+    if at.is_some_and(|a| a.file != r.stmt_span.file || a.start < r.stmt_span.start || a.end > r.stmt_span.end) {
+        d = d.with_secondary(r.stmt_span, "the error is on this line");
+    }
+    Some(d.with_hint(format!("correct `{}` first", r.name)))
 }
 
 /// A value while lowering.

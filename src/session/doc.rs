@@ -209,6 +209,7 @@ impl Doc {
             stmts,
             errors,
             files: self.files.clone(),
+            overrides: Vec::new(),
         }
     }
 

@@ -240,6 +240,11 @@ pub fn series_in(m: &Model, text: &str) -> Result<Series, Diagnostic> {
             }
         }
     }
+    // A cell with an error is named with its error, not denied.
+    let base = t.split_once('.').map_or(t, |(b, _)| b.trim());
+    if let Some(d) = m.id(base).and_then(|id| m.broken_ref(id, None)) {
+        return Err(d);
+    }
     let names = m.defs().map(|(_, c)| c.name.as_str());
     let mut d = Diagnostic::unplaced(ErrorCode::UnknownName, format!("the sheet has no cell `{t}` to show"));
     if let Some(s) = did_you_mean(t, names) {

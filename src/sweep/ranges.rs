@@ -182,6 +182,19 @@ fn bound_value(
     let zero = v.re == 0.0 && bq.is_plain_number();
     let same_dim = bq.dim == q.dim;
     let angle_clash = q.kind == Kind::Angle && bq.kind != Kind::Angle;
+    if !zero && same_dim && !angle_clash && !crate::units::kind::fits_input(q, bq) {
+        // The right dimension but another kind: 0..2000 kW for an input in kvar.
+        let text = sources.slice(e.span);
+        let unit = input.display.as_ref().map(|u| u.symbol.as_str());
+        let (_, hint) = crate::units::kind::input_clash(&input.name, q, bq, text, unit);
+        return Err(Diagnostic::error(
+            ErrorCode::KindMismatch,
+            e.span,
+            format!("{what} is {}, but `{}` is {}", bq.describe(), input.name, q.describe()),
+        )
+        .with_label(bq.describe())
+        .with_hint(hint));
+    }
     if !zero && (!same_dim || angle_clash) {
         let unit = crate::units::format::base_symbol(q);
         let hint = if angle_clash {

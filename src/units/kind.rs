@@ -323,6 +323,60 @@ pub fn kind_of_quotient(
     Ok(Quantity::new(dim, k).kind)
 }
 
+/// Whether a value of quantity `got` may be given to an input of quantity
+/// `want` (`--set`, `--vary`, sweep, solve and search ranges, a cases
+/// table, a session edit): the same dimension, and a kind that cannot be
+/// misread. Power kinds must match (2000 kW is not a reactive power); an
+/// angle only for an angle; Hz and rad/s never for each other; a plain
+/// number is refused for a percentage (`12` would be 1200 %); a level in dB
+/// takes dB or a plain number (the stored number is the dB value); a
+/// percentage, per-unit or plain value may set one another otherwise (5 %
+/// is 0.05 pu).
+pub fn fits_input(want: Quantity, got: Quantity) -> bool {
+    use Kind::*;
+    let (want, got) = (want.normalized(), got.normalized());
+    if want.dim != got.dim {
+        return false;
+    }
+    match (want.kind, got.kind) {
+        (a, b) if a == b => true,
+        (a, b) if a.is_power() || b.is_power() => false,
+        (Angle, _) | (_, Angle) => false,
+        (Hertz, RadPerSec) | (RadPerSec, Hertz) => false,
+        (Percent, Plain) => false,
+        (Decibel, Plain) => true,
+        (Decibel, _) | (_, Decibel) => false,
+        _ => true,
+    }
+}
+
+/// The message and hint for a value that does not fit an input (see
+/// `fits_input`): "`Qc` is a reactive power (var); `2000 kW` is a real
+/// power (W)", and a hint with the unit to write, which is `unit` (the unit
+/// the sheet gives the input) when known.
+pub fn input_clash(name: &str, want: Quantity, got: Quantity, text: &str, unit: Option<&str>) -> (String, String) {
+    let base = super::format::base_symbol(want);
+    let unit = unit.map_or(base, str::to_string);
+    let message = format!("`{name}` is {}; `{text}` is {}", want.describe(), got.describe());
+    let number = text.trim();
+    let bare = number.parse::<f64>().is_ok();
+    let hint = if want.kind == Kind::Angle {
+        if bare {
+            format!("write `{number}°` (or `{number} rad`)")
+        } else {
+            "give an angle: `30°` or `0.5 rad`".to_string()
+        }
+    } else if bare && !unit.is_empty() {
+        let sep = if unit == "°" { "" } else { " " };
+        format!("write `{number}{sep}{unit}`")
+    } else if unit.is_empty() {
+        format!("give {}", want.describe())
+    } else {
+        format!("give the value in {unit}, as {} is", want.describe())
+    };
+    (message, hint)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -238,7 +238,12 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
             searches: &pending_searches,
         };
         let result = match (&pending[i].expr, &pending[i].check) {
-            (Some(e), _) => lw.lower_def(&mut em, e, &cells[i]),
+            (Some(e), _) => match sheet.overrides.iter().find(|o| o.name == cells[i].name) {
+                Some(ov) => lw
+                    .check_override(e, ov)
+                    .and_then(|()| lw.lower_def(&mut em, e, &cells[i])),
+                None => lw.lower_def(&mut em, e, &cells[i]),
+            },
             (None, Some(c)) => lw.lower_check(&mut em, c).map(|(v, tol)| {
                 cells[i].tol = Some(tol);
                 v

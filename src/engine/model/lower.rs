@@ -70,6 +70,63 @@ impl Lowerer<'_> {
         }
     }
 
+    /// The quantity of `e`, lowered into scratch code that is thrown away;
+    /// `None` if it uses a cell not lowered yet or has an error.
+    fn quantity_of(&self, e: &Expr) -> Option<Quantity> {
+        if matches!(e.kind, ExprKind::Search(_)) {
+            return None;
+        }
+        let mut ready = true;
+        e.for_each_name(&mut |id| {
+            if let Some(&c) = self.by_name.get(&id.name) {
+                ready &= self.cells[c as usize].shape.is_some() && self.cells[c as usize].error.is_none();
+            }
+        });
+        if !ready {
+            return None;
+        }
+        let (mut code, mut args, mut slots) = (Vec::new(), Vec::new(), crate::engine::program::SlotSpace::default());
+        let mut em = Emitter {
+            code: &mut code,
+            call_args: &mut args,
+            slots: &mut slots,
+            next_temp: 0,
+            peak: self.ctx.peak,
+        };
+        let searches = std::cell::RefCell::new(Vec::new());
+        let scratch = Lowerer {
+            searches: &searches,
+            ..*self
+        };
+        match scratch.expr(&mut em, e) {
+            Ok(Val::Scalar(_, q)) => Some(q),
+            _ => None,
+        }
+    }
+
+    /// A `--set` must give the cell a value of the dimension and kind of the
+    /// formula it replaces; a mismatch is reported at the `--set`, not at
+    /// the later lines it would upset.
+    pub(super) fn check_override(&self, e: &Expr, ov: &crate::sheet::Override) -> R<()> {
+        let (Some(want), Some(got)) = (self.quantity_of(&ov.original), self.quantity_of(e)) else {
+            return Ok(());
+        };
+        if crate::units::kind::fits_input(want, got) {
+            return Ok(());
+        }
+        let unit = super::literal_unit(&ov.original).map(|u| u.symbol);
+        let text = self.sources.slice(e.span);
+        let (message, hint) = crate::units::kind::input_clash(&ov.name, want, got, text, unit.as_deref());
+        let code = if want.dim == got.dim {
+            ErrorCode::KindMismatch
+        } else {
+            ErrorCode::BadOverride
+        };
+        Err(Diagnostic::error(code, e.span, message)
+            .with_label(format!("given by `--set {}`", self.sources.slice(ov.span)))
+            .with_hint(hint))
+    }
+
     pub(super) fn display_span(&self, cell: &Cell) -> Span {
         // The display unit is the last bracket of the statement.
         let text = self.sources.slice(cell.stmt_span);
@@ -304,7 +361,13 @@ impl Lowerer<'_> {
                     .map(|(k, &(n, q))| (n, Operand::Slot(c.slot + k as u32), q))
                     .collect(),
             )),
-            None => unreachable!("cells with errors are not lowered against"),
+            // Compiling never lowers against a cell with an error; a
+            // session's expression or edit may name one.
+            None => Err(
+                super::broken_ref(self.cells, &[], self.sources, cid, Some(id.span)).unwrap_or_else(|| {
+                    Diagnostic::error(ErrorCode::BrokenCell, id.span, format!("`{}` has no value", id.name))
+                }),
+            ),
         }
     }
 

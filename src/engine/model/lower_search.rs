@@ -192,9 +192,14 @@ impl Lowerer<'_> {
         ] {
             let zero = o.konst() == Some(C64::new(0.0, 0.0)) && q.is_plain_number();
             let angle_clash = vq.kind == Kind::Angle && q.kind != Kind::Angle;
-            if !zero && (q.dim != vq.dim || angle_clash) {
+            if !zero && (q.dim != vq.dim || angle_clash || !crate::units::kind::fits_input(vq, q)) {
+                let code = if q.dim == vq.dim && !angle_clash {
+                    ErrorCode::KindMismatch
+                } else {
+                    ErrorCode::DimensionMismatch
+                };
                 return Err(Diagnostic::error(
-                    ErrorCode::DimensionMismatch,
+                    code,
                     e.span,
                     format!("{what} is {}, but `{}` is {}", q.describe(), s.var.name, vq.describe()),
                 )

@@ -53,6 +53,13 @@ impl Session {
     /// refused and nothing changes. Returns the inverse edit and what
     /// changed.
     pub(super) fn apply(&mut self, edit: Edit, force: bool) -> Result<(Edit, Vec<Shown>), String> {
+        // An input given a value of another dimension or kind: if that
+        // brings errors, they are reported here, at the edit.
+        let clash = if force { None } else { self.input_clash(&edit) };
+        if let Some((d, true)) = &clash {
+            return Err(self.render(d));
+        }
+        let clash = clash.map(|(d, _)| d);
         // The fast paths.
         match &edit {
             Edit::Replace(idx, line) => {
@@ -111,6 +118,16 @@ impl Session {
                 .iter()
                 .filter(|d| d.is_error() && !old.contains(d))
                 .collect();
+            if let (Some(d), false) = (&clash, fresh.is_empty()) {
+                let n = fresh.len();
+                let text = format!(
+                    "{}  (as written it would bring {n} error{} in the cells that use it)\n",
+                    d.render(&self.engine.model.sources, self.color).trim_end(),
+                    if n == 1 { "" } else { "s" }
+                );
+                self.doc_apply(inverse);
+                return Err(text);
+            }
             if !fresh.is_empty() {
                 let text: String = sorted_refs(&fresh)
                     .into_iter()
@@ -124,6 +141,54 @@ impl Session {
         let shown = diff(&self.engine, &engine, self.style, self.polar);
         self.engine = engine;
         Ok((inverse, shown))
+    }
+
+    /// The error for an edit that gives an input other cells use a value of
+    /// another dimension or kind (`Vs = 480` for an input in volts), at the
+    /// edit, and whether it is refused outright: a plain number for an
+    /// input with a unit (a forgotten unit), or another kind of the same
+    /// dimension (kW for kvar). A value with a unit of another dimension
+    /// (`g = 2 A` for a plain `g`) is a deliberate change, refused (with
+    /// this error, at the edit) only when it would bring errors in the
+    /// cells that use it.
+    fn input_clash(&mut self, edit: &Edit) -> Option<(Diagnostic, bool)> {
+        let Edit::Replace(idx, line) = edit else { return None };
+        let Some(StmtKind::Def(d)) = line.stmt.as_ref().map(|s| &s.kind) else {
+            return None;
+        };
+        let m = &self.engine.model;
+        let id = m.id(&d.name.name)?;
+        let c = &m.cells[id as usize];
+        let users = &m.dependents[id as usize];
+        if self.doc.lines[*idx].defines() != Some(d.name.name.as_str()) || !c.input || users.is_empty() {
+            return None;
+        }
+        let Some(crate::funcs::Shape::Scalar(want)) = c.shape else {
+            return None;
+        };
+        let unit = c.display.as_ref().map(|u| u.symbol.clone());
+        let names: Vec<String> = users.iter().take(5).map(|&u| show::cell_label(m, u)).collect();
+        let e = d.expr.clone();
+        let Ok((crate::funcs::Shape::Scalar(got), _)) = self.engine.evaluate(&e) else {
+            return None;
+        };
+        if crate::units::kind::fits_input(want, got) {
+            return None;
+        }
+        let text = self.engine.model.sources.slice(e.span).to_string();
+        let (message, hint) = crate::units::kind::input_clash(&d.name.name, want, got, &text, unit.as_deref());
+        let code = if want.dim == got.dim {
+            ErrorCode::KindMismatch
+        } else {
+            ErrorCode::DimensionMismatch
+        };
+        let outright = want.dim == got.dim || (got.is_plain_number() && !want.is_plain_number());
+        Some((
+            Diagnostic::error(code, e.span, message)
+                .with_label(format!("`{}` is used by {}", d.name.name, names.join(", ")))
+                .with_hint(hint),
+            outright,
+        ))
     }
 
     /// Change the document; returns the inverse edit.
