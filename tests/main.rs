@@ -6,6 +6,7 @@ mod common;
 mod batch_cases;
 mod block_lanes;
 mod check_cmd;
+mod check_formats;
 mod cli_batch;
 mod cli_run;
 mod comparisons;

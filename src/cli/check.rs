@@ -8,12 +8,20 @@ use std::path::PathBuf;
 use clap::Args;
 
 use super::run::report_nans;
-use super::{load_sheet, LoadArgs, EXIT_CHECK_FAILED, EXIT_ERROR, EXIT_OK};
+use super::{LoadArgs, EXIT_CHECK_FAILED, EXIT_ERROR, EXIT_OK};
 use crate::engine::Engine;
 use crate::output;
+use crate::output::checks::{self, SheetChecks, Totals};
 use crate::units::format::Style;
 
 #[derive(Args, Debug)]
+#[command(
+    after_help = "Exit status: 0 every check passed, 1 a check failed, 2 a sheet could not be evaluated.\n\n\
+Examples:\n  \
+ohmsheet check sheets/\n  \
+ohmsheet check sheets/ --format junit -o check-results.xml\n  \
+ohmsheet check feeder.ohm motor.ohm --format json --digits 6"
+)]
 pub struct CheckArgs {
     /// Sheets, or folders searched (with their subfolders) for *.ohm sheets
     #[arg(required = true, value_name = "SHEET_OR_FOLDER")]
@@ -21,8 +29,23 @@ pub struct CheckArgs {
     /// Significant digits shown
     #[arg(long, default_value_t = 4, value_parser = clap::value_parser!(u8).range(1..=15))]
     pub digits: u8,
+    /// Output format: text lines for people, or JSON or JUnit XML (read natively by CI systems)
+    #[arg(long, value_enum, default_value_t = CheckFormat::Text)]
+    pub format: CheckFormat,
+    /// Write the JSON or JUnit XML result to FILE (written whole, or not at all); the text lines
+    /// still go to the terminal
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: Option<PathBuf>,
     #[command(flatten)]
     pub load: LoadArgs,
+}
+
+/// What `check` writes.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, clap::ValueEnum)]
+pub enum CheckFormat {
+    Text,
+    Json,
+    Junit,
 }
 
 /// The sheets named, folders expanded to the *.ohm files under them in
@@ -66,6 +89,49 @@ fn sheets(paths: &[PathBuf]) -> (Vec<PathBuf>, Vec<String>) {
     (out, problems)
 }
 
+/// Load and compile a sheet as `load_sheet` does (diagnostics on stderr),
+/// giving the diagnostics as plain text on failure.
+fn load(f: &std::path::Path, opts: &crate::sheet::LoadOptions) -> Result<Engine, String> {
+    let sheet = match crate::sheet::Sheet::load_with(f, opts) {
+        Ok(s) => s,
+        Err(e) => {
+            e.diagnostic.eprint(&e.sources);
+            return Err(e.diagnostic.render_plain(&e.sources));
+        }
+    };
+    let model = crate::engine::compile(&sheet);
+    if model.has_errors() {
+        super::report(&model.sources, &model.diagnostics);
+        let text: Vec<String> = model
+            .diagnostics
+            .iter()
+            .filter(|d| d.is_error())
+            .map(|d| d.render_plain(&model.sources))
+            .collect();
+        return Err(text.join(""));
+    }
+    Ok(Engine::new(model))
+}
+
+/// The NaN messages `report_nans` prints, as plain text.
+fn nan_text(engine: &Engine) -> String {
+    let m = &engine.model;
+    let mut out = String::new();
+    for id in engine.nan_origins() {
+        let c = &m.cells[id as usize];
+        match crate::sweep::search_failure(engine, id) {
+            Some(d) => out.push_str(&d.render_plain(&m.sources)),
+            None => out.push_str(&format!(
+                "{}:{}: `{}` evaluated to NaN (not a number)\n",
+                m.sources.get(c.file).name,
+                c.line,
+                c.name
+            )),
+        }
+    }
+    out
+}
+
 pub fn check(a: &CheckArgs) -> i32 {
     let style = Style {
         digits: a.digits as usize,
@@ -75,24 +141,37 @@ pub fn check(a: &CheckArgs) -> i32 {
         eprintln!("error: {p}");
     }
     let opts = a.load.options();
-    let (mut passed, mut failed, mut broken, mut no_checks) = (0usize, 0usize, problems.len(), 0usize);
+    // The lines for people go to stdout unless a machine format does.
+    let text = a.format == CheckFormat::Text || a.output.is_some();
+    let say = |line: String| {
+        if text {
+            println!("{line}")
+        }
+    };
+    let mut results: Vec<SheetChecks> = Vec::new();
     for f in &files {
         let shown = f.display().to_string();
         let name = shown.strip_prefix("./").unwrap_or(&shown).to_string();
-        let Ok((_, model)) = load_sheet(f, &[], &opts) else {
-            println!("ERROR {name}: the sheet has errors (shown above)");
-            broken += 1;
-            continue;
+        let engine = match load(f, &opts) {
+            Ok(e) => e,
+            Err(why) => {
+                say(format!("ERROR {name}: the sheet has errors (shown above)"));
+                results.push(SheetChecks {
+                    sheet: name,
+                    error: Some(why),
+                    checks: Vec::new(),
+                });
+                continue;
+            }
         };
-        let engine = Engine::new(model);
         let rows = output::check_rows(&engine, style);
+        let mut error = None;
         if report_nans(&engine) {
-            println!("ERROR {name}: a value is not a number (shown above)");
-            broken += 1;
+            say(format!("ERROR {name}: a value is not a number (shown above)"));
+            error = Some(nan_text(&engine));
         }
         if rows.is_empty() {
-            println!("  --  {name}: no checks");
-            no_checks += 1;
+            say(format!("  --  {name}: no checks"));
         }
         for c in &rows {
             let verdict = if c.passed { "pass" } else { "FAIL" };
@@ -102,18 +181,28 @@ pub fn check(a: &CheckArgs) -> i32 {
                 let file = c.file.strip_prefix("./").unwrap_or(&c.file);
                 format!("{file}:{} (included by {name})", c.line)
             };
-            println!(
+            say(format!(
                 "{verdict}  {where_}  {}  (computed {}, |difference| {}, allowed {})",
                 c.expr, c.lhs_display, c.error_display, c.tolerance_display
-            );
-            if c.passed {
-                passed += 1;
-            } else {
-                failed += 1;
-            }
+            ));
         }
+        let rows = rows
+            .into_iter()
+            .map(|mut c| {
+                if let Some(x) = c.file.strip_prefix("./") {
+                    c.file = x.to_string();
+                }
+                c
+            })
+            .collect();
+        results.push(SheetChecks {
+            sheet: name,
+            error,
+            checks: rows,
+        });
     }
-    let sheets_n = files.len();
+    let t = Totals::of(&results, problems.len());
+    let (passed, failed, broken, no_checks, sheets_n) = (t.passed, t.failed, t.errors, t.without_checks, t.sheets);
     let mut summary = format!(
         "{} check{} in {sheets_n} sheet{}: {passed} pass, {failed} fail",
         passed + failed,
@@ -129,7 +218,29 @@ pub fn check(a: &CheckArgs) -> i32 {
     if broken > 0 {
         summary.push_str(&format!("; {broken} error{}", if broken == 1 { "" } else { "s" }));
     }
-    println!("{summary}");
+    say(summary);
+    let doc = match a.format {
+        CheckFormat::Text => None,
+        CheckFormat::Json => Some(checks::to_json(&results, &problems) + "\n"),
+        CheckFormat::Junit => Some(checks::to_junit(&results, &problems)),
+    };
+    match (doc, &a.output) {
+        (Some(doc), Some(path)) => {
+            if let Err(e) = crate::fsutil::write_atomic(path, doc.as_bytes()) {
+                eprintln!("error: cannot write `{}`: {e}", path.display());
+                return EXIT_ERROR;
+            }
+        }
+        (Some(doc), None) => print!("{doc}"),
+        (None, Some(path)) => {
+            eprintln!(
+                "error: --output `{}` needs a machine-readable --format (json or junit); the text goes to the terminal",
+                path.display()
+            );
+            return EXIT_ERROR;
+        }
+        (None, None) => {}
+    }
     if broken > 0 {
         EXIT_ERROR
     } else if failed > 0 {

@@ -2,6 +2,7 @@
 //! for people, JSON and CSV for programs. Only this module and the CLI know
 //! about output formats.
 
+pub mod checks;
 pub mod report;
 pub mod sweep;
 pub mod table;
