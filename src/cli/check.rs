@@ -110,6 +110,9 @@ fn load(f: &std::path::Path, opts: &crate::sheet::LoadOptions) -> Result<Engine,
             .collect();
         return Err(text.join(""));
     }
+    // Notes (warnings) do not stop the sheet, but are shown.
+    let notes: Vec<crate::diag::Diagnostic> = model.diagnostics.iter().filter(|d| !d.is_error()).cloned().collect();
+    super::report(&model.sources, &notes);
     Ok(Engine::new(model))
 }
 
