@@ -26,6 +26,7 @@ mod limits;
 mod lines_rf;
 mod matching_pi_t;
 mod misreadings;
+mod plot_render;
 mod properties;
 mod readme;
 mod reference;

@@ -394,7 +394,13 @@ fn plot_is_svg_with_labelled_axes_and_a_legend() {
             svg_path.to_str().unwrap(),
         ])
         .assert()
-        .code(0);
+        .code(0)
+        // It says which file it wrote, and what is in it: |I|, |Z| and
+        // the phase of both.
+        .stderr(predicate::str::contains(format!(
+            "wrote the plot {} (3 panels, 4 curves; SVG)",
+            svg_path.display()
+        )));
     let text = std::fs::read_to_string(&svg_path).unwrap();
     let doc = roxmltree::Document::parse(&text).expect("the plot parses as XML");
     assert_eq!(doc.root_element().tag_name().name(), "svg");

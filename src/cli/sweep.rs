@@ -370,7 +370,7 @@ fn emit(
         }
     }
     if let Some(p) = &a.plot {
-        let svg = match crate::plot::svg(
+        let (svg, geo) = match crate::plot::svg_with_geometry(
             r,
             &crate::plot::PlotOptions {
                 parts,
@@ -389,6 +389,14 @@ fn emit(
         if let Err(e) = write_atomic(p, |w| w.write_all(svg.as_bytes())) {
             return io_error(p, e);
         }
+        let curves: usize = geo.panels.iter().map(|g| g.curves.len()).sum();
+        eprintln!(
+            "wrote the plot {} ({} panel{}, {curves} curve{}; SVG)",
+            p.display(),
+            geo.panels.len(),
+            if geo.panels.len() == 1 { "" } else { "s" },
+            if curves == 1 { "" } else { "s" }
+        );
     }
     if a.chart {
         let width = terminal_width().clamp(40, 160);

@@ -370,6 +370,148 @@ fn segments(points: &[(f64, f64)]) -> Vec<Vec<(f64, f64)>> {
 
 type Area<'a> = DrawingArea<SVGBackend<'a>, Shift>;
 
+/// A rectangle in picture pixels: left, top, right, bottom.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Rect {
+    pub x0: i32,
+    pub y0: i32,
+    pub x1: i32,
+    pub y1: i32,
+}
+
+impl Rect {
+    pub fn contains(&self, (x, y): (i32, i32)) -> bool {
+        (self.x0..=self.x1).contains(&x) && (self.y0..=self.y1).contains(&y)
+    }
+}
+
+/// Where things landed in a drawn plot, in picture pixels: for tests that
+/// look at the rendered picture.
+#[derive(Clone, Debug)]
+pub struct Geometry {
+    pub width: u32,
+    pub height: u32,
+    pub panels: Vec<PanelGeometry>,
+}
+
+/// A colour: red, green, blue.
+pub type Rgb = (u8, u8, u8);
+
+#[derive(Clone, Debug)]
+pub struct PanelGeometry {
+    /// The plotting area (inside the axes).
+    pub plot: Rect,
+    /// The legend's box, beside the plotting area.
+    pub legend: Rect,
+    /// Each curve's colour and its points, as drawn.
+    pub curves: Vec<(Rgb, Vec<(i32, i32)>)>,
+    /// The marks for undefined points.
+    pub marks: Vec<(i32, i32)>,
+}
+
+/// One line of a legend.
+enum Entry<'a> {
+    Line(&'a str, RGBColor),
+    Mark(String),
+}
+
+fn legend_entries<'a>(lay: &Layout, panel: &'a Panel, first: bool) -> Vec<Entry<'a>> {
+    let mut v: Vec<Entry> = panel
+        .curves
+        .iter()
+        .map(|c| Entry::Line(c.label.as_str(), COLOURS[c.colour]))
+        .collect();
+    if first && !lay.undefined.is_empty() {
+        v.push(Entry::Mark(format!(
+            "undefined (NaN or ∞): {} point{}",
+            lay.undefined.len(),
+            if lay.undefined.len() == 1 { "" } else { "s" }
+        )));
+    }
+    v
+}
+
+/// Legend text size and row height, in pixels.
+const LEGEND_FONT: u32 = 13;
+const LEGEND_ROW: i32 = 19;
+/// Room for the sample line before a legend's text, and around it.
+const LEGEND_SWATCH: i32 = 30;
+const LEGEND_PAD: i32 = 8;
+/// The widest a legend column may take of the picture.
+const LEGEND_MAX_SHARE: f64 = 0.4;
+
+/// A generous width for text in the legend font (sans-serif glyphs average
+/// well under 0.6 em; digits are 0.55 em).
+fn text_width(s: &str) -> i32 {
+    (s.chars().count() as f64 * 0.6 * LEGEND_FONT as f64).ceil() as i32
+}
+
+/// Shorten a label to fit `max` pixels, ending in `…`.
+fn fit(s: &str, max: i32) -> String {
+    if text_width(s) <= max {
+        return s.to_string();
+    }
+    let keep = ((max as f64 / (0.6 * LEGEND_FONT as f64)) as usize).saturating_sub(1);
+    let mut t: String = s.chars().take(keep).collect();
+    t.push('…');
+    t
+}
+
+fn entry_text(e: &Entry) -> String {
+    match e {
+        Entry::Line(l, _) => l.to_string(),
+        Entry::Mark(l) => l.clone(),
+    }
+}
+
+/// Draw a legend in its own column beside the plotting area (never over
+/// the curves); returns its box.
+fn draw_legend(area: &Area, entries: &[Entry], top: i32) -> Result<Rect, String> {
+    let e = |e: &dyn std::fmt::Display| e.to_string();
+    let (w, _) = area.dim_in_pixel();
+    let (bx, by) = area.get_base_pixel();
+    let x0 = 4;
+    let x1 = w as i32 - 8;
+    let y0 = top;
+    let y1 = top + 2 * LEGEND_PAD + LEGEND_ROW * entries.len() as i32 - (LEGEND_ROW - LEGEND_FONT as i32);
+    area.draw(&Rectangle::new(
+        [(x0, y0), (x1, y1)],
+        ShapeStyle::from(&RGBColor(160, 160, 160)).stroke_width(1),
+    ))
+    .map_err(|x| e(&x))?;
+    let font = ("sans-serif", LEGEND_FONT).into_font().color(&BLACK);
+    let text_max = x1 - x0 - LEGEND_SWATCH - LEGEND_PAD;
+    for (i, en) in entries.iter().enumerate() {
+        let y = y0 + LEGEND_PAD + LEGEND_ROW * i as i32;
+        let mid = y + LEGEND_FONT as i32 / 2;
+        let sx = x0 + LEGEND_PAD;
+        match en {
+            Entry::Line(_, colour) => area
+                .draw(&PathElement::new(
+                    vec![(sx, mid), (sx + 18, mid)],
+                    ShapeStyle::from(colour).stroke_width(2),
+                ))
+                .map_err(|x| e(&x))?,
+            Entry::Mark(_) => area
+                .draw(&Cross::new((sx + 9, mid), 5, ShapeStyle::from(&MARK).stroke_width(2)))
+                .map_err(|x| e(&x))?,
+        }
+        area.draw(&Text::new(
+            fit(&entry_text(en), text_max),
+            (x0 + LEGEND_SWATCH, y),
+            font.clone(),
+        ))
+        .map_err(|x| e(&x))?;
+    }
+    Ok(Rect {
+        x0: bx + x0,
+        y0: by + y0,
+        x1: bx + x1,
+        y1: by + y1,
+    })
+}
+
+/// Draw one panel's axes and curves; the legend is drawn beside it.
 fn draw_panel<'a, X>(
     area: &Area<'a>,
     xspec: X,
@@ -377,7 +519,7 @@ fn draw_panel<'a, X>(
     panel: &Panel,
     first: bool,
     last: bool,
-) -> Result<(), String>
+) -> Result<PanelGeometry, String>
 where
     X: AsRangedCoord<Value = f64>,
     X::CoordDescType: ValueFormatter<f64>,
@@ -386,7 +528,7 @@ where
     let (ylo, yhi) = y_range(panel);
     let mut chart = ChartBuilder::on(area)
         .margin_left(12)
-        .margin_right(24)
+        .margin_right(16)
         .margin_top(8)
         .margin_bottom(4)
         .x_label_area_size(if last { 44 } else { 24 })
@@ -410,12 +552,20 @@ where
         mesh.x_desc(lay.x.label.as_str());
     }
     mesh.draw().map_err(|x| e(&x))?;
+    let (px, py) = chart.plotting_area().get_pixel_range();
+    let plot = Rect {
+        x0: px.start,
+        y0: py.start,
+        x1: px.end - 1,
+        y1: py.end - 1,
+    };
+    let mut curves = Vec::new();
     for c in &panel.curves {
         let colour = COLOURS[c.colour];
         let style = ShapeStyle::from(&colour).stroke_width(2);
-        let segs = segments(&c.points);
-        let mut labelled = false;
-        for seg in segs {
+        let mut drawn = Vec::new();
+        for seg in segments(&c.points) {
+            drawn.extend(seg.iter().map(|p| chart.backend_coord(p)));
             // A lone point between undefined ones shows as a dot.
             if seg.len() == 1 {
                 chart
@@ -423,49 +573,68 @@ where
                     .map_err(|x| e(&x))?;
                 continue;
             }
-            let s = chart.draw_series(LineSeries::new(seg, style)).map_err(|x| e(&x))?;
-            if !labelled {
-                s.label(c.label.as_str()).legend(move |(x, y)| {
-                    PathElement::new(vec![(x, y), (x + 22, y)], ShapeStyle::from(&colour).stroke_width(2))
-                });
-                labelled = true;
-            }
+            chart.draw_series(LineSeries::new(seg, style)).map_err(|x| e(&x))?;
         }
+        curves.push(((colour.0, colour.1, colour.2), drawn));
     }
+    let mut marks = Vec::new();
     if first && !lay.undefined.is_empty() {
         let y = ylo + 0.02 * (yhi - ylo);
-        let s = chart
+        let xs: Vec<f64> = lay.undefined.iter().copied().filter(|x| x.is_finite()).collect();
+        marks.extend(xs.iter().map(|&x| chart.backend_coord(&(x, y))));
+        chart
             .draw_series(
-                lay.undefined
-                    .iter()
-                    .filter(|x| x.is_finite())
+                xs.iter()
                     .map(|&x| Cross::new((x, y), 5, ShapeStyle::from(&MARK).stroke_width(2))),
             )
             .map_err(|x| e(&x))?;
-        s.label(format!(
-            "undefined (NaN or ∞): {} point{}",
-            lay.undefined.len(),
-            if lay.undefined.len() == 1 { "" } else { "s" }
-        ))
-        .legend(|(x, y)| Cross::new((x + 11, y), 5, ShapeStyle::from(&MARK).stroke_width(2)));
     }
-    chart
-        .configure_series_labels()
-        .position(SeriesLabelPosition::UpperRight)
-        .background_style(WHITE.mix(0.85))
-        .border_style(RGBColor(160, 160, 160))
-        .label_font(("sans-serif", 13))
-        .draw()
-        .map_err(|x| e(&x))?;
-    Ok(())
+    Ok(PanelGeometry {
+        plot,
+        legend: plot,
+        curves,
+        marks,
+    })
 }
 
 /// Draw a sweep as an SVG document.
 pub fn svg(r: &SweepResult, o: &PlotOptions) -> Result<String, String> {
+    svg_with_geometry(r, o).map(|(s, _)| s)
+}
+
+/// Draw a sweep as an SVG document, and say where its parts landed.
+///
+/// Each panel's legend stands in a column of its own to the right of the
+/// plotting area, so it never covers a curve; the column is as wide as the
+/// longest label needs (at most 40 % of the picture; longer labels end in
+/// `…`), and a panel grows taller when its legend needs the room. Every
+/// curve lies inside its panel's axis ranges: the y range holds every
+/// finite value with a margin, and the x range is the swept range.
+pub fn svg_with_geometry(r: &SweepResult, o: &PlotOptions) -> Result<(String, Geometry), String> {
     let lay = layout(r, o.parts)?;
+    let entries: Vec<Vec<Entry>> = lay
+        .panels
+        .iter()
+        .enumerate()
+        .map(|(i, p)| legend_entries(&lay, p, i == 0))
+        .collect();
+    let widest = entries
+        .iter()
+        .flatten()
+        .map(|e| text_width(&entry_text(e)))
+        .max()
+        .unwrap_or(0);
+    let legend_w = (widest + LEGEND_SWATCH + 2 * LEGEND_PAD + 12)
+        .min((o.width as f64 * LEGEND_MAX_SHARE) as i32)
+        .max(0) as u32;
+    let rows = entries.iter().map(Vec::len).max().unwrap_or(0) as u32;
+    let panel_h = o
+        .panel_height
+        .max(rows * LEGEND_ROW as u32 + 2 * LEGEND_PAD as u32 + 60);
     let title_h = 44u32;
-    let h = title_h + o.panel_height * lay.panels.len() as u32 + 24;
+    let h = title_h + panel_h * lay.panels.len() as u32 + 24;
     let mut buf = String::new();
+    let mut panels = Vec::new();
     {
         let root = SVGBackend::with_string(&mut buf, (o.width, h)).into_drawing_area();
         let e = |e: &dyn std::fmt::Display| e.to_string();
@@ -477,23 +646,34 @@ pub fn svg(r: &SweepResult, o: &PlotOptions) -> Result<String, String> {
             ("sans-serif", 20).into_font().color(&BLACK),
         ))
         .map_err(|x| e(&x))?;
-        let heights: Vec<u32> = (1..lay.panels.len() as u32).map(|i| i * o.panel_height).collect();
+        let heights: Vec<u32> = (1..lay.panels.len() as u32).map(|i| i * panel_h).collect();
         let areas = rest.split_by_breakpoints(&[] as &[u32], &heights);
         let np = lay.panels.len();
-        for (i, (area, panel)) in areas.iter().zip(&lay.panels).enumerate() {
+        for (i, ((area, panel), ents)) in areas.iter().zip(&lay.panels).zip(&entries).enumerate() {
             let (first, last) = (i == 0, i + 1 == np);
-            if lay.x.log {
-                draw_panel(area, (lay.x.lo..lay.x.hi).log_scale(), &lay, panel, first, last)?;
+            let (plot_area, legend_area) = area.split_horizontally(o.width - legend_w);
+            let mut g = if lay.x.log {
+                draw_panel(&plot_area, (lay.x.lo..lay.x.hi).log_scale(), &lay, panel, first, last)?
             } else {
                 let (lo, hi) = if lay.x.lo == lay.x.hi {
                     (lay.x.lo - 1.0, lay.x.hi + 1.0)
                 } else {
                     (lay.x.lo, lay.x.hi)
                 };
-                draw_panel(area, lo..hi, &lay, panel, first, last)?;
-            }
+                draw_panel(&plot_area, lo..hi, &lay, panel, first, last)?
+            };
+            let top = g.plot.y0 - legend_area.get_base_pixel().1;
+            g.legend = draw_legend(&legend_area, ents, top)?;
+            panels.push(g);
         }
         root.present().map_err(|x| e(&x))?;
     }
-    Ok(buf)
+    Ok((
+        buf,
+        Geometry {
+            width: o.width,
+            height: h,
+            panels,
+        },
+    ))
 }
