@@ -552,6 +552,20 @@ fn run_explains_an_out_of_range_power_factor_on_the_argument() {
     assert!(err.contains("pfc.ohm:3:14"), "located on the argument: {err}");
     assert!(!err.contains("0/0"), "the generic message gives way: {err}");
 
+    // a report says the same
+    let bad = dir.path().join("bad.ohm");
+    std::fs::write(&bad, "P = 100 kW\npf1 = 1.2\nQ = q_pfc(P, pf1, 0.95)\n").unwrap();
+    let out = ohmsheet()
+        .args(["report", bad.to_str().unwrap(), "-o"])
+        .arg(dir.path().join("bad.md"))
+        .assert()
+        .get_output()
+        .stderr
+        .clone();
+    let err = String::from_utf8(out).unwrap();
+    assert!(err.contains("argument `pf1` = 1.2 is out of range"), "{err}");
+    assert!(err.contains("bad.ohm:3:14"), "{err}");
+
     // a sweep through the range says why its undefined points are
     let out = ohmsheet()
         .args([

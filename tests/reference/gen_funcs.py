@@ -16,8 +16,9 @@ in a sheet that states `@amplitude peak`.
 Sources:
 - IEC 60050-131 (International Electrotechnical Vocabulary, circuit
   theory): impedance Z = R + jX, reactance of L and C, admittance.
-- IEEE Std 1459-2010: complex power S = V·I*, P = Re S, Q = Im S,
-  power factor P/|S|; Q > 0 for an inductive (lagging) load.
+- IEEE Std 1459-2010: complex power S = V·I*, P = Re S, Q = Im S;
+  Q > 0 for an inductive (lagging) load. The power factor is |P|/|S|
+  signed by lead/lag, not IEEE 1459's P/|S| (docs/functions.md).
 - IEEE Std 141 (Red Book), power-factor correction: the kvar multiplier
   tan(acos pf1) − tan(acos pf2).
 - A. E. Kennelly, "Equivalence of triangles and three-pointed stars in
@@ -437,6 +438,30 @@ CASES = [
     ("vdrop(240 V, 228 V ∠ -3°)", (mp.mpf(240) - 228) / 240, "drop as a fraction of sending voltage"),
     ("vreg(250 V, 240 V)", (mp.mpf(250) - 240) / 240, "regulation as a fraction of full-load voltage"),
 ]
+
+# Issue 13 (numerics). The power factor of a source: pf is |P|/|S| signed
+# by lead/lag (+ when Q >= 0, load convention) for loads and sources
+# (P < 0) alike, and pf_angle = atan(Q/|P|), so cos(pf_angle) = |pf|
+# (docs/functions.md; not IEEE 1459's P/|S|, whose sign follows P).
+# Per-unit line and phase voltages are equal in magnitude on three-phase
+# bases, V_LN,base = V_LL,base/sqrt(3); only the 30 degree shift applies
+# (the per-unit convention, from memory). An open element (a capacitor of
+# 0 F, Z = -j inf) takes the whole voltage of a divider and drops out of a
+# bus: the circuit's limits.
+NUMERICS_CASES = [
+    ("pf((-800 + j600) VA)", mp.mpf("0.8"), "source, Q > 0: +|P|/|S|, lagging in the load convention"),
+    ("pf((-800 - j600) VA)", mp.mpf("-0.8"), "source, Q < 0: -|P|/|S|, leading"),
+    ("pf_angle((-800 + j600) VA)", mp.atan(mp.mpf(600) / 800), "phi = atan(Q/|P|), cos phi = |pf|"),
+    ("pf_angle((-800 - j600) VA)", -mp.atan(mp.mpf(600) / 800), "phi = atan(Q/|P|), leading"),
+    ("pf_angle(Zb)", mp.atan2(-6, 10), "phi = atan(X/R) of a load impedance"),
+    ("ll_to_ln(1 pu ∠ 30°)", mp.mpf(1), "per-unit: |Van| = |Vab|, the 30 degree shift only"),
+    ("ln_to_ll(0.98 pu ∠ -10°)", polar(mp.mpf("0.98"), 20), "per-unit: the 30 degree shift only"),
+    ("vdiv(Vs, Za, z_cap(0 F, f))", Vs, "an open Zb takes the whole voltage"),
+    ("bus_vth(Vs, Za, Zb, z_cap(0 F, f))", Vs * Zb / (Za + Zb), "an open shunt drops out"),
+    ("bus_zth(Za, z_cap(0 F, f))", Za, "an open shunt drops out"),
+    ("as_parallel(j5 Ω).X", mp.mpf(5), "a pure reactance: Xp = X (and Rp is open)"),
+]
+CASES += NUMERICS_CASES
 
 # Evaluated under `@amplitude peak`: power from peak phasors is halved.
 PEAK_CASES = [
