@@ -68,8 +68,11 @@ ENTRIES = [
     ("bad-directive", "A directive with a wrong value.", "@amplitude average\nx = 1\n", None),
     ("not-a-number", "A cell evaluated to NaN; the message names where it first appeared.",
      "a = 0 V\nb = a / a\n", None),
-    ("bad-override", "`--set` names no cell, or is not `NAME=EXPR`.", None,
-     "`ohmsheet run sheet.ohm --set Vx=240V` on a sheet without `Vx`."),
+    ("bad-override", "`--set` names no cell, or is not `NAME=EXPR`; or an `@override` line names no value "
+     "of an included library sheet, overrides one twice, overrides its own sheet's value, or gives a value "
+     "of another dimension than the library's.", None,
+     "`ohmsheet run sheet.ohm --set Vx=240V` on a sheet without `Vx`; `@override Zx = 1 Ω` in a sheet whose "
+     "libraries define no `Zx` (see docs/grammar.md, \"Local overrides\")."),
     ("bad-cases", "A column of a cases table (`ohmsheet batch --cases`) names no input of the sheet, "
      "names a computed cell, or has a unit of the wrong dimension; or `--show` names no cell.", None,
      "`ohmsheet batch sheet.ohm --cases cases.csv --out results.csv` where cases.csv has a column `Rx` "

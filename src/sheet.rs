@@ -23,6 +23,10 @@ use crate::syntax::{parse_line, parse_sheet};
 
 /// The directive that merges a library sheet.
 pub const INCLUDE: &str = "include";
+/// `@override NAME = EXPR`: this sheet's own value for a library value.
+pub const OVERRIDE: &str = "override";
+
+mod local;
 
 /// The deepest chain of includes, and the most files one sheet may pull in.
 pub const MAX_INCLUDE_DEPTH: usize = 32;
@@ -90,14 +94,19 @@ pub struct Sheet {
     pub overrides: Vec<Override>,
 }
 
-/// One `--set NAME=EXPR`.
+/// One `--set NAME=EXPR`, or one `@override NAME = EXPR` line of a sheet
+/// that replaces a value of a library sheet it includes.
 #[derive(Clone, Debug)]
 pub struct Override {
     pub name: String,
     /// The formula the sheet gives the cell.
     pub original: Expr,
-    /// The whole `NAME=EXPR` text (in its own source file, `--set`).
+    /// The whole `NAME=EXPR` text (in its own source file, `--set`; or the
+    /// `@override` line).
     pub span: Span,
+    /// For an `@override` line: the name in the library's definition it
+    /// replaces. `None` for `--set`.
+    pub library: Option<Span>,
 }
 
 /// Decode sheet bytes: UTF-8 (an error names the first bad byte), with a
@@ -125,6 +134,15 @@ impl Sheet {
         let mut errors = parsed.errors;
         for st in parsed.stmts {
             match &st.kind {
+                StmtKind::Directive(d) if d.name.name == OVERRIDE => errors.push(
+                    Diagnostic::error(
+                        ErrorCode::BadOverride,
+                        d.name.span,
+                        "`@override` replaces a value of an included library sheet; this text includes none",
+                    )
+                    .with_label("nothing to override")
+                    .with_hint("save the sheet to a file that @includes the library, and open that file"),
+                ),
                 StmtKind::Directive(d) if d.name.name == INCLUDE => errors.push(
                     Diagnostic::error(
                         ErrorCode::IncludePath,
@@ -208,16 +226,19 @@ impl Sheet {
                     allowed,
                     main_dir: Path::new(&name).parent().map(Path::to_path_buf).unwrap_or_default(),
                     amplitudes: Vec::new(),
+                    local: Vec::new(),
+                    overrides: Vec::new(),
                 };
                 ld.file(0, &mut vec![canonical]);
                 ld.finish();
+                ld.apply_local_overrides();
                 Ok(Sheet {
                     sources: ld.sources,
                     main,
                     stmts: ld.stmts,
                     errors: ld.errors,
                     files: ld.files,
-                    overrides: Vec::new(),
+                    overrides: ld.overrides,
                 })
             }
             Err((at, good)) => {
@@ -297,6 +318,7 @@ impl Sheet {
                     name,
                     original,
                     span: Span::new(id, 0, assignment.len()),
+                    library: None,
                 });
                 Ok(())
             }
@@ -333,6 +355,10 @@ struct Loader {
     main_dir: PathBuf,
     /// Every `@amplitude` met: file index, span, value.
     amplitudes: Vec<(usize, Span, String)>,
+    /// `@override` lines met: the definition they give, and the line.
+    local: Vec<(Stmt, Span)>,
+    /// The library values replaced by `@override` lines.
+    overrides: Vec<Override>,
 }
 
 impl Loader {
@@ -349,6 +375,13 @@ impl Loader {
                 let key = d.name.name.as_str();
                 if key == INCLUDE {
                     self.include(idx, d, stack);
+                    continue;
+                }
+                if key == OVERRIDE {
+                    match local::parse(&text, &st, d) {
+                        Ok(def) => self.local.push((def, st.span)),
+                        Err(e) => self.errors.push(e),
+                    }
                     continue;
                 }
                 if !is_main && META_KEYS.contains(&key) {

@@ -24,6 +24,7 @@ mod kill_during_write;
 mod language;
 mod limits;
 mod lines_rf;
+mod local_override;
 mod matching_pi_t;
 mod misreadings;
 mod plot_render;

@@ -60,6 +60,8 @@ pub struct Doc {
     /// Problems found in included files (they stay until the sheet is
     /// opened again).
     pub included_errors: Vec<Diagnostic>,
+    /// Library values this sheet's `@override` lines replace.
+    pub overrides: Vec<crate::sheet::Override>,
 }
 
 impl Doc {
@@ -135,6 +137,12 @@ impl Doc {
             main: sheet.main,
             files: sheet.files.clone(),
             included_errors,
+            overrides: sheet
+                .overrides
+                .iter()
+                .filter(|o| o.library.is_some())
+                .cloned()
+                .collect(),
         }
     }
 
@@ -161,8 +169,17 @@ impl Doc {
             Some(c) => (typed[..c].trim_end(), Some(&typed[c..])),
             None => (typed, None),
         };
+        // An `@override NAME = …` line keeps its keyword.
+        let bare_lhs = |l: &'_ str| -> String {
+            let t = l.trim_start();
+            let t = t
+                .strip_prefix('@')
+                .and_then(|r| r.strip_prefix(crate::sheet::OVERRIDE))
+                .unwrap_or(t);
+            t.to_string()
+        };
         let body = match (self.lines[idx].defines(), def_split(old_body), def_split(typed_body)) {
-            (Some(_), Some((old_lhs, old_formula)), Some((lhs, formula))) if same_words(lhs, old_lhs) => {
+            (Some(_), Some((old_lhs, old_formula)), Some((lhs, formula))) if same_words(lhs, &bare_lhs(old_lhs)) => {
                 let lead = old_formula.len() - old_formula.trim_start().len();
                 let keep = old_lhs.len() + 1 + lead;
                 format!("{}{}", &old_body[..keep], formula.trim())
@@ -209,7 +226,7 @@ impl Doc {
             stmts,
             errors,
             files: self.files.clone(),
-            overrides: Vec::new(),
+            overrides: self.overrides.clone(),
         }
     }
 

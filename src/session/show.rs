@@ -178,6 +178,30 @@ fn node(s: &Session, id: CellId) -> String {
     let c = &s.engine.model.cells[id as usize];
     let v = s.cell_value(id);
     let f = c.formula.trim();
+    let m = &s.engine.model;
+    // A library value this sheet overrides: both places.
+    if let Some(lib) = s
+        .doc
+        .overrides
+        .iter()
+        .find(|o| o.name == c.name)
+        .and_then(|o| o.library)
+    {
+        // The main sheet as the prompt names it; a library by its path
+        // from the sheet's folder.
+        let name = |f: crate::diag::FileId| match s.doc.files.iter().find(|x| x.id == f) {
+            _ if f == s.doc.main => s.display_name(),
+            Some(x) => x.rel.clone(),
+            None => m.sources.get(f).name.clone(),
+        };
+        let place = |sp: crate::diag::Span| format!("{}:{}", name(sp.file), m.sources.line_of(sp));
+        return format!(
+            "{} = {f}  ⇒ {v}   · @override at {}, of the library value at {}",
+            c.name,
+            place(c.name_span),
+            place(lib)
+        );
+    }
     if c.input {
         if f == v {
             format!("{} = {f}   · input", c.name)

@@ -122,9 +122,17 @@ impl Lowerer<'_> {
         } else {
             ErrorCode::BadOverride
         };
-        Err(Diagnostic::error(code, e.span, message)
-            .with_label(format!("given by `--set {}`", self.sources.slice(ov.span)))
-            .with_hint(hint))
+        let d = Diagnostic::error(code, e.span, message);
+        Err(match ov.library {
+            // An `@override` line: the library's definition is the other place.
+            Some(lib) => d
+                .with_label("the override's value")
+                .with_secondary(lib, "the library's definition it overrides")
+                .with_hint(hint),
+            None => d
+                .with_label(format!("given by `--set {}`", self.sources.slice(ov.span)))
+                .with_hint(hint),
+        })
     }
 
     pub(super) fn display_span(&self, cell: &Cell) -> Span {

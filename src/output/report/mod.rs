@@ -269,6 +269,28 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
             continue;
         }
         let (src, included) = source(c);
+        // An `@override` line: say where the value now comes from, and
+        // which library value it replaces.
+        let (src, included) = match sheet
+            .overrides
+            .iter()
+            .find(|o| o.name == c.name)
+            .and_then(|o| o.library)
+        {
+            Some(lib) => {
+                let line = m.sources.line_of(lib);
+                let place = match file_idx.get(&lib.file) {
+                    Some(&i) => format!("{}, line {line}", sheet.files[i].rel),
+                    None => format!("{}, line {line}", m.sources.get(lib.file).name),
+                };
+                let here = match file_idx.get(&c.file) {
+                    Some(&i) => format!("{}, line {}", sheet.files[i].rel, c.line),
+                    None => src,
+                };
+                (format!("{here}: @override of the library value in {place}"), true)
+            }
+            None => (src, included),
+        };
         let overridden = exprs
             .get(&c.name_span)
             .is_some_and(|e| !file_idx.contains_key(&e.span.file));

@@ -24,16 +24,20 @@ impl Session {
             plain_line(text, stmt)
         } else {
             match self.parse(&merged) {
-                Ok(Some(s)) => DocLine {
+                Ok(Some(s)) if matches!(s.kind, StmtKind::Def(_)) => DocLine {
                     text: merged,
                     stmt: Some(s),
                     error: None,
                     included: Vec::new(),
                     cr: None,
                 },
-                // Cannot happen (layout never changes what parses); keep
-                // what was typed.
-                _ => plain_line(text, stmt),
+                // An `@override` line (a directive as a whole line): its
+                // text with the typed definition. Otherwise cannot happen
+                // (layout never changes what parses).
+                _ => DocLine {
+                    text: merged,
+                    ..plain_line(text, stmt)
+                },
             }
         };
         DocLine { cr, ..line }

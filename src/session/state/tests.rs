@@ -477,3 +477,34 @@ fn the_name_shown_is_relative_to_the_current_folder() {
     assert_eq!(relative_name(Path::new("./site.ohm"), None), "site.ohm");
     assert_eq!(relative_name(Path::new("jobs/site.ohm"), None), "jobs/site.ohm");
 }
+
+/// A library value overridden by the sheet: `/why` names both places; a
+/// new value typed in the session keeps the `@override` line, and the
+/// override's dimension is checked there too.
+#[test]
+fn an_overridden_library_value_in_the_session() {
+    let f = Fixture::new("@include \"lib/cable.ohm\"\n@override Zc = (0.25 + j0.1) Ω   # survey\nZ = Zc * 2\n");
+    std::fs::create_dir(f.dir.path().join("lib")).unwrap();
+    std::fs::write(f.dir.path().join("lib/cable.ohm"), "Zc = (0.2 + j0.1) Ω\n").unwrap();
+    let mut s = f.open();
+    assert!(
+        s.engine.model.diagnostics.is_empty(),
+        "{:?}",
+        s.engine.model.diagnostics
+    );
+    let why = ok(&mut s, "/why Z");
+    assert!(
+        why.contains("site.ohm:2, of the library value at lib/cable.ohm:1") && why.contains("· @override at "),
+        "{why}"
+    );
+    ok(&mut s, "Zc = (0.3 + j0.1) Ω");
+    // 2 × (0.3 + j0.1) Ω
+    assert!((val(&s, "Z") - C64::new(0.6, 0.2)).norm() < 1e-12);
+    let r = s.handle("Zc = 5 V");
+    assert!(r.refused, "{}", r.text);
+    ok(&mut s, "/save");
+    assert_eq!(
+        std::fs::read_to_string(&f.path).unwrap(),
+        "@include \"lib/cable.ohm\"\n@override Zc = (0.3 + j0.1) Ω    # survey\nZ = Zc * 2\n"
+    );
+}
