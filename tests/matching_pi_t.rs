@@ -108,3 +108,19 @@ fn the_domain_check_names_the_least_q() {
     assert!(why.message.contains("4.359"), "{}", why.message);
     assert!(d(&[re(50.0), re(1000.0), re(5.0), re(6.28e7)], &Default::default()).is_none());
 }
+
+// The run's error names the least Q, located on the Q argument.
+#[test]
+fn the_run_explains_a_q_below_the_least() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("q.ohm");
+    std::fs::write(&path, "m = tmatch_hp(50 Ω, 1000 Ω, 3, 10 MHz)\n").unwrap();
+    ohmsheet()
+        .arg("run")
+        .arg(&path)
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("q.ohm:1:29"))
+        .stderr(predicate::str::contains("below the least Q of a T network"))
+        .stderr(predicate::str::contains("4.359"));
+}

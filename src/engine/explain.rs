@@ -88,8 +88,9 @@ fn exprs(stmt: &crate::syntax::ast::Stmt) -> Vec<&Expr> {
 
 /// The value of expression `e` (a call's argument) in one case: lowered
 /// against `model` into code of its own and run over a copy of `slots`.
-/// Neither the model nor the slots change.
-fn argument(model: &Model, slots: &[C64], e: &Expr) -> Option<(Quantity, C64)> {
+/// Neither the model nor the slots change. A record (a two-port passed
+/// whole) gives each of its fields, named; a single value has the name "".
+fn argument(model: &Model, slots: &[C64], e: &Expr) -> Option<Vec<(&'static str, Quantity, C64)>> {
     let searches = std::cell::RefCell::new(Vec::new());
     let lw = Lowerer {
         cells: &model.cells,
@@ -115,7 +116,10 @@ fn argument(model: &Model, slots: &[C64], e: &Expr) -> Option<(Quantity, C64)> {
     if !searches.borrow().is_empty() {
         return None;
     }
-    let Val::Scalar(out, q) = val else { return None };
+    let outs: Vec<(&'static str, Operand, Quantity)> = match val {
+        Val::Scalar(o, q) => vec![("", o, q)],
+        Val::Record(fields) => fields,
+    };
     // temporaries go after the new constants
     let tbase = space.init.len() as u32;
     let mut vals = space.init;
@@ -136,14 +140,14 @@ fn argument(model: &Model, slots: &[C64], e: &Expr) -> Option<(Quantity, C64)> {
         ..Program::default()
     };
     run(&code, &prog, &mut vals);
-    let v = match out {
+    let value = |out: Operand| match out {
         Operand::Const(c) => c,
         Operand::Slot(mut s) => {
             place(&mut s);
             vals[s as usize]
         }
     };
-    Some((q, v))
+    Some(outs.into_iter().map(|(n, o, q)| (n, q, value(o))).collect())
 }
 
 /// Why cell `id` of `model` is not a finite number in the case whose slot
@@ -164,25 +168,45 @@ pub fn explain(model: &Model, slots: &[C64], id: CellId) -> Option<Why> {
             continue;
         };
         let Some(domain) = f.domain else { continue };
+        // the values the function received: a record argument passes
+        // its fields, in the parameter's order (`RecordParam`)
         let mut vals = Vec::with_capacity(args.len());
         let mut quantities = Vec::with_capacity(args.len());
-        for a in args {
-            let Some((q, v)) = argument(model, slots, a) else { break };
-            vals.push(v);
-            quantities.push(q);
+        let mut names = Vec::with_capacity(args.len());
+        let mut whole = true;
+        for (k, a) in args.iter().enumerate() {
+            let Some(parts) = argument(model, slots, a) else {
+                whole = false;
+                break;
+            };
+            let p = f.param_at(k);
+            let wanted: Vec<&str> = p.record().map_or(vec![""], |r| r.fields.to_vec());
+            for w in wanted {
+                let Some(&(n, q, v)) = parts.iter().find(|x| x.0 == w) else {
+                    whole = false;
+                    break;
+                };
+                vals.push(v);
+                quantities.push(q);
+                names.push(if n.is_empty() {
+                    p.name.to_string()
+                } else {
+                    format!("{}.{n}", p.name)
+                });
+            }
         }
-        if vals.len() != args.len() || vals.iter().any(|z| z.re.is_nan() || z.im.is_nan()) {
+        if !whole || vals.iter().any(|z| z.re.is_nan() || z.im.is_nan()) {
             // an argument that is NaN itself was explained (or not) by
             // the calls inside it, which come first
             continue;
         }
         let Some(err) = domain(&vals, &model.ctx) else { continue };
         let (span, message) = match err.arg {
-            Some(i) if i < args.len() => {
-                let p = f.params.get(i).or(f.params.last()).map_or("?", |p| p.name);
+            Some(i) if i < vals.len() => {
+                let p = &names[i];
                 let shown = format_value(vals[i], quantities[i], None, Style { digits: 6 }).rect;
                 (
-                    args[i].span,
+                    args[f.written_arg(args.len(), i)].span,
                     format!("argument `{p}` = {shown} is out of range: {}", err.message),
                 )
             }

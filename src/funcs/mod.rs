@@ -163,9 +163,10 @@ pub struct Builtin {
     /// tested against (for the listing, docs and hover); empty if none.
     pub source: &'static str,
     /// For `Impl::Scalar`: instructions that turn the arguments into the
-    /// values the scalar function (and the domain check) receive, one for
-    /// one — ω in rad/s from a frequency given in Hz or rad/s (`omega`),
-    /// which a scalar function cannot tell apart from the value alone.
+    /// values the scalar function receives, one for one — ω in rad/s from
+    /// a frequency given in Hz or rad/s (`omega`), which a scalar function
+    /// cannot tell apart from the value alone. The domain check still
+    /// receives the arguments as written.
     pub prepare: Option<LowerFn>,
 }
 

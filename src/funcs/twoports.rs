@@ -305,9 +305,9 @@ fn s_zin(a: &[C64], out: &mut [C64], _: &Ctx) {
 }
 
 fn d_two_port(a: &[C64], _: &Ctx) -> Option<ArgError> {
-    a[..4].iter().any(|x| is_inf(*x)).then(|| {
+    a[..4].iter().position(|x| is_inf(*x)).map(|i| {
         ArgError::at(
-            0,
+            i,
             "the two-port has an infinite parameter (an open series element or a shunt short): it passes nothing",
         )
     })
