@@ -230,7 +230,11 @@ fn refused_form() -> impl Strategy<Value = (String, bool)> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 128, failure_persistence: None, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig {
+        cases: std::env::var("PROPTEST_CASES").ok().and_then(|s| s.parse().ok()).unwrap_or(128),
+        failure_persistence: None,
+        ..ProptestConfig::default()
+    })]
 
     /// `a * b ∠ t` is `(a*b) ∠ t`, and `a / b ∠ t` is `(a/b) ∠ t`, to the
     /// bit: the same operations in the same order (the operands are cells,
@@ -327,4 +331,188 @@ fn every_entry_point_reads_alike() {
         said.contains("ambiguous-operators") && said.contains("`(-x)^2`"),
         "{said}"
     );
+}
+
+// ---- an independent reading of the precedence table in docs/grammar.md
+
+/// A token of a flat formula: an operand name, a sign, or a binary operator.
+#[derive(Clone, Debug)]
+enum Tok {
+    Name(char),
+    Neg,
+    Op(&'static str),
+}
+
+/// Binding power of each binary operator, loosest first, as the table in
+/// docs/grammar.md states it.
+fn level(op: &str) -> u8 {
+    match op {
+        "<" | ">=" => 1,
+        "+" | "-" => 2,
+        "||" | "--" => 3,
+        "∠" => 4,
+        "*" | "/" => 5,
+        "^" => 7,
+        _ => unreachable!(),
+    }
+}
+
+#[derive(Debug)]
+enum Tree {
+    Leaf(char),
+    Neg(Box<Tree>),
+    Bin(&'static str, Box<Tree>, Box<Tree>),
+}
+
+/// Precedence climbing over `toks` from `i`: operands with their signs
+/// (a sign binds looser than `^`, tighter than `*`), then operators of at
+/// least `min` binding power; `^` groups to the right, the rest left.
+fn climb(toks: &[Tok], i: &mut usize, min: u8) -> Tree {
+    let mut lhs = unary(toks, i);
+    while let Some(Tok::Op(op)) = toks.get(*i) {
+        let l = level(op);
+        if l < min {
+            break;
+        }
+        *i += 1;
+        let rhs = climb(toks, i, if *op == "^" { l } else { l + 1 });
+        lhs = Tree::Bin(op, Box::new(lhs), Box::new(rhs));
+    }
+    lhs
+}
+
+fn unary(toks: &[Tok], i: &mut usize) -> Tree {
+    match toks[*i] {
+        Tok::Neg => {
+            *i += 1;
+            Tree::Neg(Box::new(climb_from_unary(toks, i)))
+        }
+        Tok::Name(c) => {
+            *i += 1;
+            Tree::Leaf(c)
+        }
+        Tok::Op(_) => unreachable!(),
+    }
+}
+
+/// The operand of a sign: another signed operand, with any `^` after it.
+fn climb_from_unary(toks: &[Tok], i: &mut usize) -> Tree {
+    let mut lhs = unary(toks, i);
+    if let Some(Tok::Op("^")) = toks.get(*i) {
+        *i += 1;
+        let rhs = climb(toks, i, 7);
+        lhs = Tree::Bin("^", Box::new(lhs), Box::new(rhs));
+    }
+    lhs
+}
+
+/// Whether the docs refuse this tree: the table "Refused as ambiguous".
+fn refused(t: &Tree) -> bool {
+    let bin = |t: &Tree| matches!(t, Tree::Bin(..));
+    let leftmost = |mut t: &Tree| {
+        while let Tree::Bin(_, a, _) = t {
+            t = a;
+        }
+        matches!(t, Tree::Neg(_)) // every operand here is a name, never a literal
+    };
+    match t {
+        Tree::Leaf(_) => false,
+        Tree::Neg(x) => matches!(**x, Tree::Bin("^", ..)) || refused(x),
+        Tree::Bin(op, a, b) => {
+            let here = match *op {
+                "∠" => {
+                    let mut r = &**b;
+                    while let Tree::Neg(x) = r {
+                        r = x;
+                    }
+                    bin(r) || matches!(**a, Tree::Bin("∠", ..))
+                }
+                "||" | "--" => matches!(**a, Tree::Bin(o, ..) if (o == "||" || o == "--") && o != *op) || leftmost(a),
+                "^" => matches!(**b, Tree::Bin("^", ..)),
+                "<" | ">=" => matches!(**a, Tree::Bin("<" | ">=", ..)),
+                _ => false,
+            };
+            here || refused(a) || refused(b)
+        }
+    }
+}
+
+fn tree_shape(t: &Tree) -> String {
+    match t {
+        Tree::Leaf(c) => c.to_string(),
+        Tree::Neg(x) => format!("(-{})", tree_shape(x)),
+        Tree::Bin(op, a, b) => format!("({} {} {})", tree_shape(a), op, tree_shape(b)),
+    }
+}
+
+fn ast_shape(e: &ohmsheet::syntax::ast::Expr) -> String {
+    use ohmsheet::syntax::ast::{ExprKind, UnOp};
+    match &e.kind {
+        ExprKind::Name(i) => i.name.clone(),
+        ExprKind::Unary(UnOp::Neg, x) => format!("(-{})", ast_shape(x)),
+        ExprKind::Binary(op, a, b) => format!("({} {} {})", ast_shape(a), op.symbol(), ast_shape(b)),
+        k => panic!("unexpected {k:?}"),
+    }
+}
+
+fn tokens() -> impl Strategy<Value = Vec<Tok>> {
+    let operand = (any::<bool>(), prop::sample::select(vec!['a', 'b', 'c', 'd'])).prop_map(|(neg, c)| {
+        if neg {
+            vec![Tok::Neg, Tok::Name(c)]
+        } else {
+            vec![Tok::Name(c)]
+        }
+    });
+    let op = prop::sample::select(vec!["+", "-", "*", "/", "^", "||", "--", "∠", "<", ">="]);
+    (operand.clone(), prop::collection::vec((op, operand), 1..6)).prop_map(|(first, rest)| {
+        let mut v = first;
+        for (o, x) in rest {
+            v.push(Tok::Op(o));
+            // `+ -` and `- -` are refused as slips for the tolerance sign
+            // and for `--`, before precedence is considered.
+            let skip = usize::from((o == "+" || o == "-") && matches!(x[0], Tok::Neg));
+            v.extend(x.into_iter().skip(skip));
+        }
+        v
+    })
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig {
+        cases: std::env::var("PROPTEST_CASES").ok().and_then(|s| s.parse().ok()).map_or(256, |n: u32| n * 2),
+        failure_persistence: None,
+        ..ProptestConfig::default()
+    })]
+
+    /// Random runs of names, signs and operators: the parser refuses
+    /// exactly what docs/grammar.md refuses, and reads the rest as the
+    /// precedence table says (an independent precedence climber).
+    #[test]
+    fn the_parser_follows_the_documented_table(toks in tokens()) {
+        let text: Vec<String> = toks
+            .iter()
+            .map(|t| match t {
+                Tok::Name(c) => c.to_string(),
+                Tok::Neg => "-".to_string(),
+                Tok::Op(o) => format!(" {o} "),
+            })
+            .collect();
+        let text = text.concat();
+        let mut i = 0;
+        let want = climb(&toks, &mut i, 0);
+        prop_assert_eq!(i, toks.len());
+        let got = parse_line(&format!("x = {text}"), ohmsheet::diag::FileId(0), 0, 1);
+        match got {
+            Ok(Some(stmt)) => {
+                let ohmsheet::syntax::ast::StmtKind::Def(d) = stmt.kind else { panic!("{text}") };
+                prop_assert!(!refused(&want), "`{}` accepted as {}", text, ast_shape(&d.expr));
+                prop_assert_eq!(ast_shape(&d.expr), tree_shape(&want), "{}", text);
+            }
+            Err(d) => {
+                prop_assert_eq!(d.code, ErrorCode::AmbiguousOperators, "`{}`: {}", text, d.message);
+                prop_assert!(refused(&want), "`{}` refused, read as {}", text, tree_shape(&want));
+            }
+            Ok(None) => prop_assert!(false, "{}", text),
+        }
+    }
 }
