@@ -404,7 +404,15 @@ impl Plan {
             });
         }
 
-        let set_slots: Vec<u32> = columns.iter().map(|c| c.slot).collect();
+        // A case can make an input complex, except a real or reactive
+        // power: W and var are real numbers (a value with an imaginary
+        // part is refused as it is read, and one that slips past fails
+        // its row: "an imaginary part where none was expected").
+        let set_slots: Vec<u32> = columns
+            .iter()
+            .filter(|c| !matches!(c.want.kind, Kind::RealPower | Kind::ReactivePower))
+            .map(|c| c.slot)
+            .collect();
         let real = real_slots(&m.program, &set_slots);
         let mut shown = Vec::new();
         let mut add = |id: CellId, field: Option<usize>| {
@@ -419,6 +427,8 @@ impl Plan {
             let (scale, unit) = match display {
                 Some(u) => (u.factor, u.symbol.clone()),
                 None if q.kind == Kind::Angle => (DEG, "°".to_string()),
+                // 12 % is written 12 under `[%]`, not 0.12 under no unit
+                None if q.kind == Kind::Percent => (0.01, "%".to_string()),
                 None => (1.0, base_symbol(q)),
             };
             shown.push(Shown {
@@ -589,10 +599,13 @@ pub fn real_slots(prog: &Program, set_by_cases: &[u32]) -> Vec<bool> {
             }
             Op::Add | Op::Sub | Op::Mul | Op::Div | Op::Par | Op::Min | Op::Max => ab(),
             Op::Sqrt | Op::Ln | Op::Log10 | Op::Asin | Op::Acos | Op::Pow | Op::Polar => false,
-            Op::Call(_) => {
+            Op::Call(fid) => {
+                // Real only when the function declares it (pf, s_parts,
+                // q_pfc, …), never from the values of one run.
+                let r = crate::funcs::library()[fid as usize].real_result;
                 let width = prog.call_args[ins.a as usize];
                 for k in 0..width {
-                    real[(ins.dst + k) as usize] = false;
+                    real[(ins.dst + k) as usize] = r;
                 }
                 continue;
             }

@@ -109,11 +109,19 @@ fn push_num(out: &mut Vec<u8>, x: f64, buf: &mut zmij::Buffer) {
 }
 
 /// The text of `x` that reads back to the same bits: in `buf` when `x` is
-/// finite; `NaN`, `inf` or `-inf` otherwise, as `str::parse` reads them.
+/// finite, a plain decimal (`60`, `0`, `0.5`) from 1e-5 to 1e16 and in
+/// exponent form outside, as `output::num` writes it; `NaN`, `inf` or
+/// `-inf` otherwise, as `str::parse` reads them.
 #[inline(always)]
 fn num_text(x: f64, buf: &mut zmij::Buffer) -> &[u8] {
     if x.is_finite() {
-        buf.format_finite(x).as_bytes()
+        let s = buf.format_finite(x);
+        let s = s.strip_suffix(".0").unwrap_or(s);
+        if s == "-0" {
+            b"0"
+        } else {
+            s.as_bytes()
+        }
     } else if x.is_nan() {
         b"NaN"
     } else if x > 0.0 {
@@ -448,19 +456,42 @@ mod tests {
     #[test]
     fn numbers_read_back_to_the_same_bits() {
         let mut buf = zmij::Buffer::new();
-        for x in [
-            0.1,
-            -2.5e-300,
-            1.0 / 3.0,
-            6.02214076e23,
-            f64::MIN_POSITIVE,
-            5e-324,
-            -0.0,
-        ] {
+        for x in [0.1, -2.5e-300, 1.0 / 3.0, 6.02214076e23, f64::MIN_POSITIVE, 5e-324] {
             let mut out = Vec::new();
             push_num(&mut out, x, &mut buf);
             let y: f64 = std::str::from_utf8(&out).unwrap().parse().unwrap();
             assert_eq!(y.to_bits(), x.to_bits(), "{x}");
+        }
+        // A negative zero is written 0: "-0 A" would read as a sign that
+        // means something.
+        let mut out = Vec::new();
+        push_num(&mut out, -0.0, &mut buf);
+        assert_eq!(out, b"0");
+    }
+
+    // The same text as `run --format csv` and sweep CSV (output::num).
+    #[test]
+    fn numbers_as_plain_decimals_like_the_other_csv_writers() {
+        let mut buf = zmij::Buffer::new();
+        for x in [
+            60.0,
+            0.0,
+            -0.0,
+            0.5,
+            -3.25,
+            1e-5,
+            9.99e-6,
+            1.5e-7,
+            9.999e15,
+            1e16,
+            2.5e20,
+            0.1 + 0.2,
+        ] {
+            let t = std::str::from_utf8(num_text(x, &mut buf)).unwrap().to_string();
+            let want = crate::output::num(x);
+            // The exponent form may be `1e+16` here and `1e16` there.
+            assert_eq!(t.replace("e+", "e"), want, "{x:e}");
+            assert_eq!(t.parse::<f64>().unwrap(), x);
         }
     }
 }

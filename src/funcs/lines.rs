@@ -530,7 +530,8 @@ pub fn funcs() -> Vec<Builtin> {
             s_vswr,
         )
         .with_domain(d_gamma)
-        .with_source("IEEE Std 100 (standing-wave ratio); Pozar, Microwave Engineering, §2.3 (from memory)"),
+        .with_source("IEEE Std 100 (standing-wave ratio); Pozar, Microwave Engineering, §2.3 (from memory)")
+        .with_real_result(),
         scalar_fn(
             "return_loss",
             "return loss −20·log10|Γ| in dB from a reflection coefficient (positive for a passive load, ∞ matched)",
@@ -539,7 +540,8 @@ pub fn funcs() -> Vec<Builtin> {
             ty_return_loss,
             s_return_loss,
         )
-        .with_source("IEEE Std 100 (return loss); IEC 60027-3 (root-power level)"),
+        .with_source("IEEE Std 100 (return loss); IEC 60027-3 (root-power level)")
+        .with_real_result(),
         scalar_fn(
             "from_db_p",
             "power ratio from decibels: 10^(x/10)",

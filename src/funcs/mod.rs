@@ -168,6 +168,13 @@ pub struct Builtin {
     /// cannot tell apart from the value alone. The domain check still
     /// receives the arguments as written.
     pub prepare: Option<LowerFn>,
+    /// Every value the function returns is real whatever its arguments
+    /// (it is built from a real part, a magnitude, a signed cos φ): a
+    /// power factor, the parts of a power, a kvar rating. Declared once
+    /// here (`.with_real_result()`); batch and sweep output give such a
+    /// value one column (see `batch::real_slots`). A lowered function needs
+    /// no flag: its instructions are read for the same purpose.
+    pub real_result: bool,
 }
 
 impl Builtin {
@@ -203,6 +210,14 @@ impl Builtin {
     /// The same function with its source named.
     pub fn with_source(self, source: &'static str) -> Builtin {
         Builtin { source, ..self }
+    }
+    /// The same function, declared to return only real values (see
+    /// `real_result`).
+    pub fn with_real_result(self) -> Builtin {
+        Builtin {
+            real_result: true,
+            ..self
+        }
     }
     /// The same (scalar) function with its arguments prepared by
     /// instructions first (see `prepare`).
@@ -456,6 +471,7 @@ pub fn lowered(
         domain: None,
         source: "",
         prepare: None,
+        real_result: false,
     }
 }
 
@@ -479,6 +495,7 @@ pub fn scalar_fn(
         domain: None,
         source: "",
         prepare: None,
+        real_result: false,
     }
 }
 

@@ -351,7 +351,8 @@ pub fn funcs() -> Vec<Builtin> {
             "1",
             ty_pf,
             s_pf,
-        ),
+        )
+        .with_real_result(),
         lowered(
             "pf_angle",
             "power-factor angle φ = atan(Q/|P|), within ±90°, positive lagging (cos φ = |pf|)",
@@ -367,7 +368,8 @@ pub fn funcs() -> Vec<Builtin> {
             "record P (W), Q (var), S (VA), pf (1), lag (±1)",
             ty_s_parts,
             s_s_parts,
-        ),
+        )
+        .with_real_result(),
         lowered(
             "best_load",
             "load impedance drawing the most power from a source behind Zth: Zth*",
@@ -399,7 +401,8 @@ pub fn funcs() -> Vec<Builtin> {
             "var",
             ty_q_pfc,
             s_q_pfc,
-        ),
+        )
+        .with_real_result(),
         lowered(
             "cap_delta",
             "per-phase capacitance of a delta bank giving Q (three-phase total) at line voltage V_LL",

@@ -2,7 +2,8 @@
 //!
 //! CSV columns are one per swept input, then two per shown value:
 //! magnitude and angle (`Vload.mag [V]`, `Vload.ang [deg]`) or real and
-//! imaginary parts (`Vload.re [V]`, `Vload.im [V]`). Numbers are in the
+//! imaginary parts (`Vload.re [V]`, `Vload.im [V]`) — one for a value real
+//! by construction (`pf`, docs/batch.md). Numbers are in the
 //! unit named in the header: the cell's display unit if the sheet gives
 //! one, else the coherent SI unit; angles in degrees. Undefined values are
 //! written `NaN`, `inf` or `-inf`, never dropped.
@@ -32,6 +33,8 @@ pub fn column_unit(q: Quantity, display: Option<&Unit>) -> (String, f64) {
     match display {
         Some(u) => (u.symbol.clone(), u.factor),
         None if q.kind == Kind::Angle => ("deg".into(), std::f64::consts::PI / 180.0),
+        // 12 % is written 12 under `[%]`, not 0.12 under no unit
+        None if q.kind == Kind::Percent => ("%".into(), 0.01),
         None => (base_symbol(q), 1.0),
     }
 }
@@ -80,6 +83,10 @@ pub fn csv_headers(axes: &[Axis], series: &[Series], parts: Parts) -> Vec<String
         .collect();
     for s in series {
         let (u, _) = column_unit(s.quantity, s.display.as_ref());
+        if s.real {
+            h.push(header(&s.name, &u));
+            continue;
+        }
         match parts {
             Parts::Polar => {
                 h.push(header(&format!("{}.mag", s.name), &u));
@@ -108,6 +115,8 @@ pub struct CsvRows<W: Write> {
     out: W,
     axis_scale: Vec<Scale>,
     series_scale: Vec<Scale>,
+    /// Which series take one column (real by construction).
+    series_real: Vec<bool>,
     parts: Parts,
     buf: ryu::Buffer,
     line: Vec<u8>,
@@ -126,6 +135,7 @@ impl<W: Write> CsvRows<W> {
                 .iter()
                 .map(|a| Scale::new(column_unit(a.quantity, a.display.as_ref()).1))
                 .collect(),
+            series_real: series.iter().map(|s| s.real).collect(),
             series_scale: series
                 .iter()
                 .map(|s| Scale::new(column_unit(s.quantity, s.display.as_ref()).1))
@@ -152,10 +162,17 @@ impl<W: Write> CsvRows<W> {
             self.num(self.axis_scale[k].apply(x));
         }
         for (k, &z) in values.iter().enumerate() {
-            let (a, b) = split(z, self.series_scale[k], self.parts);
             if k > 0 || !xs.is_empty() {
                 self.line.push(b',');
             }
+            if self.series_real[k] {
+                // The value itself, signed (a leading pf is -0.9, not
+                // 0.9 at 180°); an imaginary part could only be NaN.
+                let x = if z.im == 0.0 { z.re } else { f64::NAN };
+                self.num(self.series_scale[k].apply(x));
+                continue;
+            }
+            let (a, b) = split(z, self.series_scale[k], self.parts);
             self.num(a);
             self.line.push(b',');
             self.num(b);

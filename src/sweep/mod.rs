@@ -92,6 +92,9 @@ pub struct Series {
     pub slot: u32,
     pub quantity: Quantity,
     pub display: Option<Unit>,
+    /// Real by construction (a power factor, a part of a power, a kvar
+    /// rating: see `batch::real_slots`): one CSV column, not two.
+    pub real: bool,
 }
 
 /// The evaluated points of a sweep. With two axes the last varies
@@ -229,6 +232,7 @@ pub fn series_in(m: &Model, text: &str) -> Result<Series, Diagnostic> {
                         slot: c.slot + k as u32,
                         quantity: fields[k].1,
                         display: None,
+                        real: real_slot(m, c.slot + k as u32),
                     });
                 }
                 let names: Vec<&str> = fields.iter().map(|f| f.0).collect();
@@ -263,7 +267,17 @@ fn cell_series(m: &Model, t: &str) -> Option<Series> {
         slot: c.slot,
         quantity: q,
         display: c.display.clone(),
+        real: real_slot(m, c.slot),
     })
+}
+
+/// The slot holds a real value at every point of any sweep: the inputs a
+/// sweep varies take real values, the others keep the sheet's constants.
+fn real_slot(m: &Model, slot: u32) -> bool {
+    crate::batch::real_slots(&m.program, &[])
+        .get(slot as usize)
+        .copied()
+        .unwrap_or(false)
 }
 
 impl Study {

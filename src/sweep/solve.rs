@@ -136,6 +136,8 @@ pub fn solve(sheet: Sheet, req: &SolveRequest) -> Result<Solution, SolveError> {
         slot: ax.slot,
         quantity: ax.quantity,
         display: ax.display.clone(),
+        // a swept input takes real values
+        real: true,
     };
     let (lo, hi) = (ax.start.min(ax.stop), ax.start.max(ax.stop));
     let mut opts = SearchOptions::auto(lo, hi);

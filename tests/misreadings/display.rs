@@ -173,5 +173,157 @@ fn csv_numbers_are_plain_decimals() {
         .unwrap();
     let text = String::from_utf8(out.stdout).unwrap();
     let lines: Vec<&str> = text.lines().collect();
-    assert_eq!(lines[1..], ["50,480,0", "55,480,0", "60,480,0"], "{text}");
+    // V is a constant of the sheet, real: one column.
+    assert_eq!(lines[1..], ["50,480", "55,480", "60,480"], "{text}");
+}
+
+// ------------------------------------------- real by construction: one column
+
+const FEEDER: &str = "P = 800 kW\nQ = 600 kvar\nS = P + j*Q\npf1 = P / abs(S)\nk = pf(S)\nparts = s_parts(S)\nQc = q_pfc(P, 0.8, 0.95)\nloss = 3 %\npl = loss * 2\nV = 400 V\nI = conj(S / V)\n";
+
+// A power factor, the parts of a power and a kvar rating are real whatever
+// the case (docs/batch.md): one column each, decided from the function's
+// declaration and the sheet's formulas, not from one run's values. The
+// numbers: pf = P/|S| = 500/√(500² + 600²) (IEEE Std 1459 definition);
+// Qc = P(tan φ1 − tan φ2) with tan φ = √(1 − pf²)/pf (common practice).
+#[test]
+fn batch_gives_real_values_one_column() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("s.ohm");
+    std::fs::write(&sheet, FEEDER).unwrap();
+    let cases = dir.path().join("cases.csv");
+    std::fs::write(&cases, "P\n500 kW\n").unwrap();
+    let out = dir.path().join("out.csv");
+    ohmsheet()
+        .arg("batch")
+        .arg(&sheet)
+        .arg("--cases")
+        .arg(&cases)
+        .arg("--out")
+        .arg(&out)
+        .assert()
+        .success();
+    let text = std::fs::read_to_string(&out).unwrap();
+    let mut lines = text.lines();
+    let head: Vec<&str> = lines.next().unwrap().split(',').collect();
+    assert_eq!(
+        head,
+        [
+            "P",
+            "S.re [VA]",
+            "S.im [VA]",
+            "pf1",
+            "k",
+            "parts.P [W]",
+            "parts.Q [var]",
+            "parts.S [VA]",
+            "parts.pf",
+            "parts.lag",
+            "Qc [var]",
+            "pl [%]",
+            "I.re [A]",
+            "I.im [A]"
+        ]
+    );
+    let row: Vec<f64> = lines
+        .next()
+        .unwrap()
+        .split(',')
+        .skip(1)
+        .map(|x| x.parse().unwrap())
+        .collect();
+    let pf = 500.0 / (500.0f64.powi(2) + 600.0f64.powi(2)).sqrt();
+    let tan = |pf: f64| (1.0 - pf * pf).sqrt() / pf;
+    for (got, want) in [
+        (row[2], pf),
+        (row[3], pf),
+        (row[4], 500e3),
+        (row[5], 600e3),
+        (row[7], pf),
+        (row[8], 1.0),
+        (row[9], 500e3 * (tan(0.8) - tan(0.95))),
+        (row[10], 6.0),
+    ] {
+        assert!((got - want).abs() <= 1e-12 * want.abs(), "{got} vs {want}");
+    }
+    // A complex value that slips into a W input fails its row, loudly.
+    std::fs::write(&cases, "P\n(500+j300) kVA\n").unwrap();
+    let o = ohmsheet()
+        .arg("batch")
+        .arg(&sheet)
+        .arg("--cases")
+        .arg(&cases)
+        .arg("--out")
+        .arg(&out)
+        .output()
+        .unwrap();
+    let err = String::from_utf8(o.stderr).unwrap();
+    assert!(err.contains("imaginary part where none was expected"), "{err}");
+}
+
+#[test]
+fn sweep_gives_real_values_one_column() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("s.ohm");
+    std::fs::write(&sheet, FEEDER).unwrap();
+    let o = ohmsheet()
+        .args([
+            "sweep",
+            "--vary",
+            "P=500kW..900kW",
+            "--points",
+            "2",
+            "--show",
+            "k,parts.Q,Qc,pl,I",
+            "--csv",
+            "-",
+        ])
+        .arg(&sheet)
+        .output()
+        .unwrap();
+    let text = String::from_utf8(o.stdout).unwrap();
+    let lines: Vec<&str> = text.lines().collect();
+    assert_eq!(lines[0], "P [kW],k,parts.Q [var],Qc [var],pl [%],I.mag [A],I.ang [deg]");
+    let row: Vec<f64> = lines[2].split(',').map(|x| x.parse().unwrap()).collect();
+    let pf = 900.0 / (900.0f64.powi(2) + 600.0f64.powi(2)).sqrt();
+    assert!((row[1] - pf).abs() < 1e-12);
+    assert_eq!(row[2], 600e3);
+    assert_eq!(row[4], 6.0);
+    // I = (S/V)*: |S|/400 V at −atan(600/900)
+    let s = (900e3f64.powi(2) + 600e3f64.powi(2)).sqrt();
+    assert!((row[5] - s / 400.0).abs() < 1e-9);
+    assert!((row[6] + (600.0f64 / 900.0).atan().to_degrees()).abs() < 1e-12);
+}
+
+// A function declared real returns no imaginary part for any argument, so
+// the declaration cannot hide one: complex, negative, zero and infinite
+// arguments (NaN is allowed: it fails a batch row on its own).
+#[test]
+fn functions_declared_real_return_real_values() {
+    use ohmsheet::funcs::{library, Ctx, Impl};
+    let probes = [
+        num_complex::Complex64::new(3.0, 4.0),
+        num_complex::Complex64::new(-2.0, 0.5),
+        num_complex::Complex64::new(0.0, -7.0),
+        num_complex::Complex64::new(0.0, 0.0),
+        num_complex::Complex64::new(f64::INFINITY, 1.0),
+        num_complex::Complex64::new(0.3, 0.0),
+    ];
+    let mut declared = Vec::new();
+    for f in library().iter().filter(|f| f.real_result) {
+        declared.push(f.name);
+        let Impl::Scalar(eval) = f.imp else { continue };
+        let n: usize = (0..f.params.len()).map(|k| f.arg_width(k)).sum();
+        for (i, _) in probes.iter().enumerate() {
+            let args: Vec<_> = (0..n).map(|k| probes[(i + k) % probes.len()]).collect();
+            let mut out = [num_complex::Complex64::new(0.0, 0.0); ohmsheet::funcs::MAX_CALL_ARGS];
+            eval(&args, &mut out, &Ctx { peak: false });
+            for z in out {
+                assert!(z.im == 0.0 || z.im.is_nan(), "{}({args:?}) gave {z}", f.name);
+            }
+        }
+    }
+    for name in ["pf", "s_parts", "q_pfc"] {
+        assert!(declared.contains(&name), "{name} is not declared real");
+    }
 }
