@@ -259,13 +259,19 @@ impl Session {
                     "@include is read when a sheet is opened: add the line to the file, then /open it\n{UNCHANGED}"
                 ));
             }
+            StmtKind::Directive(d) if d.name.name == crate::sheet::OVERRIDE => {
+                return Reply::refused(format!(
+                    "@override is read when a sheet is opened: add the line to the file, then /open it; \
+                     a value already overridden is changed here with NAME = FORMULA\n{UNCHANGED}"
+                ));
+            }
             StmtKind::Def(d) if self.doc.find_def(&d.name.name).is_none() => {
                 if let Some(c) = self.engine.model.cell(&d.name.name) {
                     if c.file != self.doc.main {
                         let lib = self.engine.model.sources.get(c.file).name.clone();
                         return Reply::refused(format!(
-                            "`{}` comes from the library sheet {lib}; change it there, or give this cell another name\n{UNCHANGED}",
-                            d.name.name
+                            "`{}` comes from the library sheet {lib}; change it there, override it for this sheet with a line `@override {} = …` in the file, or give this cell another name\n{UNCHANGED}",
+                            d.name.name, d.name.name
                         ));
                     }
                 }

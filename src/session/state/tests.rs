@@ -502,6 +502,13 @@ fn an_overridden_library_value_in_the_session() {
     assert!((val(&s, "Z") - C64::new(0.6, 0.2)).norm() < 1e-12);
     let r = s.handle("Zc = 5 V");
     assert!(r.refused, "{}", r.text);
+    // A new @override is added in the file, not typed here.
+    let r = s.handle("@override Zc = 1 Ω");
+    assert!(
+        r.refused && r.text.contains("read when a sheet is opened"),
+        "{}",
+        r.text
+    );
     ok(&mut s, "/save");
     assert_eq!(
         std::fs::read_to_string(&f.path).unwrap(),
