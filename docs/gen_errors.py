@@ -66,7 +66,11 @@ ENTRIES = [
      "Z = 5 Ω\ncheck Z ~= 5 Ω +- 0.1\n", None),
     ("unknown-directive", "An `@word` the language does not know.", "@titel \"Feeder 3\"\nx = 1\n", None),
     ("bad-directive", "A directive with a wrong value.", "@amplitude average\nx = 1\n", None),
-    ("not-a-number", "A cell evaluated to NaN; the message names where it first appeared.",
+    ("not-a-number", "A cell evaluated to NaN. When a function's argument lies outside its domain the "
+     "message names the argument, its value and the range, on the argument (`q_pfc(P, 1.2, 0.95)`: "
+     "argument `pf1` = 1.2 is out of range: a power factor lies within −1 … +1); otherwise it names "
+     "where the NaN first appeared. `run`, `check`, `report`, `watch`, sweeps, the session and the "
+     "batch errors file say the same.",
      "a = 0 V\nb = a / a\n", None),
     ("bad-override", "`--set` names no cell, or is not `NAME=EXPR`; or an `@override` line names no value "
      "of an included library sheet, overrides one twice, overrides its own sheet's value, or gives a value "
