@@ -384,7 +384,8 @@ pub fn want_or_pu(q: &[Quantity], i: usize, dim: Dim, param: &str) -> Result<(),
 
 /// Argument `i` must be a plain number: not a unit, an angle or per-unit.
 pub fn want_plain(q: &[Quantity], i: usize, param: &str, what: &str) -> Result<(), ArgError> {
-    if q[i].is_plain_number() {
+    // A percentage is a plain fraction: a power factor of 80 % is 0.8.
+    if q[i].is_plain_number() || (q[i].dim.is_none() && q[i].kind == Kind::Percent) {
         Ok(())
     } else {
         Err(ArgError::at(

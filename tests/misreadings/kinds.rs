@@ -184,6 +184,11 @@ fn percent_per_unit_and_decibels_keep_their_kinds() {
     assert_eq!(shown("x = 12 % * 50 %\n", "x"), "6 %");
     // 1 + 5 % is the plain factor 1.05
     assert_close!(eval_expr("", "1 + 5 %"), C64::new(1.05, 0.0), 1e-15);
+    // a power factor may be given in percent (common practice): the
+    // kvar-multiplier method (IEEE Std 141-1993 §8.4) from 80 % to 95 %
+    // needs 100 kW × (0.75 − tan(acos 0.95)) = 42.13 kvar
+    let want = 100e3 * (0.75 - 0.95f64.acos().tan());
+    assert_close!(eval_expr("", "q_pfc(100 kW, 80 %, 95 %)"), C64::new(want, 0.0), 1e-12);
     // per-unit (IEEE Std 141-1993 §4.2): pu × pu is pu; pu ÷ pu is a ratio
     assert_eq!(shown("x = 0.9 pu * 1.05 pu\n", "x"), "0.945 pu");
     let r = shown("x = 0.9 pu / 1.2 pu\n", "x");
