@@ -124,3 +124,28 @@ fn the_run_explains_a_q_below_the_least() {
         .stderr(predicate::str::contains("below the least Q of a T network"))
         .stderr(predicate::str::contains("4.359"));
 }
+
+// An L-network needs two positive resistances: a negative one is refused
+// (it used to give imaginary element values), located on the argument.
+#[test]
+fn l_network_refuses_a_negative_resistance() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("l.ohm");
+    for (body, col) in [
+        ("m = lmatch_lp(50 Ω, -600 Ω, 7 MHz)\n", "l.ohm:1:21"),
+        ("m = lmatch_hp(0 Ω, 600 Ω, 7 MHz)\n", "l.ohm:1:15"),
+    ] {
+        std::fs::write(&path, body).unwrap();
+        ohmsheet()
+            .arg("run")
+            .arg(&path)
+            .assert()
+            .code(2)
+            .stderr(predicate::str::contains(col))
+            .stderr(predicate::str::contains("must be a positive, finite resistance"));
+    }
+    // equal resistances need no network: no series L, no shunt C
+    let e = engine("m = lmatch_lp(50 Ω, 50 Ω, 7 MHz)");
+    assert_eq!(value(&e, "m.L"), re(0.0));
+    assert_eq!(value(&e, "m.C"), re(0.0));
+}

@@ -27,7 +27,6 @@
 //! an open, or series element a short).
 
 use super::*;
-use crate::engine::ops::Op;
 
 const RRF: &[Param] = &[p!("Rs", "Ω"), p!("RL", "Ω"), p!("f", "Hz|rad/s")];
 
@@ -51,37 +50,63 @@ fn ty_hp(qs: &[Quantity], c: &Ctx) -> Result<Shape, ArgError> {
     ty_lmatch(qs, c, false)
 }
 
-/// (ω, Q, Rlo, Rhi)
-fn design(e: &mut Emitter, a: &[Operand], q: &[Quantity]) -> (Operand, Operand, Operand, Operand) {
-    let w = omega(e, a[2], q[2]);
-    let hi = e.bin(Op::Max, a[0], a[1]);
-    let lo = e.bin(Op::Min, a[0], a[1]);
-    let r = e.bin(Op::Div, hi, lo);
-    let one = e.konst(1.0, 0.0);
-    let r1 = e.bin(Op::Sub, r, one);
-    let qf = e.un(Op::Sqrt, r1);
-    (w, qf, lo, hi)
+/// (Q, Rlo, Rhi, ω) of an L-network, or None unless both resistances are
+/// positive and finite and ω positive (the frequency arrives as ω, see
+/// `prep_omega`).
+fn l_design(a: &[C64]) -> Option<(f64, f64, f64, f64)> {
+    if a[..3].iter().any(|x| x.im != 0.0) {
+        return None;
+    }
+    let (rs, rl, w) = (a[0].re, a[1].re, a[2].re);
+    if !(rs > 0.0 && rl > 0.0 && rs.is_finite() && rl.is_finite() && w > 0.0 && w.is_finite()) {
+        return None;
+    }
+    let (hi, lo) = (rs.max(rl), rs.min(rl));
+    Some(((hi / lo - 1.0).sqrt(), lo, hi, w))
 }
 
 /// Series L = Q·Rlo/ω, shunt C = Q/(Rhi·ω).
-fn l_lp(e: &mut Emitter, a: &[Operand], q: &[Quantity]) -> Vec<Operand> {
-    let (w, qf, lo, hi) = design(e, a, q);
-    let xs = e.bin(Op::Mul, qf, lo);
-    let l = e.bin(Op::Div, xs, w);
-    let hw = e.bin(Op::Mul, hi, w);
-    let c = e.bin(Op::Div, qf, hw);
-    vec![l, c, qf]
+fn s_lp(a: &[C64], out: &mut [C64], _: &Ctx) {
+    let Some((q, lo, hi, w)) = l_design(a) else {
+        out.fill(C64::new(f64::NAN, f64::NAN));
+        return;
+    };
+    out[0] = C64::new(q * lo / w, 0.0);
+    out[1] = C64::new(q / (hi * w), 0.0);
+    out[2] = C64::new(q, 0.0);
 }
 
-/// Series C = 1/(ω·Q·Rlo), shunt L = Rhi/(Q·ω).
-fn l_hp(e: &mut Emitter, a: &[Operand], q: &[Quantity]) -> Vec<Operand> {
-    let (w, qf, lo, hi) = design(e, a, q);
-    let xs = e.bin(Op::Mul, qf, lo);
-    let wx = e.bin(Op::Mul, w, xs);
-    let c = e.un(Op::Recip, wx);
-    let qw = e.bin(Op::Mul, qf, w);
-    let l = e.bin(Op::Div, hi, qw);
-    vec![c, l, qf]
+/// Series C = 1/(ω·Q·Rlo), shunt L = Rhi/(Q·ω); equal resistances need
+/// no network: a series short (C = ∞) and an open shunt (L = ∞).
+fn s_hp(a: &[C64], out: &mut [C64], _: &Ctx) {
+    let Some((q, lo, hi, w)) = l_design(a) else {
+        out.fill(C64::new(f64::NAN, f64::NAN));
+        return;
+    };
+    out[0] = C64::new(1.0 / (w * (q * lo)), 0.0);
+    out[1] = C64::new(hi / (q * w), 0.0);
+    out[2] = C64::new(q, 0.0);
+}
+
+/// The frequency (the last argument) as ω in rad/s.
+fn prep_omega_last(e: &mut Emitter, a: &[Operand], q: &[Quantity]) -> Vec<Operand> {
+    let mut v = a.to_vec();
+    let k = v.len() - 1;
+    v[k] = omega(e, a[k], q[k]);
+    v
+}
+
+fn d_lmatch(a: &[C64], _: &Ctx) -> Option<ArgError> {
+    for (i, n) in ["Rs", "RL"].iter().enumerate() {
+        if !(a[i].im == 0.0 && a[i].re > 0.0 && a[i].re.is_finite()) {
+            return Some(ArgError::at(
+                i,
+                format!("`{n}` must be a positive, finite resistance (real: for a complex load use `lmatch_z`)"),
+            ));
+        }
+    }
+    (!(a[2].im == 0.0 && a[2].re > 0.0 && a[2].re.is_finite()))
+        .then(|| ArgError::at(2, "the frequency must be positive"))
 }
 
 fn ty_lmatch_z(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
@@ -187,9 +212,7 @@ fn ty_t_hp(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
 
 /// The frequency argument (index 3) as ω in rad/s.
 fn prep_omega(e: &mut Emitter, a: &[Operand], q: &[Quantity]) -> Vec<Operand> {
-    let mut v = a.to_vec();
-    v[3] = omega(e, a[3], q[3]);
-    v
+    prep_omega_last(e, a, q)
 }
 
 /// The three reactances, source end first, of a π (`pi`) or T network:
@@ -287,27 +310,35 @@ fn d_lmatch_z(a: &[C64], _: &Ctx) -> Option<ArgError> {
         .then(|| ArgError::at(2, "`sol` must be +1 or −1 (one of the two solutions)"))
 }
 
+const L_SOURCE: &str = "Bowick, RF Circuit Design, ch. 4, the L-network: Q = √(Rhi/Rlo − 1), X series = Q·Rlo, X shunt = Rhi/Q (from memory)";
+
 const PI_T_SOURCE: &str =
     "Bowick, RF Circuit Design, ch. 4, π and T networks as two L-networks through a virtual resistance (from memory)";
 
 pub fn funcs() -> Vec<Builtin> {
     vec![
-        lowered(
+        scalar_fn(
             "lmatch_lp",
             "L-network from Rs to RL at f, series L and shunt C (the shunt across the larger R)",
             RRF,
             "record L (H), C (F), Q (1)",
             ty_lp,
-            l_lp,
-        ),
-        lowered(
+            s_lp,
+        )
+        .with_prepare(prep_omega_last)
+        .with_domain(d_lmatch)
+        .with_source(L_SOURCE),
+        scalar_fn(
             "lmatch_hp",
             "L-network from Rs to RL at f, series C and shunt L (the shunt across the larger R)",
             RRF,
             "record C (F), L (H), Q (1)",
             ty_hp,
-            l_hp,
-        ),
+            s_hp,
+        )
+        .with_prepare(prep_omega_last)
+        .with_domain(d_lmatch)
+        .with_source(L_SOURCE),
         scalar_fn(
             "lmatch_z",
             "L-network making a complex load ZL look like Rs: series Xs, shunt Xp, at_load 1 if the shunt is across ZL",
