@@ -96,19 +96,6 @@ fn prep_omega_last(e: &mut Emitter, a: &[Operand], q: &[Quantity]) -> Vec<Operan
     v
 }
 
-fn d_lmatch(a: &[C64], _: &Ctx) -> Option<ArgError> {
-    for (i, n) in ["Rs", "RL"].iter().enumerate() {
-        if !(a[i].im == 0.0 && a[i].re > 0.0 && a[i].re.is_finite()) {
-            return Some(ArgError::at(
-                i,
-                format!("`{n}` must be a positive, finite resistance (real: for a complex load use `lmatch_z`)"),
-            ));
-        }
-    }
-    (!(a[2].im == 0.0 && a[2].re > 0.0 && a[2].re.is_finite()))
-        .then(|| ArgError::at(2, "the frequency must be positive"))
-}
-
 fn ty_lmatch_z(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
     want(qs, 0, Dim::IMPEDANCE, "Rs")?;
     want(qs, 1, Dim::IMPEDANCE, "ZL")?;
@@ -310,8 +297,6 @@ fn d_lmatch_z(a: &[C64], _: &Ctx) -> Option<ArgError> {
         .then(|| ArgError::at(2, "`sol` must be +1 or −1 (one of the two solutions)"))
 }
 
-const L_SOURCE: &str = "Bowick, RF Circuit Design, ch. 4, the L-network: Q = √(Rhi/Rlo − 1), X series = Q·Rlo, X shunt = Rhi/Q (from memory)";
-
 const PI_T_SOURCE: &str =
     "Bowick, RF Circuit Design, ch. 4, π and T networks as two L-networks through a virtual resistance (from memory)";
 
@@ -325,9 +310,7 @@ pub fn funcs() -> Vec<Builtin> {
             ty_lp,
             s_lp,
         )
-        .with_prepare(prep_omega_last)
-        .with_domain(d_lmatch)
-        .with_source(L_SOURCE),
+        .with_prepare(prep_omega_last),
         scalar_fn(
             "lmatch_hp",
             "L-network from Rs to RL at f, series C and shunt L (the shunt across the larger R)",
@@ -336,9 +319,7 @@ pub fn funcs() -> Vec<Builtin> {
             ty_hp,
             s_hp,
         )
-        .with_prepare(prep_omega_last)
-        .with_domain(d_lmatch)
-        .with_source(L_SOURCE),
+        .with_prepare(prep_omega_last),
         scalar_fn(
             "lmatch_z",
             "L-network making a complex load ZL look like Rs: series Xs, shunt Xp, at_load 1 if the shunt is across ZL",
