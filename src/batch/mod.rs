@@ -598,6 +598,7 @@ pub fn real_slots(prog: &Program, set_by_cases: &[u32]) -> Vec<bool> {
                 a()
             }
             Op::Add | Op::Sub | Op::Mul | Op::Div | Op::Par | Op::Min | Op::Max => ab(),
+            Op::Select => real[ins.b as usize] && real[ins.b as usize + 1],
             Op::Sqrt | Op::Ln | Op::Log10 | Op::Asin | Op::Acos | Op::Pow | Op::Polar => false,
             Op::Call(fid) => {
                 // Real only when the function declares it (pf, s_parts,

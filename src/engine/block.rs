@@ -201,6 +201,32 @@ impl Block {
                         }
                     }
                 }
+                Op::Select => {
+                    // the same choice as `ops::select`, without branches
+                    let n = b + LANES;
+                    for l in 0..LANES {
+                        let (cr, ci) = (*re.add(a + l), *im.add(a + l));
+                        let yes = (cr == 1.0) & (ci == 0.0);
+                        let no = (cr == 0.0) & (ci == 0.0);
+                        let (yr, yi, nr, ni) = (*re.add(b + l), *im.add(b + l), *re.add(n + l), *im.add(n + l));
+                        let r = if yes {
+                            yr
+                        } else if no {
+                            nr
+                        } else {
+                            f64::NAN
+                        };
+                        let i = if yes {
+                            yi
+                        } else if no {
+                            ni
+                        } else {
+                            f64::NAN
+                        };
+                        *re.add(d + l) = r;
+                        *im.add(d + l) = i;
+                    }
+                }
                 Op::Call(fid) => self.call(fid, ins, prog),
                 Op::Search(k) => super::search::exec_block(k as usize, ins.dst, prog, self),
                 op if op.is_unary() => {
@@ -297,6 +323,9 @@ fn validate(prog: &Program) {
                 assert!(ins.a < n, "instruction reads slot {} of {n}", ins.a);
                 if !op.is_unary() {
                     assert!(ins.b < n, "instruction reads slot {} of {n}", ins.b);
+                }
+                if op == Op::Select {
+                    assert!(ins.b + 1 < n, "instruction reads slot {} of {n}", ins.b + 1);
                 }
             }
         }

@@ -33,6 +33,7 @@ fn exec(ins: &Instr, prog: &Program, s: &mut [C64]) {
             super::search::exec_scalar(k as usize, ins.dst, prog, s);
             return;
         }
+        Op::Select => super::ops::select(s[ins.a as usize], s[ins.b as usize], s[ins.b as usize + 1]),
         op if op.is_unary() => apply1(op, s[ins.a as usize], ins.b),
         op => apply2(op, s[ins.a as usize], s[ins.b as usize]),
     };

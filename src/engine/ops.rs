@@ -81,6 +81,12 @@ pub enum Op {
     Gt,
     /// 1 if re a ≥ re b, else 0 (NaN if either is NaN).
     Ge,
+    /// A two-way choice: `a` is the condition, `b` the first of two
+    /// consecutive slots holding the two branches. The result is slot `b`
+    /// where the condition is exactly 1, slot `b + 1` where it is exactly
+    /// 0, and NaN for any other condition. The branch not taken is never
+    /// read into the result, so an ∞ or NaN there does no harm.
+    Select,
     /// A library function (index into `funcs::LIBRARY`).
     Call(u16),
     /// An in-sheet search (index into `Program::searches`); writes `dst`
@@ -499,6 +505,19 @@ pub fn compare(op: Op, a: C64, b: C64) -> C64 {
     real(if t { 1.0 } else { 0.0 })
 }
 
+/// The two-way choice of `Op::Select`: `yes` where `cond` is exactly 1,
+/// `no` where it is exactly 0, NaN otherwise.
+#[inline]
+pub fn select(cond: C64, yes: C64, no: C64) -> C64 {
+    if cond.im == 0.0 && cond.re == 1.0 {
+        yes
+    } else if cond.im == 0.0 && cond.re == 0.0 {
+        no
+    } else {
+        C64::new(f64::NAN, f64::NAN)
+    }
+}
+
 /// Apply a unary op.
 #[inline]
 pub fn apply1(op: Op, a: C64, b_bits: u32) -> C64 {
@@ -701,6 +720,18 @@ mod tests {
         for op in [Op::Lt, Op::Le, Op::Gt, Op::Ge] {
             assert!(compare(op, c(f64::NAN, 0.0), t).re.is_nan());
             assert!(apply2(op, t, c(f64::NAN, 1.0)).re.is_nan());
+        }
+    }
+
+    #[test]
+    fn select_takes_one_branch_and_refuses_other_conditions() {
+        let inf = c(f64::INFINITY, 0.0);
+        let nan = c(f64::NAN, 0.0);
+        assert_eq!(select(c(1.0, 0.0), c(2.0, 3.0), nan), c(2.0, 3.0));
+        assert_eq!(select(c(0.0, 0.0), inf, c(4.0, -1.0)), c(4.0, -1.0));
+        assert_eq!(select(c(-0.0, 0.0), inf, c(4.0, 0.0)), c(4.0, 0.0));
+        for bad in [c(0.5, 0.0), c(1.0, 1e-300), c(2.0, 0.0), nan, inf, c(1.0 + 1e-15, 0.0)] {
+            assert!(select(bad, c(1.0, 0.0), c(0.0, 0.0)).re.is_nan(), "{bad}");
         }
     }
 }

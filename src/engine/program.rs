@@ -171,6 +171,38 @@ impl Emitter<'_> {
         Operand::Slot(dst)
     }
 
+    /// `yes` where `cond` is exactly 1, `no` where it is exactly 0, NaN
+    /// otherwise (`Op::Select`). A known condition picks the branch now.
+    pub fn select(&mut self, cond: Operand, yes: Operand, no: Operand) -> Operand {
+        if let Operand::Const(c) = cond {
+            return match super::ops::select(c, C64::new(1.0, 0.0), C64::new(0.0, 0.0)) {
+                v if v.re == 1.0 => yes,
+                v if v.re == 0.0 => no,
+                _ => Operand::Const(C64::new(f64::NAN, f64::NAN)),
+            };
+        }
+        // the branches go to two consecutive slots
+        let pair = self.temp(2);
+        for (k, v) in [yes, no].into_iter().enumerate() {
+            let a = self.slot_of(v);
+            self.code.push(Instr {
+                op: Op::Copy,
+                dst: pair + k as u32,
+                a,
+                b: 0,
+            });
+        }
+        let c = self.slot_of(cond);
+        let dst = self.temp(1);
+        self.code.push(Instr {
+            op: Op::Select,
+            dst,
+            a: c,
+            b: pair,
+        });
+        Operand::Slot(dst)
+    }
+
     /// Call library function `fid` with `width` results.
     pub fn call(&mut self, fid: u16, args: &[Operand], width: u32) -> Vec<Operand> {
         let f = &crate::funcs::library()[fid as usize];

@@ -13,15 +13,20 @@
 //! it to that module's `FUNCS`, and add a test against a named outside
 //! source. See DEVELOPERS.md.
 
+pub mod conductors;
 pub mod domains;
 pub mod elements;
+pub mod faults;
+pub mod hyperbolic;
 pub mod lines;
 pub mod matching;
 pub mod math;
 pub mod networks;
 pub mod perunit;
 pub mod power;
+pub mod quality;
 pub mod ratios;
+pub mod steps;
 pub mod threephase;
 pub mod twoports;
 
@@ -34,7 +39,7 @@ use crate::units::{Dim, Kind, Quantity};
 
 /// The most arguments, and the most results, of a function computed by
 /// `Impl::Scalar`.
-pub const MAX_CALL_ARGS: usize = 16;
+pub const MAX_CALL_ARGS: usize = 32;
 
 /// What a function sees of the sheet's conventions.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -249,6 +254,11 @@ fn families() -> Vec<(&'static str, Vec<Builtin>)> {
         ("Lines and RF", domains::annotate(lines::funcs())),
         ("Two-ports (ABCD parameters)", domains::annotate(twoports::funcs())),
         ("Ratios", domains::annotate(ratios::funcs())),
+        ("Hyperbolic functions", hyperbolic::funcs()),
+        ("Steps, standard sizes and a two-way choice", steps::funcs()),
+        ("Fault studies", faults::funcs()),
+        ("Power quality", quality::funcs()),
+        ("Conductor sizes", conductors::funcs()),
     ]
 }
 

@@ -15,6 +15,8 @@ const BASE_SYMBOLS: [&str; 4] = ["m", "kg", "s", "A"];
 impl Dim {
     pub const NONE: Dim = Dim([0, 0, 0, 0]);
     pub const LENGTH: Dim = Dim([1, 0, 0, 0]);
+    /// m²: a conductor's cross-section.
+    pub const AREA: Dim = Dim([2, 0, 0, 0]);
     pub const MASS: Dim = Dim([0, 1, 0, 0]);
     pub const TIME: Dim = Dim([0, 0, 1, 0]);
     pub const CURRENT: Dim = Dim([0, 0, 0, 1]);

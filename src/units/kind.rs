@@ -126,6 +126,7 @@ impl Quantity {
             (_, d) if d == Dim::ENERGY => "an energy",
             (_, d) if d == Dim::CHARGE => "a charge",
             (_, d) if d == Dim::LENGTH => "a length",
+            (_, d) if d == Dim::AREA => "an area",
             _ => "a quantity",
         };
         format!("{what} ({unit})")

@@ -39,6 +39,10 @@ struct BaseUnit {
 }
 
 const DEG: f64 = std::f64::consts::PI / 180.0;
+/// One circular mil in m²: π/4 · (0.001 in)².
+pub const CMIL: f64 = std::f64::consts::FRAC_PI_4 * 0.0254e-3 * 0.0254e-3;
+/// One mechanical horsepower in W: 550 ft · 1 lbf per second.
+pub const HP: f64 = 550.0 * 0.3048 * 4.4482216152605;
 
 const BASE_UNITS: &[BaseUnit] = &[
     BaseUnit {
@@ -183,6 +187,59 @@ const BASE_UNITS: &[BaseUnit] = &[
         factor: 1.0,
         kind: Kind::Plain,
         prefixable: true,
+    },
+    // Units of the inch-pound system the trade still meets on nameplates
+    // and conductor tables, by their exact definitions in SI (the
+    // international yard and pound of 1959: 1 in = 25.4 mm, 1 ft = 0.3048 m,
+    // 1 mi = 1609.344 m; NIST SP 811, appendix B). The inch is `inch`:
+    // `in` is a word of the search form (`C in 0 .. 2 mF where …`).
+    BaseUnit {
+        symbols: &["ft", "foot", "feet"],
+        dim: Dim::LENGTH,
+        factor: 0.3048,
+        kind: Kind::Plain,
+        prefixable: false,
+    },
+    BaseUnit {
+        symbols: &["inch"],
+        dim: Dim::LENGTH,
+        factor: 0.0254,
+        kind: Kind::Plain,
+        prefixable: false,
+    },
+    BaseUnit {
+        symbols: &["mi", "mile"],
+        dim: Dim::LENGTH,
+        factor: 1609.344,
+        kind: Kind::Plain,
+        prefixable: false,
+    },
+    // The circular mil: the area of a circle one mil (0.001 in) across,
+    // π/4 · (25.4 µm)²; 1 kcmil is 1000 cmil (NIST SP 811, appendix B).
+    BaseUnit {
+        symbols: &["cmil"],
+        dim: Dim::AREA,
+        factor: CMIL,
+        kind: Kind::Plain,
+        prefixable: false,
+    },
+    BaseUnit {
+        symbols: &["kcmil"],
+        dim: Dim::AREA,
+        factor: 1e3 * CMIL,
+        kind: Kind::Plain,
+        prefixable: false,
+    },
+    // The mechanical horsepower, 550 ft·lbf/s = 745.699 871 582 270 22 W
+    // (NIST SP 811, appendix B; with 1 lbf = 4.448 221 615 260 5 N). The
+    // "electrical horsepower" of 746 W exactly is a different unit, 0.04 %
+    // larger; write `746 W` for it. A real power (W).
+    BaseUnit {
+        symbols: &["hp"],
+        dim: Dim::POWER,
+        factor: HP,
+        kind: Kind::RealPower,
+        prefixable: false,
     },
     BaseUnit {
         symbols: &["g"],
@@ -475,6 +532,37 @@ mod tests {
         for bad in ["s⁻", "s⁰", "s¹⁰", "s²x"] {
             assert!(parse_unit_expr(bad).is_err(), "{bad}");
         }
+    }
+
+    // Exact definitions (NIST SP 811, 2008, appendix B.8 and B.9): the
+    // international foot 0.3048 m, inch 0.0254 m, statute mile 1609.344 m;
+    // the circular mil π/4·(0.001 in)² = 5.067 075 × 10⁻¹⁰ m²; the
+    // horsepower (550 ft·lbf/s) 745.699 9 W. mm² is the square of a
+    // millimetre, written with a superscript or a power.
+    #[test]
+    fn inch_pound_units_and_areas() {
+        assert_eq!(parse_unit_expr("ft").unwrap().factor, 0.3048);
+        assert_eq!(parse_unit_expr("ft").unwrap().q.dim, Dim::LENGTH);
+        assert_eq!(parse_unit_expr("inch").unwrap().factor, 0.0254);
+        assert_eq!(parse_unit_expr("mi").unwrap().factor, 1609.344);
+        assert!(close(parse_unit_expr("mi").unwrap().factor, 5280.0 * 0.3048));
+        assert!(close(parse_unit_expr("ft").unwrap().factor, 12.0 * 0.0254));
+        let c = parse_unit_expr("cmil").unwrap();
+        assert_eq!(c.q.dim, Dim::AREA);
+        assert!((c.factor - 5.067_075e-10).abs() < 1e-16, "{}", c.factor);
+        assert!(close(parse_unit_expr("kcmil").unwrap().factor, 1000.0 * c.factor));
+        // 1 kcmil = 0.506 707 mm² (NIST SP 811 B.9: 5.067 075 E-10 m² per cmil)
+        assert!((parse_unit_expr("kcmil").unwrap().factor / 1e-6 - 0.506_707_5).abs() < 1e-7);
+        let hp = parse_unit_expr("hp").unwrap();
+        assert_eq!(hp.q.kind, Kind::RealPower);
+        assert!((hp.factor - 745.699_871_582_270_22).abs() < 1e-9, "{}", hp.factor);
+        assert!((hp.factor - 745.7).abs() < 0.001);
+        let mm2 = parse_unit_expr("mm²").unwrap();
+        assert_eq!(mm2.q.dim, Dim::AREA);
+        assert!(close(mm2.factor, 1e-6));
+        assert_eq!(mm2.factor, parse_unit_expr("mm^2").unwrap().factor);
+        // `in` stays a word of the search form, not a unit
+        assert!(parse_unit_expr("in").is_err());
     }
 
     #[test]
