@@ -59,10 +59,31 @@ Sources:
   [[n, 0], [0, 1/n*]], multiplied as matrices in cascade; V1 = A·V2 + B·I2,
   I1 = C·V2 + D·I2, Zin = (A·ZL + B)/(C·ZL + D) (Pozar, Microwave
   Engineering, §4.4 and table 4.1 — from memory).
+- Hyperbolic functions and inverses: DLMF §4.28 and §4.37, principal
+  branches, by mpmath; on the cuts by Python's cmath, which takes the
+  value of the defining formula with the principal logarithm (mpmath
+  takes atanh(x) for x > 1 from the other side of the cut, −jπ/2).
+- Nameplate and fault-level impedances: |Z| = z·V²/S and V/(√3·I) with
+  the angle atan(X/R); IEC 60909-0:2016 for the peak factor
+  κ = 1.02 + 0.98·e^(−3R/X) and ip = κ·√2·Ik", Ik" = c·Un/(√3·|Zk|)
+  (from memory).
+- Unsymmetrical faults: solved here in the phase domain with numpy (the
+  Thevenin impedance matrix A·diag(Z0, Z1, Z2)·A⁻¹, the balanced
+  pre-fault voltages and the fault's three constraints, a 6×6 linear
+  system), not by the sequence-network connections ohmsheet uses.
+- Voltage unbalance: |V2|/|V1| (IEC 61000-4-30) cross-checked by the
+  magnitude-only form u2 = √((1 − √(3 − 6β))/(1 + √(3 − 6β))),
+  β = Σ|V|⁴/(Σ|V|²)² of the line voltages (from memory); NEMA MG 1
+  largest deviation from the average over the average (from memory).
+- Harmonic resonance of a shunt bank h = √(S_sc/Q_c) (IEEE Std 1036,
+  from memory).
+- AWG: ASTM B258, d = 0.005 in · 92^((36 − n)/39).
 """
+import cmath
 import json
 
 import mpmath as mp
+import numpy as np
 
 mp.mp.dps = 50
 J = mp.mpc(0, 1)
@@ -463,6 +484,166 @@ NUMERICS_CASES = [
 ]
 CASES += NUMERICS_CASES
 
+
+def z_of_xr(m, xr):
+    """|Z| = m at the angle atan(X/R)."""
+    return m * mp.expj(mp.atan(xr))
+
+
+def fault_phase_solve(kind, vf, z1, z2, z0, zf):
+    """Fault currents by a phase-domain solve (numpy): unknowns Ia, Ib, Ic
+    and the bus voltages Va, Vb, Vc; V + Zabc·I = E, plus the fault's
+    three constraints. Returns (a, b, c, zero, pos, neg, ground)."""
+    a = np.exp(2j * np.pi / 3)
+    A = np.array([[1, 1, 1], [1, a * a, a], [1, a, a * a]])
+    zabc = A @ np.diag([z0, z1, z2]) @ np.linalg.inv(A)
+    e = np.array([vf, a * a * vf, a * vf])
+    m = np.zeros((6, 6), dtype=complex)
+    rhs = np.zeros(6, dtype=complex)
+    m[0:3, 0:3] = zabc
+    m[0:3, 3:6] = np.eye(3)
+    rhs[0:3] = e
+    if kind == "slg":  # Va = Zf·Ia, Ib = Ic = 0
+        m[3, 3], m[3, 0] = 1, -zf
+        m[4, 1] = 1
+        m[5, 2] = 1
+    elif kind == "ll":  # Ia = 0, Ib + Ic = 0, Vb − Vc = Zf·Ib
+        m[3, 0] = 1
+        m[4, 1], m[4, 2] = 1, 1
+        m[5, 4], m[5, 5], m[5, 1] = 1, -1, -zf
+    else:  # dlg: Ia = 0, Vb = Vc, Vb = Zf·(Ib + Ic)
+        m[3, 0] = 1
+        m[4, 4], m[4, 5] = 1, -1
+        m[5, 4], m[5, 1], m[5, 2] = 1, -zf, -zf
+    x = np.linalg.solve(m, rhs)
+    i = x[0:3]
+    s = np.linalg.inv(A) @ i
+    return (i[0], i[1], i[2], s[0], s[1], s[2], i.sum())
+
+
+FIELDS = ["a", "b", "c", "zero", "pos", "neg", "ground"]
+
+
+def fault_cases(call, kind, vf, z1, z2, z0, zf, what):
+    got = fault_phase_solve(kind, complex(vf), complex(z1), complex(z2), complex(z0), complex(zf))
+    # the currents that are exactly zero compare absolutely, so leave them out
+    # of the relative check and test them in tests/faults.rs instead
+    return [(f"{call}.{n}", mp.mpc(v), what) for n, v in zip(FIELDS, got) if abs(v) > 1e-9 * abs(got[4])]
+
+
+def vuf_beta(vab, vbc, vca):
+    """IEC 61000-4-30 magnitude form of |U2|/|U1| from line voltages."""
+    m = [abs(vab), abs(vbc), abs(vca)]
+    beta = sum(x**4 for x in m) / sum(x**2 for x in m) ** 2
+    r = mp.sqrt(3 - 6 * beta)
+    return mp.sqrt((1 - r) / (1 + r))
+
+
+def nema(vab, vbc, vca):
+    m = [abs(vab), abs(vbc), abs(vca)]
+    avg = sum(m) / 3
+    return max(abs(x - avg) for x in m) / avg
+
+
+INCH = mp.mpf("0.0254")
+
+
+def awg_d(n):
+    return mp.mpf("0.005") * INCH * mp.power(92, mp.mpf(36 - n) / 39)
+
+
+def kappa(xr):
+    return mp.mpf("1.02") + mp.mpf("0.98") * mp.exp(-3 / mp.mpf(xr))
+
+
+# An 11 kV / 0.415 kV, 1.5 MVA, 6.5 % (X/R 7) transformer fed from a
+# 250 MVA (X/R 12) source; invented numbers, in ohms on the 415 V side.
+V_LV = mp.mpf(415)
+ZT = z_of_xr(mp.mpf("0.065") * V_LV**2 / mp.mpf("1.5e6"), 7)
+ZQ = z_of_xr(mp.mpf(11000) ** 2 / mp.mpf("250e6"), 12) * (V_LV / 11000) ** 2
+Z1F = ZQ + ZT
+Z0F = ZT * mp.mpf("0.9")
+VF = V_LV / mp.sqrt(3)
+# line voltages of an unbalanced set: differences of phase voltages, so
+# they close (Vab + Vbc + Vca = 0) as the β form assumes
+Vpa, Vpb, Vpc = polar(240, 0), polar(232, -118), polar(236, 121)
+Vab_u, Vbc_u, Vca_u = Vpa - Vpb, Vpb - Vpc, Vpc - Vpa
+
+STUDY_CASES = [
+    ("sinh(0.7)", mp.sinh(mp.mpf("0.7")), "DLMF 4.28, mpmath"),
+    ("cosh(-1.3)", mp.cosh(mp.mpf("-1.3")), "DLMF 4.28, mpmath"),
+    ("tanh(0.4 - j1.1)", mp.tanh(mp.mpc("0.4", "-1.1")), "DLMF 4.28, mpmath"),
+    ("sinh(1.2 + j0.8)", mp.sinh(mp.mpc("1.2", "0.8")), "DLMF 4.28, mpmath"),
+    ("cosh(j*pi/3)", mp.cosh(J * PI / 3), "cosh(jx) = cos x"),
+    ("asinh(2.5)", mp.asinh(mp.mpf("2.5")), "DLMF 4.37, mpmath"),
+    ("asinh(-0.3 + j2)", mp.asinh(mp.mpc("-0.3", "2")), "DLMF 4.37, mpmath, near the cut"),
+    ("asinh(j*2)", mp.asinh(2 * J), "DLMF 4.37: on the cut, mpmath and cmath agree"),
+    ("asinh(-j*2)", cmath.asinh(-2j), "DLMF 4.37: on the lower cut, cmath"),
+    ("acosh(3)", mp.acosh(3), "DLMF 4.37, mpmath"),
+    ("acosh(0.5)", mp.acosh(mp.mpf("0.5")), "DLMF 4.37: j·acos x inside [-1, 1]"),
+    ("acosh(-2)", mp.acosh(-2), "DLMF 4.37: on the cut, + jπ (mpmath, cmath)"),
+    ("acosh(-2 + j0.5)", mp.acosh(mp.mpc(-2, "0.5")), "DLMF 4.37, mpmath"),
+    ("acosh(-2 - j0.5)", mp.acosh(mp.mpc(-2, "-0.5")), "DLMF 4.37, mpmath, below the cut"),
+    ("atanh(0.5)", mp.atanh(mp.mpf("0.5")), "DLMF 4.37, mpmath"),
+    ("atanh(2)", cmath.atanh(2), "½·ln((1+x)/(1−x)) with the principal ln: + jπ/2 (cmath)"),
+    ("atanh(-2)", cmath.atanh(-2), "½·ln((1+x)/(1−x)): + jπ/2 (cmath, mpmath)"),
+    ("atanh(0.3 + j1.7)", mp.atanh(mp.mpc("0.3", "1.7")), "DLMF 4.37, mpmath"),
+    ("atanh(2 - j0.1)", mp.atanh(mp.mpc(2, "-0.1")), "DLMF 4.37, mpmath, below the cut"),
+    ("round(412 kvar, 50 kvar)", mp.mpf(400e3), "nearest 50 kvar"),
+    ("round_up(412 kvar, 50 kvar)", 50e3 * mp.ceil(mp.mpf(412) / 50), "ceil: the next 50 kvar up"),
+    ("round_down(412 kvar, 50 kvar)", 50e3 * mp.floor(mp.mpf(412) / 50), "floor: the next 50 kvar down"),
+    ("size_up(620 kVA, 300 kVA, 500 kVA, 750 kVA, 1000 kVA)", mp.mpf(750e3), "the next rating up"),
+    ("size_down(620 kVA, 300 kVA, 500 kVA, 750 kVA, 1000 kVA)", mp.mpf(500e3), "the next rating down"),
+    ("pick(1, Za, Zb)", Za, "cond 1: the first branch"),
+    ("pick(0, Za, Zb)", Zb, "cond 0: the second branch"),
+    ("z_xr(10 Ω, 4)", z_of_xr(10, 4), "|Z|∠atan(X/R)"),
+    ("z_plate(6.5 %, 7, 415 V, 1.5 MVA)", ZT, "z·V²/S at atan(X/R)"),
+    ("z_plate(6.5 %, 7, 11 kV, 1.5 MVA)", ZT * (11000 / V_LV) ** 2, "the same, on the 11 kV side"),
+    ("z_plate(0.08 pu, 10, 1.05 pu, 0.15 pu)", z_of_xr(mp.mpf("0.08") * mp.mpf("1.05") ** 2 / mp.mpf("0.15"), 10), "change of base in per-unit"),
+    ("z_src(250 MVA, 12, 11 kV)", z_of_xr(mp.mpf(11000) ** 2 / mp.mpf("250e6"), 12), "V²/S_sc at atan(X/R)"),
+    ("z_src(13.1 kA, 12, 11 kV)", z_of_xr(mp.mpf(11000) / (mp.sqrt(3) * mp.mpf(13100)), 12), "V/(√3·I_sc) at atan(X/R)"),
+    ("z_refer((0.2 + j1.1) Ω, 11 kV, 415 V)", mp.mpc("0.2", "1.1") * (V_LV / 11000) ** 2, "Z·(V2/V1)²"),
+    ("z_refer(2 mS, 11 kV, 415 V)", mp.mpf("2e-3") * (11000 / V_LV) ** 2, "Y·(V1/V2)²"),
+    ("kappa(12)", kappa(12), "IEC 60909-0: 1.02 + 0.98·e^(−3R/X)"),
+    ("kappa(0.5)", kappa(mp.mpf("0.5")), "IEC 60909-0"),
+    ("sc_peak(415 V, (0.4 + j2.9) mΩ, 1.05).Ik", mp.mpf("1.05") * 415 / (mp.sqrt(3) * abs(mp.mpc("0.4e-3", "2.9e-3"))), "Ik\" = c·Un/(√3·|Zk|)"),
+    ("sc_peak(415 V, (0.4 + j2.9) mΩ, 1.05).kappa", kappa(mp.mpf("2.9") / mp.mpf("0.4")), "κ from R/X of Zk"),
+    ("sc_peak(415 V, (0.4 + j2.9) mΩ, 1.05).ip", kappa(mp.mpf("2.9") / mp.mpf("0.4")) * mp.sqrt(2) * mp.mpf("1.05") * 415 / (mp.sqrt(3) * abs(mp.mpc("0.4e-3", "2.9e-3"))), "ip = κ·√2·Ik\""),
+    ("sc_peak(1 pu, j0.05 pu, 1.1).Ik", mp.mpf("1.1") / mp.mpf("0.05"), "per-unit: c·V/|Z|"),
+    ("h_res(250 MVA, 1.2 Mvar)", mp.sqrt(mp.mpf(250) / mp.mpf("1.2")), "h = √(S_sc/Q_c)"),
+    ("unbalance_seq(Vab_u, Vbc_u, Vca_u)", vuf_beta(Vab_u, Vbc_u, Vca_u), "IEC 61000-4-30 β form (magnitudes only)"),
+    ("unbalance_seq(Va, Vb, Vc)", abs(s2) / abs(s1), "|V2|/|V1| (Fortescue, matrix inverse)"),
+    ("unbalance_seq(Vpa, Vpb, Vpc)", vuf_beta(Vab_u, Vbc_u, Vca_u), "phase voltages give the line voltages' ratio (β form)"),
+    ("unbalance_dev(Vab_u, Vbc_u, Vca_u)", nema(Vab_u, Vbc_u, Vca_u), "NEMA MG 1: max deviation / average"),
+    ("awg(10).d", awg_d(10), "ASTM B258"),
+    ("awg(10).A", PI / 4 * awg_d(10) ** 2, "ASTM B258, π·d²/4"),
+    ("awg(-3).d", awg_d(-3), "ASTM B258: 0000 is 0.46 in"),
+    ("awg0(4).A", PI / 4 * awg_d(-3) ** 2, "4/0 = 0000"),
+    ("awg0(1).d", awg_d(0), "1/0 = 0"),
+    ("awg(36).d", mp.mpf("0.005") * INCH, "ASTM B258: 36 is 0.005 in"),
+]
+STUDY_CASES += fault_cases("fault_slg(VF, Z1F, Z1F, Z0F, 0 Ω)", "slg", VF, Z1F, Z1F, Z0F, 0, "SLG, phase-domain solve (numpy)")
+STUDY_CASES += fault_cases("fault_slg(VF, Z1F, Z1F, Z0F, 0.5 Ω)", "slg", VF, Z1F, Z1F, Z0F, mp.mpf("0.5"), "SLG through 0.5 Ω (numpy)")
+STUDY_CASES += fault_cases("fault_ll(VF, Z1F, Z1F, 0 Ω)", "ll", VF, Z1F, Z1F, Z0F, 0, "LL, phase-domain solve (numpy)")
+STUDY_CASES += fault_cases("fault_ll(VF, Z1F, Z1F * 1.1, 0.02 Ω)", "ll", VF, Z1F, Z1F * mp.mpf("1.1"), Z0F, mp.mpf("0.02"), "LL through 0.02 Ω, Z2 ≠ Z1 (numpy)")
+STUDY_CASES += fault_cases("fault_dlg(VF, Z1F, Z1F, Z0F, 0 Ω)", "dlg", VF, Z1F, Z1F, Z0F, 0, "DLG, phase-domain solve (numpy)")
+STUDY_CASES += fault_cases("fault_dlg(VF, Z1F, Z1F * 1.1, Z0F, 0.3 Ω)", "dlg", VF, Z1F, Z1F * mp.mpf("1.1"), Z0F, mp.mpf("0.3"), "DLG through 0.3 Ω (numpy)")
+STUDY_CASES += fault_cases("fault_dlg(0.98 pu, j0.12 pu, j0.14 pu, (0.02 + j0.3) pu, 0.1 pu)", "dlg", mp.mpf("0.98"), 0.12j, 0.14j, mp.mpc("0.02", "0.3"), mp.mpf("0.1"), "DLG in per-unit (numpy)")
+CASES += STUDY_CASES
+
+STUDY_PREAMBLE = f"""
+VF = {mp.nstr(VF, 20)} V
+Z1F = ({mp.nstr(mp.re(Z1F), 20)} + j{mp.nstr(mp.im(Z1F), 20)}) Ω
+Z0F = ({mp.nstr(mp.re(Z0F), 20)} + j{mp.nstr(mp.im(Z0F), 20)}) Ω
+Vpa = 240 V
+Vpb = 232 V ∠ -118°
+Vpc = 236 V ∠ 121°
+Vab_u = Vpa - Vpb
+Vbc_u = Vpb - Vpc
+Vca_u = Vpc - Vpa
+"""
+PREAMBLE += STUDY_PREAMBLE
+
 # Evaluated under `@amplitude peak`: power from peak phasors is halved.
 PEAK_CASES = [
     ("s_vi(Vs, I1)", S1 / 2, "IEEE 1459 with peak phasors: S = ½·V·I*"),
@@ -474,6 +655,9 @@ PEAK_CASES = [
     ("i_line(180 kW, 400 V, 0.72)", 180e3 / (mp.sqrt(3) / 2 * 400 * mp.mpf("0.72")), "P = (√3/2)·Vpk·Ipk·pf"),
     ("s3(400 V ∠ 12°, 60 A ∠ -28°)", 3 * Van * mp.conj(Ia) / 2, "S = (3/2)·Van·Ia*"),
     ("p3(400 V, 50 A, 0.85)", mp.sqrt(3) / 2 * 400 * 50 * mp.mpf("0.85"), "(√3/2)·V·I·pf"),
+    ("z_plate(6.5 %, 7, 415 V, 1.5 MVA)", ZT / 2, "peak V: z·(V/√2)²/S"),
+    ("z_src(250 MVA, 12, 11 kV)", z_of_xr(mp.mpf(11000) ** 2 / mp.mpf("250e6"), 12) / 2, "peak V: (V/√2)²/S_sc"),
+    ("sc_peak(415 V, (0.4 + j2.9) mΩ, 1.05).ip", kappa(mp.mpf("2.9") / mp.mpf("0.4")) * mp.mpf("1.05") * 415 / (mp.sqrt(3) * abs(mp.mpc("0.4e-3", "2.9e-3"))), "peak phasors: ip = κ·Ik (already peak)"),
 ]
 
 
