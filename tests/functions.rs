@@ -638,6 +638,69 @@ fn wrong_units_are_refused_by_line_two_port_and_pi_t_functions() {
     );
 }
 
+// The fault-study, power-quality, step and size functions of issue 14.
+#[test]
+fn wrong_units_are_refused_by_the_study_functions() {
+    refused("x = z_plate(6 %, 8, 400 A, 1 MVA)", "`V` must be a voltage");
+    refused(
+        "x = z_plate(6 %, 8, 400 V, 1 MW)",
+        "`S` must be a rating in VA, but this is a real power",
+    );
+    refused("x = z_plate(6 %, 8, 400 V, 1 Mvar)", "but this is a reactive power");
+    refused(
+        "x = z_plate(6 Ω, 8, 400 V, 1 MVA)",
+        "`z` must be a percentage or per-unit impedance",
+    );
+    refused("x = z_plate(6 %, 8 Ω, 400 V, 1 MVA)", "`XR` must be a plain number");
+    refused("x = z_plate(6 %, 8, 1 pu, 1 MVA)", "mixing per-unit and SI values");
+    refused("x = z_src(250 MW, 10, 11 kV)", "write it in kVA or MVA");
+    refused("x = z_src(250 Ω, 10, 11 kV)", "`Ssc` must be a fault level");
+    refused("x = z_src(250 MVA, 10, 11 kA)", "`V` must be a voltage");
+    refused("x = z_xr(10 V, 3)", "`Zmag` must be an impedance");
+    refused(
+        "x = z_refer(0.1 pu, 11 kV, 400 V)",
+        "a per-unit impedance is the same on both sides",
+    );
+    refused("x = z_refer(2 Ω, 11 kV, 400 A)", "`V_to` must be a rated voltage");
+    refused(
+        "x = z_refer(2 Ω, 11 kV, 30)",
+        "must both be voltages or both numbers of turns",
+    );
+    refused(
+        "x = z_refer(2 A, 11 kV, 400 V)",
+        "`Z` must be an impedance (Ω) or an admittance",
+    );
+    refused("x = fault_slg(230 A, 1 Ω, 1 Ω, 1 Ω, 0 Ω)", "`Vf` must be a voltage");
+    refused("x = fault_ll(230 V, 1 Ω, 1 S, 0 Ω)", "for an admittance Y pass 1/Y");
+    refused(
+        "x = fault_dlg(230 V, 1 Ω, 1 Ω, 1 Ω, 0 pu)",
+        "mixing per-unit and SI values",
+    );
+    refused("x = kappa(10 Ω)", "`XR` must be a plain number");
+    refused("x = sc_peak(400 A, 1 Ω, 1.1)", "`Vn` must be a voltage");
+    refused("x = sc_peak(400 V, 1 Ω, 1.1 V)", "`c` must be a plain number");
+    refused(
+        "x = h_res(250 MW, 1 Mvar)",
+        "`Ssc` must be a three-phase fault level in VA",
+    );
+    refused("x = h_res(250 MVA, 1 MW)", "`Qc` must be the bank's reactive power");
+    refused("x = unbalance_seq(1 Ω, 1 Ω, 1 Ω)", "must be voltages");
+    refused(
+        "x = round_up(412 kvar, 50 kW)",
+        "`step` must be of the same kind as `x`",
+    );
+    refused(
+        "x = size_up(412 kvar, 300 kVA, 450 kvar)",
+        "`size` must be of the same kind as `x`",
+    );
+    refused("x = pick(1, 2 A, 3 V)", "`b` must be of the same kind as `a`");
+    refused("x = pick(2 V, 2 A, 3 A)", "`cond` must be a plain number");
+    refused("x = sinh(2 V)", "`x` must be a plain number");
+    refused("x = atanh(2 Ω)", "`x` must be a plain number");
+    refused("x = awg(10 mm)", "`n` must be a plain number");
+    refused("x = awg0(4 A)", "`k` must be a plain number");
+}
+
 // A frequency not marked as Hz or rad/s (here 1/√(LC), which is ω, not f)
 // is refused rather than guessed; a display unit settles it.
 #[test]

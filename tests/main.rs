@@ -17,6 +17,7 @@ mod demos;
 mod engine_recompute;
 mod errors_catalogue;
 mod funcs_reference;
+mod funcs_studies;
 mod functions;
 mod fuzz_regressions;
 mod include;

@@ -6,16 +6,21 @@
 //! The area is π·d²/4; in circular mils it is (d in mils)².
 
 use super::*;
-use crate::units::table::CMIL;
 
 const INCH: f64 = 0.0254;
 
 fn ty_awg(q: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
     want_plain(q, 0, "n", "a gauge number")?;
-    Ok(Shape::Record(vec![
-        ("d", Quantity::of(Dim::LENGTH)),
-        ("A", Quantity::of(Dim::AREA)),
-    ]))
+    Ok(wire())
+}
+
+fn ty_awg0(q: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
+    want_plain(q, 0, "k", "the k of a k/0 size, 1 to 4")?;
+    Ok(wire())
+}
+
+fn wire() -> Shape {
+    Shape::Record(vec![("d", Quantity::of(Dim::LENGTH)), ("A", Quantity::of(Dim::AREA))])
 }
 
 fn whole(x: C64) -> Option<f64> {
@@ -74,9 +79,6 @@ fn dom_awg0(a: &[C64], _: &Ctx) -> Option<ArgError> {
     }
 }
 
-/// The area of one circular mil, for docs and tests.
-pub const CIRCULAR_MIL: f64 = CMIL;
-
 pub fn funcs() -> Vec<Builtin> {
     let src = "ASTM B258 (AWG): d = 0.005 in · 92^((36 − n)/39)";
     vec![
@@ -95,7 +97,7 @@ pub fn funcs() -> Vec<Builtin> {
             "solid wire of AWG size k/0 (awg0(4) is 4/0 = 0000): fields d, A",
             &[p!("k", "1")],
             "record d (m), A (m²)",
-            ty_awg,
+            ty_awg0,
             s_awg0,
         )
         .with_domain(dom_awg0)

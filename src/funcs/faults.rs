@@ -30,6 +30,16 @@ use crate::units::kind::Kind;
 
 const SQRT3: f64 = 1.732_050_807_568_877_2;
 
+/// A real number ≥ 0 (not NaN).
+fn nonneg_real(x: C64) -> bool {
+    x.im == 0.0 && x.re >= 0.0
+}
+
+/// A real number > 0 (not NaN).
+fn pos_real(x: C64) -> bool {
+    x.im == 0.0 && x.re > 0.0
+}
+
 fn nan() -> C64 {
     C64::new(f64::NAN, f64::NAN)
 }
@@ -128,11 +138,11 @@ fn s_z_xr(a: &[C64], out: &mut [C64], _: &Ctx) {
 }
 
 fn dom_xr(x: C64, i: usize) -> Option<ArgError> {
-    (x.im != 0.0 || !(x.re >= 0.0)).then(|| ArgError::at(i, format!("`XR` must be a real number ≥ 0, but it is {x}")))
+    (!nonneg_real(x)).then(|| ArgError::at(i, format!("`XR` must be a real number ≥ 0, but it is {x}")))
 }
 
 fn dom_z_xr(a: &[C64], _: &Ctx) -> Option<ArgError> {
-    if a[0].im != 0.0 || !(a[0].re >= 0.0) {
+    if !nonneg_real(a[0]) {
         return Some(ArgError::at(
             0,
             format!("`Zmag` must be a magnitude (real, ≥ 0), but it is {}", a[0]),
@@ -164,7 +174,7 @@ fn l_z_plate(e: &mut Emitter, a: &[Operand], q: &[Quantity]) -> Vec<Operand> {
 }
 
 fn dom_z_plate(a: &[C64], _: &Ctx) -> Option<ArgError> {
-    if a[0].im != 0.0 || !(a[0].re >= 0.0) {
+    if !nonneg_real(a[0]) {
         return Some(ArgError::at(
             0,
             format!("`z` must be a real fraction ≥ 0, but it is {}", a[0]),
@@ -403,7 +413,7 @@ fn ty_kappa(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
 
 /// κ = 1.02 + 0.98·e^(−3R/X), IEC 60909-0 (2016) eq. (55).
 pub fn kappa(xr: C64) -> C64 {
-    if xr.im != 0.0 || !(xr.re >= 0.0) {
+    if !nonneg_real(xr) {
         return nan();
     }
     let r_over_x = 1.0 / xr.re; // 1/0 = ∞, 1/∞ = 0
@@ -462,8 +472,7 @@ fn dom_sc_peak(a: &[C64], _: &Ctx) -> Option<ArgError> {
             format!("`Zk` must be a short-circuit impedance with R ≥ 0 and X ≥ 0, not zero, but it is {z}"),
         ));
     }
-    (a[2].im != 0.0 || !(a[2].re > 0.0))
-        .then(|| ArgError::at(2, format!("`c` must be a real factor > 0, but it is {}", a[2])))
+    (!pos_real(a[2])).then(|| ArgError::at(2, format!("`c` must be a real factor > 0, but it is {}", a[2])))
 }
 
 pub fn funcs() -> Vec<Builtin> {

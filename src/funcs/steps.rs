@@ -57,6 +57,11 @@ fn is_real(z: C64) -> bool {
     z.im == 0.0 && !z.re.is_nan()
 }
 
+/// A real number > 0 (not NaN).
+fn pos_real(x: C64) -> bool {
+    x.im == 0.0 && x.re > 0.0
+}
+
 fn nan() -> C64 {
     C64::new(f64::NAN, f64::NAN)
 }
@@ -120,7 +125,7 @@ fn real_x(x: C64, name: &str) -> Option<ArgError> {
 
 fn dom_step(a: &[C64], _: &Ctx) -> Option<ArgError> {
     let step = a[1];
-    if step.im != 0.0 || !(step.re > 0.0) || step.re.is_infinite() {
+    if !pos_real(step) || step.re.is_infinite() {
         return Some(ArgError::at(
             1,
             format!("`step` must be a real value greater than 0 and finite, but it is {step}"),

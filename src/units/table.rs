@@ -555,7 +555,7 @@ mod tests {
         assert!((parse_unit_expr("kcmil").unwrap().factor / 1e-6 - 0.506_707_5).abs() < 1e-7);
         let hp = parse_unit_expr("hp").unwrap();
         assert_eq!(hp.q.kind, Kind::RealPower);
-        assert!((hp.factor - 745.699_871_582_270_22).abs() < 1e-9, "{}", hp.factor);
+        assert!((hp.factor - 745.699_871_582_270_2).abs() < 1e-9, "{}", hp.factor);
         assert!((hp.factor - 745.7).abs() < 0.001);
         let mm2 = parse_unit_expr("mm²").unwrap();
         assert_eq!(mm2.q.dim, Dim::AREA);
