@@ -208,6 +208,44 @@ fn pick_agrees_lane_by_lane_in_both_evaluators() {
     assert_eq!(value(&e, "y"), re(20.0));
 }
 
+// With the comparison operators: the condition is the comparison's 1 or 0,
+// and a batch of cases takes each its own branch (both evaluators agree).
+#[test]
+fn pick_with_comparisons_case_by_case() {
+    use ohmsheet::engine::block::{Block, LANES};
+    let src = "Q = 412 kvar\nstep = pick(Q > 400 kvar, 100 kvar, 50 kvar)\nbank = round_up(Q, step)\n\
+               low = pick(Q <= 0 kvar, 1 A, 2 A)";
+    let mut e = engine(src);
+    assert_eq!(value(&e, "step"), re(100e3));
+    assert_eq!(value(&e, "bank"), re(500e3));
+    assert_eq!(value(&e, "low"), re(2.0));
+    let q = e.model.id("Q").unwrap();
+    let prog = e.model.program.clone();
+    let slot = e.model.cells[q as usize].slot;
+    let qs: Vec<f64> = (0..LANES).map(|l| l as f64 * 13e3 - 50e3).collect();
+    let mut b = Block::new(&prog);
+    for (l, v) in qs.iter().enumerate() {
+        b.set(slot, l, re(*v));
+    }
+    b.run(&prog.code, &prog);
+    for (l, v) in qs.iter().enumerate() {
+        e.set_input(q, re(*v));
+        for name in ["step", "bank", "low"] {
+            let id = e.model.id(name).unwrap();
+            let (want, got) = (e.value(id), b.get(e.model.cells[id as usize].slot, l));
+            assert_eq!(
+                (got.re.to_bits(), got.im.to_bits()),
+                (want.re.to_bits(), want.im.to_bits()),
+                "{name} at {v}"
+            );
+        }
+        let step = if *v > 400e3 { 100e3 } else { 50e3 };
+        assert_eq!(value(&e, "step"), re(step), "Q = {v}");
+        assert_eq!(value(&e, "bank"), re((v / step).ceil() * step), "Q = {v}");
+        assert_eq!(value(&e, "low"), re(if *v <= 0.0 { 1.0 } else { 2.0 }), "Q = {v}");
+    }
+}
+
 // ---- nameplate and fault-level impedances ----
 
 // Common practice: a transformer's bolted secondary fault current from
