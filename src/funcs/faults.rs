@@ -64,7 +64,7 @@ fn both_pu(qs: &[Quantity], a: usize, b: usize) -> Result<bool, ArgError> {
 /// A percentage or per-unit impedance magnitude: a plain number, `%` or
 /// pu (not an angle).
 fn want_fraction(qs: &[Quantity], i: usize, name: &str) -> Result<(), ArgError> {
-    if qs[i].dim.is_none() && qs[i].kind != Kind::Angle {
+    if qs[i].dim.is_none() && !matches!(qs[i].kind, Kind::Angle | Kind::Decibel) {
         Ok(())
     } else {
         Err(ArgError::at(

@@ -50,7 +50,7 @@ pub fn want_like(q: &[Quantity], i: usize, j: usize, pi: &str, pj: &str) -> Resu
     if (a.kind == Kind::PerUnit) != (b.kind == Kind::PerUnit) {
         return Err(msg("; give both in per-unit or both with units"));
     }
-    kind_of_sum(a.kind, b.kind, a.dim).map_err(|m| msg(&format!("; {m}")))
+    kind_of_sum(a.kind, b.kind, a.dim).map_err(|m| msg(&format!("; {}", m.message)))
 }
 
 fn is_real(z: C64) -> bool {
