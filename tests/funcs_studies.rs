@@ -151,8 +151,12 @@ fn next_standard_size() {
         "x = size_up(620 kVA, 500 kVA, 750 A)",
         "`size` must be of the same kind as `x`",
     );
-    let many = vec!["1 kVA"; 40].join(", ");
-    refused(&format!("x = size_up(620 kVA, {many})"), "at most 31 sizes");
+    // any number of sizes (the choice is lowered to instructions)
+    let many: Vec<String> = (1..=40).map(|k| format!("{} kVA", 50 * k)).collect();
+    assert_eq!(ev(&format!("size_up(620 kVA, {})", many.join(", "))), re(650e3));
+    // a complex value is not sized by its real part: refused (NaN)
+    nan_reported(&format!("x = size_up((400 + j300) kVA, {list})\n"));
+    nan_reported(&format!("x = size_down(620 kVA, {list}, (500 + j1) kVA)\n"));
 }
 
 // ---- the two-way choice ----

@@ -39,7 +39,7 @@ use crate::units::{Dim, Kind, Quantity};
 
 /// The most arguments, and the most results, of a function computed by
 /// `Impl::Scalar`.
-pub const MAX_CALL_ARGS: usize = 32;
+pub const MAX_CALL_ARGS: usize = 16;
 
 /// What a function sees of the sheet's conventions.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]

@@ -18,6 +18,7 @@
 //!   the reason.
 
 use super::*;
+use crate::engine::ops::Op;
 use crate::units::kind::kind_of_sum;
 
 /// Within this relative distance a value counts as on a step or a size.
@@ -139,13 +140,6 @@ fn dom_step(a: &[C64], _: &Ctx) -> Option<ArgError> {
 const SIZES: &[Param] = &[p!("x", "any"), p!("size", "as x")];
 
 fn ty_sizes(q: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
-    if q.len() > MAX_CALL_ARGS {
-        return Err(ArgError::whole(format!(
-            "at most {} sizes can be listed, but this gives {}",
-            MAX_CALL_ARGS - 1,
-            q.len() - 1
-        )));
-    }
     let mut k = q[0].kind;
     for j in 1..q.len() {
         k = want_like(q, 0, j, "x", "size")?;
@@ -153,33 +147,45 @@ fn ty_sizes(q: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {
     scalar(q[0].dim, k)
 }
 
-/// The smallest size at or above x (`up`), or the largest at or below.
-fn next_size(a: &[C64], up: bool) -> C64 {
-    let x = a[0];
-    if !is_real(x) || a[1..].iter().any(|s| !is_real(*s)) {
-        return nan();
+/// The smallest size at or above x (`up`), or the largest at or below,
+/// lowered to instructions: each size that fits stays, each that does not
+/// becomes ±∞, and the least (greatest) is taken. No size fitting, or an
+/// imaginary part in x or a size, gives NaN.
+fn lower_sizes(e: &mut Emitter, a: &[Operand], up: bool) -> Operand {
+    let nan = e.konst(f64::NAN, f64::NAN);
+    let x = e.un(Op::Re, a[0]);
+    let ax = e.un(Op::Abs, x);
+    let on = e.konst(ON, 0.0);
+    let tol = e.bin(Op::Mul, ax, on);
+    // up: s ≥ x − tol; down: s ≤ x + tol
+    let thr = e.bin(if up { Op::Sub } else { Op::Add }, x, tol);
+    let none = e.konst(if up { f64::INFINITY } else { f64::NEG_INFINITY }, 0.0);
+    let mut best = none;
+    let mut imag = e.un(Op::Im, a[0]);
+    imag = e.un(Op::Abs, imag);
+    for &s in &a[1..] {
+        let fits = e.bin(if up { Op::Ge } else { Op::Le }, s, thr);
+        let sr = e.un(Op::Re, s);
+        let cand = e.select(fits, sr, none);
+        best = e.bin(if up { Op::Min } else { Op::Max }, best, cand);
+        let si = e.un(Op::Im, s);
+        let si = e.un(Op::Abs, si);
+        imag = e.bin(Op::Add, imag, si);
     }
-    let tol = ON * x.re.abs();
-    let mut best: Option<f64> = None;
-    for s in &a[1..] {
-        let s = s.re;
-        let fits = if up { s >= x.re - tol } else { s <= x.re + tol };
-        if fits {
-            best = Some(match best {
-                None => s,
-                Some(b) if up => b.min(s),
-                Some(b) => b.max(s),
-            });
-        }
-    }
-    best.map_or(nan(), |b| C64::new(b, 0.0))
+    let zero = e.konst(0.0, 0.0);
+    let real = e.bin(Op::Le, imag, zero);
+    let inf = e.konst(f64::INFINITY, 0.0);
+    let ab = e.un(Op::Abs, best);
+    let found = e.bin(Op::Lt, ab, inf);
+    let r = e.select(found, best, nan);
+    e.select(real, r, nan)
 }
 
-fn s_size_up(a: &[C64], out: &mut [C64], _: &Ctx) {
-    out[0] = next_size(a, true);
+fn l_size_up(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
+    vec![lower_sizes(e, a, true)]
 }
-fn s_size_down(a: &[C64], out: &mut [C64], _: &Ctx) {
-    out[0] = next_size(a, false);
+fn l_size_down(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
+    vec![lower_sizes(e, a, false)]
 }
 
 fn dom_sizes(a: &[C64], up: bool) -> Option<ArgError> {
@@ -277,13 +283,13 @@ pub fn funcs() -> Vec<Builtin> {
         .with_source(src_round),
         Builtin {
             variadic: true,
-            ..scalar_fn(
+            ..lowered(
                 "size_up",
                 "the smallest of the listed sizes at or above x (NaN if x is above them all)",
                 SIZES,
                 "as x",
                 ty_sizes,
-                s_size_up,
+                l_size_up,
             )
         }
         .with_domain(dom_size_up)
@@ -292,13 +298,13 @@ pub fn funcs() -> Vec<Builtin> {
         ),
         Builtin {
             variadic: true,
-            ..scalar_fn(
+            ..lowered(
                 "size_down",
                 "the largest of the listed sizes at or below x (NaN if x is below them all)",
                 SIZES,
                 "as x",
                 ty_sizes,
-                s_size_down,
+                l_size_down,
             )
         }
         .with_domain(dom_size_down)
