@@ -790,6 +790,7 @@ fn block_evaluator_agrees_on_the_function_demos() {
         "rural-feeder-capacitor.ohm",
         "beacon-antenna-match.ohm",
         "export-line-ferranti.ohm",
+        "sawmill-bank-fault-duty.ohm",
     ] {
         let text = std::fs::read_to_string(crate::common::repo(&format!("sheets-demo/{name}"))).unwrap();
         let e = engine(&text);
