@@ -28,6 +28,7 @@ mod lines_rf;
 mod local_override;
 mod matching_pi_t;
 mod misreadings;
+mod output_options;
 mod plot_render;
 mod properties;
 mod readme;

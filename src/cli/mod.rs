@@ -43,6 +43,10 @@ pub struct Cli {
 #[derive(Subcommand, Debug)]
 pub enum Command {
     /// Evaluate a sheet and print every cell and check
+    #[command(after_help = "Examples:\n  \
+ohmsheet run feeder.ohm\n  \
+ohmsheet run feeder.ohm --set \"Vs=480 V\" --digits 6\n  \
+ohmsheet run feeder.ohm --format json -o feeder.json")]
     Run(RunArgs),
     /// Evaluate a sheet for every row of a cases table (CSV) and write the results table
     Batch(BatchArgs),
@@ -51,14 +55,23 @@ pub enum Command {
     /// Run only the checks of sheets, or of every .ohm sheet under folders (for CI)
     Check(check::CheckArgs),
     /// Re-evaluate a sheet each time it, or a sheet it includes, is saved
+    #[command(after_help = "Examples:\n  \
+ohmsheet watch feeder.ohm\n  \
+ohmsheet watch feeder.ohm --set \"Vs=415 V\" --digits 6")]
     Watch(watch::WatchArgs),
     /// Vary inputs across a range and tabulate, write or plot the shown cells
     Sweep(sweep::SweepArgs),
     /// Find the input value that brings an expression to a target, or to its largest or smallest value
     Solve(sweep::SolveArgs),
     /// List the built-in functions with their units
+    #[command(after_help = "Examples:\n  \
+ohmsheet functions\n  \
+ohmsheet functions | grep -A1 par")]
     Functions,
     /// List the units and prefixes the sheet language knows
+    #[command(after_help = "Examples:\n  \
+ohmsheet units\n  \
+ohmsheet units | tr -s ' ' '\\n' | grep -x 'kvar'")]
     Units,
 }
 
@@ -75,6 +88,9 @@ pub struct RunArgs {
     /// Output format
     #[arg(long, value_enum, default_value_t = Format::Table)]
     pub format: Format,
+    /// Write the output to FILE (written whole, or not at all) instead of standard output
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: Option<PathBuf>,
     #[command(flatten)]
     pub load: LoadArgs,
 }
@@ -115,8 +131,8 @@ pub struct BatchArgs {
     /// The cases table: a CSV file whose header row names inputs of the sheet
     #[arg(long, value_name = "CASES.csv")]
     pub cases: PathBuf,
-    /// Where to write the results table (written whole, or not at all)
-    #[arg(long, value_name = "RESULTS.csv")]
+    /// Where to write the results table, CSV (written whole, or not at all; `--out` also works)
+    #[arg(short = 'o', long = "output", visible_alias = "out", value_name = "RESULTS.csv")]
     pub out: PathBuf,
     /// Cells to write, comma-separated (default: every computed cell)
     #[arg(long, value_delimiter = ',', value_name = "CELL,…")]
@@ -192,7 +208,13 @@ pub fn main_with(args: Vec<OsString>) -> i32 {
         Command::Report(a) => report::report(&a),
         Command::Check(a) => check::check(&a),
         Command::Watch(a) => watch::watch(&a),
-        Command::Sweep(a) => sweep::sweep(&a),
+        Command::Sweep(mut a) => match a.resolve_output() {
+            Ok(()) => sweep::sweep(&a),
+            Err(e) => {
+                eprintln!("error: {e}");
+                EXIT_ERROR
+            }
+        },
         Command::Solve(a) => sweep::solve(&a),
         Command::Functions => {
             print!("{}", run::functions_listing());

@@ -11,6 +11,10 @@ use crate::output::report;
 use crate::units::format::Style;
 
 #[derive(Args, Debug)]
+#[command(after_help = "Examples:\n  \
+ohmsheet report feeder.ohm -o feeder.html\n  \
+ohmsheet report feeder.ohm --format md -o feeder.md --digits 5\n  \
+ohmsheet report feeder.ohm --format json --set \"Vs=415 V\"")]
 pub struct ReportArgs {
     /// The sheet to report on (a .ohm file)
     pub sheet: PathBuf,

@@ -17,13 +17,30 @@ pub fn run(a: &RunArgs) -> i32 {
     let cells = output::cell_rows(&engine, style);
     let checks = output::check_rows(&engine, style);
     let name = a.sheet.display().to_string();
-    match a.format {
-        Format::Table => {
-            print!("{}", table::cells_table(&engine.model, &cells));
-            print!("{}", table::checks_table(&checks));
+    let text = match a.format {
+        Format::Table => format!(
+            "{}{}",
+            table::cells_table(&engine.model, &cells),
+            table::checks_table(&checks)
+        ),
+        Format::Json => format!("{}\n", output::to_json(&name, &engine.model, &cells, &checks)),
+        Format::Csv => output::to_csv(&cells),
+    };
+    match &a.output {
+        None => print!("{text}"),
+        Some(p) => {
+            if crate::fsutil::same_file(p, &a.sheet) {
+                eprintln!(
+                    "error: --output `{}` is the sheet; it would be overwritten",
+                    p.display()
+                );
+                return EXIT_ERROR;
+            }
+            if let Err(e) = crate::fsutil::write_atomic(p, text.as_bytes()) {
+                eprintln!("error: cannot write `{}`: {e}", p.display());
+                return EXIT_ERROR;
+            }
         }
-        Format::Json => println!("{}", output::to_json(&name, &engine.model, &cells, &checks)),
-        Format::Csv => print!("{}", output::to_csv(&cells)),
     }
     if report_nans(&engine) {
         return EXIT_ERROR;

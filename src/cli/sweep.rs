@@ -15,6 +15,10 @@ use crate::sweep::{self, Axis, Series, SolveError, SolveRequest, Study, SweepRes
 use crate::units::format::{format_value, Style};
 
 #[derive(Args, Debug)]
+#[command(after_help = "Examples:\n  \
+ohmsheet sweep feeder.ohm --vary C=0..2mF --show pf,abs(Iline)\n  \
+ohmsheet sweep feeder.ohm --vary f=10Hz..1MHz --log --points 200 --show abs(Z) --format csv -o z.csv\n  \
+ohmsheet sweep feeder.ohm --vary C=0..2mF --vary R=1..10 --points 21,10 --show pf --complex rect --format json")]
 pub struct SweepArgs {
     /// The sheet (a .ohm file)
     pub sheet: PathBuf,
@@ -22,23 +26,30 @@ pub struct SweepArgs {
     /// Without --vary, the sheet's own `@sweep` is run
     #[arg(long, value_name = "NAME=START..STOP")]
     pub vary: Vec<String>,
-    /// Number of points (one value for every input, or one per --vary in order)
-    #[arg(long, value_name = "N")]
+    /// Number of points (one value for every input, or one per --vary in order: --points 21,10 or repeated)
+    #[arg(long, value_name = "N[,N]", value_delimiter = ',')]
     pub points: Vec<usize>,
-    /// Distance between points, with a unit, e.g. --step 10uF (one per --vary, in order; instead of --points)
-    #[arg(long, value_name = "STEP")]
+    /// Distance between points, with a unit, e.g. --step 10uF (one per --vary, in order: --step 10uF,1V or
+    /// repeated; instead of --points)
+    #[arg(long, value_name = "STEP[,STEP]", value_delimiter = ',')]
     pub step: Vec<String>,
     /// Space the points logarithmically (all inputs, or only the one named)
-    #[arg(long, value_name = "NAME", num_args = 0..=1, default_missing_value = "*")]
+    #[arg(long, value_name = "NAME", num_args = 0..=1, default_missing_value = "*", value_delimiter = ',')]
     pub log: Vec<String>,
     /// Cells or expressions to show, comma-separated, e.g. --show Vload,pf,abs(Iline)
     #[arg(long, value_name = "CELL[,CELL…]")]
     pub show: Vec<String>,
-    /// Write the points as CSV to FILE (`-` for standard output)
-    #[arg(long, value_name = "FILE")]
+    /// Output format: a table for people, or every point as CSV or JSON (to standard output, or to -o FILE)
+    #[arg(long, value_enum)]
+    pub format: Option<SweepFormat>,
+    /// Write the CSV or JSON to FILE (written whole, or not at all; `-` for standard output)
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: Option<PathBuf>,
+    /// Shorthand for --format csv -o FILE
+    #[arg(long, value_name = "FILE", conflicts_with_all = ["format", "output"])]
     pub csv: Option<PathBuf>,
-    /// Write the points as JSON to FILE (`-` for standard output)
-    #[arg(long, value_name = "FILE")]
+    /// Shorthand for --format json -o FILE
+    #[arg(long, value_name = "FILE", conflicts_with_all = ["format", "output"])]
     pub json: Option<PathBuf>,
     /// Draw the shown cells against the swept input as an SVG picture
     #[arg(long, value_name = "FILE.svg")]
@@ -46,8 +57,8 @@ pub struct SweepArgs {
     /// Draw a quick chart in the terminal
     #[arg(long)]
     pub chart: bool,
-    /// Split complex values into magnitude and angle (polar) or real and imaginary parts (rect)
-    #[arg(long, value_enum, default_value_t = PartsArg::Polar)]
+    /// Complex values as magnitude and angle (polar) or real and imaginary parts (rect); `--parts` also works
+    #[arg(long = "complex", visible_alias = "parts", value_enum, default_value_t = PartsArg::Polar)]
     pub parts: PartsArg,
     /// Give a cell a new formula for this run, e.g. --set "Vs=480 V" (repeatable)
     #[arg(long = "set", value_name = "NAME=EXPR")]
@@ -63,6 +74,35 @@ pub struct SweepArgs {
     pub declared: usize,
     #[command(flatten)]
     pub load: LoadArgs,
+}
+
+/// What `sweep` writes.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum SweepFormat {
+    Table,
+    Csv,
+    Json,
+}
+
+impl SweepArgs {
+    /// `--format csv|json` and `-o` as the `--csv`/`--json` they stand
+    /// for; an error for `-o` with the table.
+    pub fn resolve_output(&mut self) -> Result<(), String> {
+        let out = self.output.take();
+        match self.format {
+            Some(SweepFormat::Csv) => self.csv = Some(out.unwrap_or_else(|| "-".into())),
+            Some(SweepFormat::Json) => self.json = Some(out.unwrap_or_else(|| "-".into())),
+            Some(SweepFormat::Table) | None => {
+                if let Some(p) = out {
+                    return Err(format!(
+                        "-o `{}` needs --format csv or --format json; the table goes to the terminal (--plot FILE.svg writes a picture)",
+                        p.display()
+                    ));
+                }
+            }
+        }
+        Ok(())
+    }
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
@@ -81,6 +121,10 @@ impl From<PartsArg> for Parts {
 }
 
 #[derive(Args, Debug)]
+#[command(after_help = "Examples:\n  \
+ohmsheet solve plant.ohm --vary C=0..3mF --target 'pf = 0.95'\n  \
+ohmsheet solve filter.ohm --vary f=10Hz..1MHz --maximize 'abs(Vout)' --log\n  \
+ohmsheet solve plant.ohm --vary C=0..3mF --target 'pf = 0.95' --format json -o answer.json")]
 pub struct SolveArgs {
     /// The sheet (a .ohm file)
     pub sheet: PathBuf,
@@ -96,7 +140,8 @@ pub struct SolveArgs {
     /// Find where EXPR is smallest (its real part; use abs(…) for a magnitude)
     #[arg(long, value_name = "EXPR")]
     pub minimize: Option<String>,
-    /// Points in the coarse scan before refining
+    /// Intervals of the coarse scan that brackets the answer before it is refined (N + 1 points are
+    /// evaluated; 2 to 10,000,000)
     #[arg(long, value_name = "N", default_value_t = crate::engine::search::DEFAULT_SCAN)]
     pub scan: usize,
     /// Scan the range logarithmically (the default when it spans more than two decades)
@@ -111,11 +156,24 @@ pub struct SolveArgs {
     /// Significant digits shown
     #[arg(long, default_value_t = 6, value_parser = clap::value_parser!(u8).range(1..=15))]
     pub digits: u8,
-    /// Print the answer as JSON
-    #[arg(long)]
+    /// Output format: the answer in words, or as JSON
+    #[arg(long, value_enum, default_value_t = SolveFormat::Table)]
+    pub format: SolveFormat,
+    /// Write the answer to FILE (written whole, or not at all) instead of standard output
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: Option<PathBuf>,
+    /// Shorthand for --format json
+    #[arg(long, hide = true)]
     pub json: bool,
     #[command(flatten)]
     pub load: LoadArgs,
+}
+
+/// What `solve` writes.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum SolveFormat {
+    Table,
+    Json,
 }
 
 /// Split `a,b,atan2(x, y)` at commas outside brackets.
@@ -168,6 +226,20 @@ pub fn write_atomic(path: &Path, f: impl FnOnce(&mut dyn Write) -> io::Result<()
     let mut w = crate::fsutil::AtomicFile::create(path)?;
     f(&mut w)?;
     w.commit()
+}
+
+/// Print `text`, or write it to `path` whole.
+fn deliver(text: &str, path: Option<&Path>) -> i32 {
+    match path {
+        None => {
+            print!("{text}");
+            EXIT_OK
+        }
+        Some(p) => match write_atomic(p, |w| w.write_all(text.as_bytes())) {
+            Ok(()) => EXIT_OK,
+            Err(e) => io_error(p, e),
+        },
+    }
 }
 
 fn io_error(path: &Path, e: io::Error) -> i32 {
@@ -512,11 +584,18 @@ pub fn solve(a: &SolveArgs) -> i32 {
     };
     let digits = a.digits as usize;
     let fmt = |s: &Series, x: C64| format_value(x, s.quantity, s.display.as_ref(), Style { digits }).rect;
+    let mut out = String::new();
+    macro_rules! say {
+        ($($t:tt)*) => {{
+            out.push_str(&format!($($t)*));
+            out.push('\n');
+        }};
+    }
     match sweep::solve(sheet, &req) {
         Ok(sol) => {
             let x = fmt(&sol.input, C64::new(sol.found.x, 0.0));
             let v = fmt(&sol.expr, sol.value_at);
-            if a.json {
+            if a.json || a.format == SolveFormat::Json {
                 let doc = serde_json::json!({
                     "input": sol.input.name,
                     "unit": crate::units::format::base_symbol(sol.input.quantity),
@@ -533,27 +612,27 @@ pub fn solve(a: &SolveArgs) -> i32 {
                     "log_scan": sol.log,
                     "at_edge": sol.found.at_edge,
                 });
-                println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
-                return EXIT_OK;
+                say!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
+                return deliver(&out, a.output.as_deref());
             }
-            println!("{} = {x}", sol.input.name);
+            say!("{} = {x}", sol.input.name);
             match goal {
                 Goal::Root => {
                     let t = fmt(&sol.expr, sol.target.unwrap_or_default());
-                    println!(
+                    say!(
                         "  brings {expr} to {t} (it is {v} there; residual {})",
                         crate::units::format::fmt_sig(sol.found.fx, 3)
                     );
                     if sol.value_at.im.abs() > 1e-9 * sol.value_at.norm() {
-                        println!("  note: {expr} is complex; its real part was matched (use abs, re or im to choose)");
+                        say!("  note: {expr} is complex; its real part was matched (use abs, re or im to choose)");
                     }
                 }
-                Goal::Max => println!("  {expr} is largest there: {v}"),
-                Goal::Min => println!("  {expr} is smallest there: {v}"),
+                Goal::Max => say!("  {expr} is largest there: {v}"),
+                Goal::Min => say!("  {expr} is smallest there: {v}"),
             }
             let lo = fmt(&sol.input, C64::new(sol.lo, 0.0));
             let hi = fmt(&sol.input, C64::new(sol.hi, 0.0));
-            println!(
+            say!(
                 "  {} iteration{} after a {} scan of {} points from {lo} to {hi}",
                 sol.found.iterations,
                 if sol.found.iterations == 1 { "" } else { "s" },
@@ -561,12 +640,12 @@ pub fn solve(a: &SolveArgs) -> i32 {
                 sol.scan + 1
             );
             if sol.found.at_edge && goal != Goal::Root {
-                println!(
+                say!(
                     "  note: this is at the end of the range; the curve may go on {} beyond it",
                     if goal == Goal::Max { "rising" } else { "falling" }
                 );
             }
-            EXIT_OK
+            deliver(&out, a.output.as_deref())
         }
         Err(SolveError::Invalid(f)) => {
             report(&f.sources, &f.diagnostics);
