@@ -152,6 +152,8 @@ pub fn check_rows(engine: &Engine, style: Style) -> Vec<CheckRow> {
         let r = check_result(m, id, engine.values(id));
         let q = c.checked_quantity();
         let show = |z: C64| format_value(z, q, c.display.as_ref(), style).rect;
+        let (error_display, tolerance_display) =
+            crate::units::format::check_gap(q, c.display.as_ref(), r.diff, r.tol, style);
         rows.push(CheckRow {
             expr: c.formula.clone(),
             file: m.sources.get(c.file).name.clone(),
@@ -168,8 +170,8 @@ pub fn check_rows(engine: &Engine, style: Style) -> Vec<CheckRow> {
             error: r.diff,
             tolerance: r.tol,
             unit: base_symbol(q),
-            error_display: show(C64::new(r.diff, 0.0)),
-            tolerance_display: show(C64::new(r.tol, 0.0)),
+            error_display,
+            tolerance_display,
             lhs_display: show(r.lhs),
             rhs_display: show(r.rhs),
         });

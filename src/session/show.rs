@@ -66,11 +66,11 @@ pub fn cell_vals(m: &Model, id: CellId, vals: &[C64], style: Style, polar: bool)
             Shape::Record(f) => f[0].1,
             Shape::Scalar(q) => *q,
         };
-        let s = |x: f64| one(C64::new(x, 0.0), q, None, style, false);
+        let (diff, tol) = crate::units::format::check_gap(q, c.display.as_ref(), r.diff, r.tol, style);
         return if r.passed {
-            format!("holds (off by {}, allowed {})", s(r.diff), s(r.tol))
+            format!("holds (off by {diff}, allowed {tol})")
         } else {
-            format!("FAILS (off by {}, allowed {})", s(r.diff), s(r.tol))
+            format!("FAILS (off by {diff}, allowed {tol})")
         };
     }
     value(shape, vals, c.display.as_ref(), style, polar)

@@ -292,6 +292,24 @@ pub fn axis_unit(q: Quantity, display: Option<&Unit>, max_abs: f64) -> (String, 
     (s.with_prefix(p), f * s.scale)
 }
 
+/// A check's difference and allowance, both in one unit so they compare at
+/// a glance (`0.5 kW`, allowed `1 kW`; never `500 W` against `1 kW`): a
+/// dimensionless display unit the sheet chose (`%`, `pu`) if there is one,
+/// else the unit `axis_unit` picks for the larger of the two — the same
+/// on the command line, in reports and in the session.
+pub fn check_gap(q: Quantity, display: Option<&Unit>, diff: f64, tol: f64, style: Style) -> (String, String) {
+    let big = [diff, tol].into_iter().filter(|x| x.is_finite()).fold(0.0, f64::max);
+    let unit = match display {
+        Some(u) if u.q.dim.is_none() => u.clone(),
+        _ => {
+            let (symbol, factor) = axis_unit(q, None, big);
+            Unit { factor, q, symbol }
+        }
+    };
+    let show = |x: f64| format_value(C64::new(x, 0.0), q, Some(&unit), style).rect;
+    (show(diff), show(tol))
+}
+
 /// The coherent SI symbol and whether SI prefixes go on it.
 pub fn unit_prefixable(q: Quantity) -> (String, bool) {
     let s = shown(q);
@@ -575,5 +593,22 @@ mod tests {
         let (unit, div) = axis_unit(e(Kind::RealPower), None, 5e9);
         assert_eq!(unit, "MWh");
         assert!((div - 3.6e9).abs() < 1e-3);
+    }
+
+    // A difference and its allowance in one unit (common practice: a
+    // tolerance is read against the difference, digit for digit).
+    #[test]
+    fn check_difference_and_allowance_share_a_unit() {
+        let w = Quantity::new(Dim::POWER, Kind::RealPower);
+        let st = Style::default();
+        assert_eq!(check_gap(w, None, 0.5, 1000.0, st), ("0.0005 kW".into(), "1 kW".into()));
+        assert_eq!(check_gap(w, None, 500.0, 1000.0, st), ("0.5 kW".into(), "1 kW".into()));
+        assert_eq!(check_gap(w, None, 2e6, 1000.0, st), ("2 MW".into(), "0.001 MW".into()));
+        assert_eq!(check_gap(w, None, 0.0, 600.0, st), ("0 W".into(), "600 W".into()));
+        let pct = crate::units::parse_unit_expr("%").unwrap();
+        let (d, t) = check_gap(pct.q, Some(&pct), 0.0019, 0.005, st);
+        assert_eq!((d.as_str(), t.as_str()), ("0.19 %", "0.5 %"));
+        let (d, t) = check_gap(Quantity::ANGLE, None, 0.5f64.to_radians(), 1f64.to_radians(), st);
+        assert_eq!((d.as_str(), t.as_str()), ("0.5°", "1°"));
     }
 }

@@ -336,3 +336,43 @@ fn functions_declared_real_return_real_values() {
         assert!(declared.contains(&name), "{name} is not declared real");
     }
 }
+
+// ------------------------------------------------------------------ checks
+
+// A check's difference and allowance are in one unit, and the same one on
+// the command line, in the report and in the session (common practice: a
+// tolerance is read against the difference digit for digit). 800 kW
+// against 800.5 kW is 0.5 kW off; 1 kW is allowed.
+#[test]
+fn check_difference_and_allowance_share_a_unit_everywhere() {
+    let src = "P = 800 kW\nx = 0.19 %\ncheck P ~= 800.5 kW +- 1 kW\ncheck x * 1 ~= 0.2 % +- 0.0005\n";
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("s.ohm");
+    std::fs::write(&sheet, src).unwrap();
+    let out = ohmsheet().arg("run").arg(&sheet).output().unwrap();
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(text.contains("|difference| 0.5 kW (allowed 1 kW)"), "{text}");
+    assert!(text.contains("|difference| 0.01 % (allowed 0.05 %)"), "{text}");
+    let e = engine(src);
+    let r = ohmsheet::output::report::build(
+        &ohmsheet::sheet::Sheet::from_text("s.ohm", src),
+        &e,
+        &[],
+        ohmsheet::units::format::Style::default(),
+    );
+    assert_eq!(
+        (r.checks[0].difference.as_str(), r.checks[0].allowed.as_str()),
+        ("0.5 kW", "1 kW")
+    );
+    assert_eq!(
+        (r.checks[1].difference.as_str(), r.checks[1].allowed.as_str()),
+        ("0.01 %", "0.05 %")
+    );
+    let (mut s, _) =
+        ohmsheet::session::state::Session::open(Some(&sheet), Some(dir.path().join("data")), false).unwrap();
+    // An edit shows the checks it changes.
+    let shown = s.handle("P = 800.2 kW").text;
+    assert!(shown.contains("off by 0.3 kW, allowed 1 kW"), "{shown}");
+    let shown = s.handle("x = 0.18 %").text;
+    assert!(shown.contains("off by 0.02 %, allowed 0.05 %"), "{shown}");
+}

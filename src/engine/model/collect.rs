@@ -117,6 +117,11 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                         cell.display = cells[target as usize].display.clone();
                     }
                 }
+                // Else in the unit written on the reference (`~= 2.3 %`),
+                // as the report shows it.
+                if cell.display.is_none() {
+                    cell.display = literal_unit(&c.rhs);
+                }
                 cells.push(cell);
                 pending.push(Pending {
                     expr: None,

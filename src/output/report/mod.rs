@@ -369,11 +369,9 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
             style.digits
         };
         let show = |z: C64| format_value(z, q, unit.as_ref(), Style { digits }).rect;
-        // A difference in a unit with a prefix reads best with its own
-        // prefix (2.4 mA, not 2.4e-6 kA); a plain number keeps the unit
-        // chosen (0.19 %).
-        let diff_unit = if q.dim.is_none() { unit.as_ref() } else { None };
-        let show_diff = |x: f64| format_value(C64::new(x, 0.0), q, diff_unit, style).rect;
+        // The difference and the allowance in one unit, as on the command
+        // line and in the session (`check_gap`).
+        let (difference, allowed) = crate::units::format::check_gap(q, unit.as_ref(), r.diff, r.tol, style);
         let rule = match c.tol {
             Some(TolSpec::Relative(f)) => format!(
                 "{} % of |reference|",
@@ -388,8 +386,8 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
             passed: r.passed,
             computed: show(r.lhs),
             reference: show(r.rhs),
-            difference: show_diff(r.diff),
-            allowed: show_diff(r.tol),
+            difference,
+            allowed,
             tolerance_rule: rule,
             notes: notes_of(c),
         });
