@@ -47,7 +47,7 @@ fn a_failed_check_exits_1() {
         .code(1)
         .stdout(predicate::str::contains("FAIL  f.ohm:3  check V / R ~= 4 A +- 1%"))
         .stdout(predicate::str::contains(
-            "computed 3 A, |difference| 1 A, allowed 40 mA",
+            "computed 3 A, |difference| 1 A, allowed 0.04 A",
         ))
         .stdout(predicate::str::contains("2 checks in 2 sheets: 1 pass, 1 fail"));
 }

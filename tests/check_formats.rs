@@ -4,7 +4,7 @@
 //! 2 a sheet error).
 //!
 //! Expected values: Ohm's law, 12 V across 4 Ω gives 3 A (arithmetic);
-//! the allowance of `+- 1%` on 4 A is 40 mA. The JUnit structure is the
+//! the allowance of `+- 1%` on 4 A is 40 mA, shown as 0.04 A beside a 1 A difference. The JUnit structure is the
 //! one CI systems read (`testsuites` > `testsuite` > `testcase`, with
 //! `failure` and `error` children), checked with an XML parser (roxmltree).
 
@@ -59,7 +59,7 @@ fn json_gives_each_checks_sheet_line_values_allowance_and_verdict() {
     assert_eq!(f["expected"]["re"], 4.0);
     assert!((f["difference"].as_f64().unwrap() - 1.0).abs() < 1e-15);
     assert!((f["allowance"].as_f64().unwrap() - 0.04).abs() < 1e-15); // 1% of 4 A
-    assert_eq!(f["allowance_display"], "40 mA");
+    assert_eq!(f["allowance_display"], "0.04 A");
 }
 
 #[test]
@@ -146,7 +146,7 @@ fn junit_parses_as_xml_with_suites_cases_failures_and_errors() {
         .find(|n| n.has_tag_name("failure"))
         .expect("a failure element");
     let msg = failure.attribute("message").unwrap();
-    assert!(msg.contains("computed 3 A") && msg.contains("allowed 40 mA"), "{msg}");
+    assert!(msg.contains("computed 3 A") && msg.contains("allowed 0.04 A"), "{msg}");
     // b.ohm: an error, with the reason.
     let err = case(&suites[2]);
     let error = err
