@@ -376,3 +376,21 @@ fn check_difference_and_allowance_share_a_unit_everywhere() {
     let shown = s.handle("x = 0.18 %").text;
     assert!(shown.contains("off by 0.02 %, allowed 0.05 %"), "{shown}");
 }
+
+// ------------------------------------------------------ %, pu and dB shown
+
+// Percent and per-unit keep their display through arithmetic, a ratio of
+// two per-unit values is a plain number, and a level in dB carries dB
+// (20·log10 10 = 20 dB, IEC 60027-3) — in the table and run's CSV and JSON.
+#[test]
+fn percent_per_unit_and_decibels_are_shown_as_such() {
+    let src = "pc = 12 % + 3 %\na = 1.05 pu\nb = a / 0.95 pu\nc = a * 2\ng = db_v(10)\n";
+    let rs = rows(src);
+    let get = |n: &str| rs.iter().find(|r| r.name == n).unwrap().clone();
+    assert_eq!(get("pc").display, "15 %");
+    assert!((get("pc").re - 0.15).abs() < 1e-15);
+    assert_eq!(get("b").display, "1.105");
+    assert_eq!(get("c").display, "2.1 pu");
+    assert_eq!(get("g").display, "20 dB");
+    assert_eq!(get("g").polar, "20 dB");
+}
