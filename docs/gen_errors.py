@@ -26,6 +26,13 @@ ENTRIES = [
     ("syntax", "The line does not follow the grammar.", "x = (1 + 2\n", None),
     ("empty-sheet", "The sheet has no definitions.", "# nothing but a comment\n", None),
     ("bare-expression", "A sheet line is an expression without a name.", "2 * 3\n", None),
+    ("network-block", "A network block without its `end`, or an `end` with no block open.",
+     "network feed at 50 Hz\n  R = branch(a, ground, 1 Ω)\n", None),
+    ("network-element", "A line inside a network block that is not an element, an element form outside a block, "
+     "or an element's value of the wrong unit.", "network feed at 50 Hz\n  x = 5 Ω\nend\n", None),
+    ("network-shape", "A network whose shape leaves its equations without a solution whatever the values: a node with no "
+     "path to ground, nodes hanging on current sources, a loop of ideal voltage sources, or no elements.",
+     "network feed at 50 Hz\n  E1 = emf(a, ground, 1 V)\n  E2 = emf(a, ground, 2 V)\nend\n", None),
     ("bad-number", "A number beyond the range of a double once its prefix and unit scale it to SI units: too large, "
      "or so small it would read as 0; or a unit whose scale is beyond a double (see docs/limits.md).", "x = 1e999\n", None),
     ("unknown-unit", "A unit word the table does not know.", "R = 20 ohms\n", None),

@@ -13,6 +13,7 @@ pub mod engine;
 pub mod fsutil;
 pub mod funcs;
 pub mod harness;
+pub mod network;
 pub mod output;
 pub mod plot;
 pub mod session;

@@ -18,7 +18,7 @@ use sha2::{Digest, Sha256};
 
 use crate::diag::{Diagnostic, ErrorCode, FileId, SourceFile, SourceMap, Span};
 use crate::engine::model::META_KEYS;
-use crate::syntax::ast::{Definition, Directive, Expr, Ident, Stmt, StmtKind};
+use crate::syntax::ast::{Definition, Directive, Expr, ExprKind, Ident, Stmt, StmtKind};
 use crate::syntax::{parse_line, parse_sheet};
 
 /// The directive that merges a library sheet.
@@ -299,6 +299,21 @@ impl Sheet {
         });
         match target {
             Some(def) => {
+                // A network element keeps its form and nodes; the value
+                // inside it is what is set.
+                if let ExprKind::Call { func, args } = &mut def.expr.kind {
+                    let n = crate::syntax::ast::NETWORK_ELEMENTS
+                        .iter()
+                        .find(|(f, _)| *f == func.name)
+                        .map(|&(_, n)| n);
+                    if let Some(slot) = n.and_then(|n| args.get_mut(n)) {
+                        *slot = stmt.expr;
+                        if stmt.display.is_some() {
+                            def.display = stmt.display;
+                        }
+                        return Ok(());
+                    }
+                }
                 let original = match self.overrides.iter().find(|o| o.name == def.name.name) {
                     Some(o) => o.original.clone(),
                     None => def.expr.clone(),

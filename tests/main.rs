@@ -28,6 +28,8 @@ mod lines_rf;
 mod local_override;
 mod matching_pi_t;
 mod misreadings;
+mod network_solver;
+mod networks;
 mod output_options;
 mod plot_render;
 mod properties;

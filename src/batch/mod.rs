@@ -600,6 +600,13 @@ pub fn real_slots(prog: &Program, set_by_cases: &[u32]) -> Vec<bool> {
             Op::Add | Op::Sub | Op::Mul | Op::Div | Op::Par | Op::Min | Op::Max => ab(),
             Op::Select => real[ins.b as usize] && real[ins.b as usize + 1],
             Op::Sqrt | Op::Ln | Op::Log10 | Op::Asin | Op::Acos | Op::Pow | Op::Polar => false,
+            Op::Network(_) => {
+                let width = prog.call_args[ins.a as usize];
+                for k in 0..width {
+                    real[(ins.dst + k) as usize] = false;
+                }
+                continue;
+            }
             Op::Call(fid) => {
                 // Real only when the function declares it (pf, s_parts,
                 // q_pfc, …), never from the values of one run.

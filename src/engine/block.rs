@@ -229,6 +229,7 @@ impl Block {
                 }
                 Op::Call(fid) => self.call(fid, ins, prog),
                 Op::Search(k) => super::search::exec_block(k as usize, ins.dst, prog, self),
+                Op::Network(k) => self.network(k, ins, prog),
                 op if op.is_unary() => {
                     for l in 0..LANES {
                         let z = apply1(op, C64::new(*re.add(a + l), *im.add(a + l)), ins.b);
@@ -259,6 +260,26 @@ impl Block {
             let y = self.get(ins.b, l);
             let z = f(x, y);
             self.set(ins.dst, l, z);
+        }
+    }
+
+    /// A network, solved lane by lane with the scalar solver (so both
+    /// evaluators agree to the bit).
+    fn network(&mut self, k: u16, ins: &Instr, prog: &Program) {
+        let net = &prog.networks[k as usize];
+        let base = ins.a as usize;
+        let width = prog.call_args[base] as usize;
+        let n = ins.b as usize;
+        let mut args = vec![C64::new(0.0, 0.0); n];
+        let mut out = vec![C64::new(0.0, 0.0); width];
+        for l in 0..LANES {
+            for (i, a) in args.iter_mut().enumerate() {
+                *a = self.get(prog.call_args[base + 1 + i], l);
+            }
+            let _ = net.run(&args, &mut out);
+            for (i, v) in out.iter().enumerate() {
+                self.set(ins.dst + i as u32, l, *v);
+            }
         }
     }
 
@@ -311,7 +332,7 @@ fn validate(prog: &Program) {
     for ins in &prog.code {
         assert!(ins.dst < n, "instruction writes slot {} of {n}", ins.dst);
         match ins.op {
-            Op::Call(_) => {
+            Op::Call(_) | Op::Network(_) => {
                 let base = ins.a as usize;
                 let width = prog.call_args[base];
                 assert!(ins.dst + width <= n);

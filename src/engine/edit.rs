@@ -69,7 +69,7 @@ fn parts(v: &Val) -> Vec<Operand> {
 /// lists, which `for_call_args` reaches).
 pub(super) fn for_slots(ins: &mut Instr, f: &mut impl FnMut(&mut u32)) {
     f(&mut ins.dst);
-    if !matches!(ins.op, Op::Call(_)) {
+    if !ins.op.uses_arg_table() {
         f(&mut ins.a);
         if !ins.op.is_unary() {
             f(&mut ins.b);
@@ -79,7 +79,7 @@ pub(super) fn for_slots(ins: &mut Instr, f: &mut impl FnMut(&mut u32)) {
 
 /// Rewrite the argument slots of a call instruction.
 pub(super) fn for_call_args(ins: &Instr, call_args: &mut [u32], f: &mut impl FnMut(&mut u32)) {
-    if matches!(ins.op, Op::Call(_)) {
+    if ins.op.uses_arg_table() {
         let start = ins.a as usize + 1;
         for a in &mut call_args[start..start + ins.b as usize] {
             f(a);
@@ -133,6 +133,8 @@ impl Engine {
         // Searches are compiled with the whole sheet; callers refuse them
         // before lowering (see `no_searches`).
         let searches = std::cell::RefCell::new(Vec::new());
+        // Networks are compiled with the whole sheet too.
+        let networks = std::cell::RefCell::new(Vec::new());
         let lw = Lowerer {
             cells: &m.cells,
             by_name: &m.by_name,
@@ -140,6 +142,7 @@ impl Engine {
             ctx: m.ctx,
             current: CellId::MAX,
             searches: &searches,
+            networks: &networks,
         };
         let mut em = Emitter {
             code: &mut code,
@@ -235,9 +238,7 @@ impl Engine {
                 Operand::Slot(s) => {
                     let last = low.code.last_mut();
                     match last {
-                        Some(ins)
-                            if width == 1 && ins.dst == s && s & TEMP_FLAG != 0 && !matches!(ins.op, Op::Call(_)) =>
-                        {
+                        Some(ins) if width == 1 && ins.dst == s && s & TEMP_FLAG != 0 && !ins.op.uses_arg_table() => {
                             ins.dst = dst
                         }
                         _ => low.code.push(Instr {

@@ -34,6 +34,10 @@ fn exec(ins: &Instr, prog: &Program, s: &mut [C64]) {
             return;
         }
         Op::Select => super::ops::select(s[ins.a as usize], s[ins.b as usize], s[ins.b as usize + 1]),
+        Op::Network(k) => {
+            network(k, ins, prog, s);
+            return;
+        }
         op if op.is_unary() => apply1(op, s[ins.a as usize], ins.b),
         op => apply2(op, s[ins.a as usize], s[ins.b as usize]),
     };
@@ -57,6 +61,19 @@ fn call(fid: u16, ins: &Instr, prog: &Program, s: &mut [C64]) {
     eval(&args[..n], &mut out[..width], &Ctx { peak: prog.peak });
     let dst = ins.dst as usize;
     s[dst..dst + width].copy_from_slice(&out[..width]);
+}
+
+/// Solve a network for one case; a case without a solution gives NaN
+/// results (the reason is found again when the NaN is explained).
+pub(super) fn network(k: u16, ins: &Instr, prog: &Program, s: &mut [C64]) {
+    let net = &prog.networks[k as usize];
+    let base = ins.a as usize;
+    let width = prog.call_args[base] as usize;
+    let args: Vec<C64> = (0..ins.b as usize)
+        .map(|i| s[prog.call_args[base + 1 + i] as usize])
+        .collect();
+    let dst = ins.dst as usize;
+    let _ = net.run(&args, &mut s[dst..dst + width]);
 }
 
 /// A cell's values: one for most cells, kept inline (no allocation);

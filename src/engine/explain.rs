@@ -82,7 +82,8 @@ fn exprs(stmt: &crate::syntax::ast::Stmt) -> Vec<&Expr> {
             v
         }
         StmtKind::Expr(e) => vec![e],
-        StmtKind::Directive(_) => Vec::new(),
+        StmtKind::Network(h) => vec![&h.freq],
+        StmtKind::Directive(_) | StmtKind::End => Vec::new(),
     }
 }
 
@@ -92,6 +93,7 @@ fn exprs(stmt: &crate::syntax::ast::Stmt) -> Vec<&Expr> {
 /// whole) gives each of its fields, named; a single value has the name "".
 fn argument(model: &Model, slots: &[C64], e: &Expr) -> Option<Vec<(&'static str, Quantity, C64)>> {
     let searches = std::cell::RefCell::new(Vec::new());
+    let networks = std::cell::RefCell::new(Vec::new());
     let lw = Lowerer {
         cells: &model.cells,
         by_name: &model.by_name,
@@ -99,6 +101,7 @@ fn argument(model: &Model, slots: &[C64], e: &Expr) -> Option<Vec<(&'static str,
         ctx: model.ctx,
         current: CellId::MAX,
         searches: &searches,
+        networks: &networks,
     };
     let base = slots.len();
     let mut code = Vec::new();

@@ -21,6 +21,7 @@ mod arith;
 mod collect;
 mod graph;
 mod lower;
+mod lower_network;
 mod lower_search;
 mod meta;
 
@@ -285,6 +286,8 @@ pub(super) struct Lowerer<'a> {
     /// The cell being lowered, and the searches met so far.
     pub(super) current: CellId,
     pub(super) searches: &'a std::cell::RefCell<Vec<lower_search::PendingSearch>>,
+    /// Networks lowered so far (their index is `Op::Network`'s).
+    pub(super) networks: &'a std::cell::RefCell<Vec<crate::network::NetProgram>>,
 }
 
 type R<T> = Result<T, Diagnostic>;

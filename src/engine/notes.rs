@@ -25,7 +25,8 @@ pub fn of_statement(stmt: &Stmt, out: &mut Vec<Diagnostic>) {
                 walk(t, out);
             }
         }
-        StmtKind::Directive(_) => {}
+        StmtKind::Network(h) => walk(&h.freq, out),
+        StmtKind::Directive(_) | StmtKind::End => {}
     }
 }
 

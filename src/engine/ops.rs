@@ -92,9 +92,19 @@ pub enum Op {
     /// An in-sheet search (index into `Program::searches`); writes `dst`
     /// and the search's outcome slots. `a` and `b` are unused (= `dst`).
     Search(u16),
+    /// A network solve (index into `Program::networks`): like `Call`, `a`
+    /// indexes the argument table (the number of results, then ω and the
+    /// element values) and `b` is the number of arguments; results go to
+    /// `dst`, `dst + 1`, ….
+    Network(u16),
 }
 
 impl Op {
+    /// Reads its arguments from `Program::call_args` rather than `a`, `b`.
+    pub fn uses_arg_table(self) -> bool {
+        matches!(self, Op::Call(_) | Op::Network(_))
+    }
+
     pub fn is_unary(self) -> bool {
         use Op::*;
         matches!(

@@ -31,6 +31,8 @@ pub struct Program {
     pub peak: bool,
     /// In-sheet searches, run by `Op::Search` (see `engine::search`).
     pub searches: Vec<super::search::Search>,
+    /// Networks, solved by `Op::Network` (see `crate::network`).
+    pub networks: Vec<crate::network::NetProgram>,
 }
 
 impl Program {
@@ -201,6 +203,24 @@ impl Emitter<'_> {
             b: pair,
         });
         Operand::Slot(dst)
+    }
+
+    /// Solve network `k` (its results are `width` consecutive slots).
+    pub fn network(&mut self, k: u16, args: &[Operand], width: u32) -> Vec<Operand> {
+        let start = self.call_args.len() as u32;
+        self.call_args.push(width);
+        for &a in args {
+            let s = self.slot_of(a);
+            self.call_args.push(s);
+        }
+        let dst = self.temp(width);
+        self.code.push(Instr {
+            op: Op::Network(k),
+            dst,
+            a: start,
+            b: args.len() as u32,
+        });
+        (0..width).map(|i| Operand::Slot(dst + i)).collect()
     }
 
     /// Call library function `fid` with `width` results.

@@ -298,6 +298,11 @@ impl Session {
                 None => Edit::Insert(self.doc.lines.len(), plain_line(text, stmt.clone())),
             },
             StmtKind::Check(_) => Edit::Insert(self.doc.lines.len(), plain_line(text, stmt.clone())),
+            StmtKind::Network(_) | StmtKind::End => {
+                return Reply::refused(format!(
+                    "a network block is written in the sheet file, not typed line by line in a session{UNCHANGED}"
+                ))
+            }
         };
         let target = match &stmt.kind {
             StmtKind::Def(d) => Some(d.name.name.clone()),

@@ -166,6 +166,55 @@ pub enum StmtKind {
     Directive(Directive),
     /// A bare expression: evaluated in a session, refused in a sheet file.
     Expr(Expr),
+    /// `network NAME at FREQUENCY`: the lines up to `end` are its elements.
+    Network(NetworkHead),
+    /// `end`: closes a network block.
+    End,
+}
+
+/// The first line of a network block.
+#[derive(Clone, Debug, PartialEq)]
+pub struct NetworkHead {
+    pub name: Ident,
+    /// The frequency the network is solved at (Hz or rad/s).
+    pub freq: Expr,
+}
+
+/// Functions whose arguments after the first `network_args` name nodes or
+/// elements of a network rather than cells: `net_v(plant, bus)`.
+pub const NETWORK_RESULTS: &[&str] = &[
+    "net_v",
+    "net_i",
+    "net_s",
+    "net_thevenin",
+    "net_z",
+    "net_y",
+    "net_balance",
+];
+
+/// Element forms of a network block, and how many of their first
+/// arguments are node (or element) names.
+pub const NETWORK_ELEMENTS: &[(&str, usize)] = &[
+    ("branch", 2),
+    ("emf", 2),
+    ("inject", 2),
+    ("vgain", 4),
+    ("transadm", 4),
+    ("transimp", 3),
+    ("igain", 3),
+    ("xformer", 4),
+    ("mutual", 2),
+];
+
+/// How many leading arguments of a call are names of a network's nodes or
+/// elements (not cells): 0 for an ordinary function.
+pub fn name_args(func: &str) -> usize {
+    if NETWORK_RESULTS.contains(&func) {
+        // net_balance(plant) has none; the others name nodes or elements
+        // after the network.
+        return usize::MAX;
+    }
+    NETWORK_ELEMENTS.iter().find(|(f, _)| *f == func).map_or(0, |&(_, n)| n)
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -200,12 +249,47 @@ impl Expr {
     }
 
     /// Visit every name this expression refers to (not function names).
+    /// Visit every call in the expression (outermost first): the function's
+    /// name and its arguments.
+    pub fn for_each_call(&self, f: &mut dyn FnMut(&str, &[Expr])) {
+        match &self.kind {
+            ExprKind::Number { .. } | ExprKind::Name(_) => {}
+            ExprKind::Field(e, _) | ExprKind::Unary(_, e) | ExprKind::Paren(e, _) => e.for_each_call(f),
+            ExprKind::Call { func, args } => {
+                f(&func.name, args);
+                args.iter().for_each(|a| a.for_each_call(f));
+            }
+            ExprKind::Binary(_, a, b) => {
+                a.for_each_call(f);
+                b.for_each_call(f);
+            }
+            ExprKind::Search(s) => {
+                for e in [&s.lo, &s.hi, &s.target] {
+                    e.for_each_call(f);
+                }
+                if let SearchGoal::Equals(v) = &s.goal {
+                    v.for_each_call(f);
+                }
+            }
+        }
+    }
+
     pub fn for_each_name(&self, f: &mut dyn FnMut(&Ident)) {
         match &self.kind {
             ExprKind::Number { .. } => {}
             ExprKind::Name(id) => f(id),
             ExprKind::Field(e, _) => e.for_each_name(f),
-            ExprKind::Call { args, .. } => args.iter().for_each(|a| a.for_each_name(f)),
+            ExprKind::Call { func, args } => {
+                // In `net_v(plant, bus)` only `plant` is a cell; in
+                // `branch(a, b, 5 Ω)` neither node is.
+                let skip = name_args(&func.name);
+                for (k, a) in args.iter().enumerate() {
+                    let names_a_node = if skip == usize::MAX { k >= 1 } else { k < skip };
+                    if !names_a_node {
+                        a.for_each_name(f);
+                    }
+                }
+            }
             ExprKind::Unary(_, e) | ExprKind::Paren(e, _) => e.for_each_name(f),
             ExprKind::Binary(_, a, b) => {
                 a.for_each_name(f);

@@ -18,6 +18,8 @@ const PARALLEL_DEPS_FROM: usize = 4096;
 struct Pending<'a> {
     expr: Option<&'a Expr>,
     check: Option<&'a Check>,
+    /// A network's own cell: its index in the sheet's networks.
+    net: Option<usize>,
 }
 
 /// Compile a sheet. Always returns a model; `model.diagnostics` holds every
@@ -39,6 +41,8 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     let mut meta = Meta::default();
     let mut ctx = Ctx::default();
     let mut amplitude_seen: Option<Span> = None;
+    let mut open_net: Option<super::lower_network::NetDecl> = None;
+    let mut nets: Vec<super::lower_network::NetDecl> = Vec::new();
 
     for stmt in &sheet.stmts {
         crate::engine::notes::of_statement(stmt, &mut diags);
@@ -101,10 +105,39 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                     cell.display = literal_unit(&d.expr);
                 }
                 cells.push(cell);
-                pending.push(Pending {
-                    expr: Some(&d.expr),
-                    check: None,
-                });
+                match open_net.as_mut() {
+                    Some(nd) => match super::lower_network::element_decl(d, id) {
+                        Ok(el) => {
+                            let c = cells.last_mut().expect("just pushed");
+                            c.display = d
+                                .display
+                                .as_ref()
+                                .map(|u| u.unit.clone())
+                                .or_else(|| literal_unit(el.value));
+                            pending.push(Pending {
+                                expr: Some(el.value),
+                                check: None,
+                                net: None,
+                            });
+                            nd.elems.push(el);
+                        }
+                        Err(e) => {
+                            cells.last_mut().expect("just pushed").error = Some(CellError::Own);
+                            nd.bad.push(id);
+                            diags.push(e);
+                            pending.push(Pending {
+                                expr: None,
+                                check: None,
+                                net: None,
+                            });
+                        }
+                    },
+                    None => pending.push(Pending {
+                        expr: Some(&d.expr),
+                        check: None,
+                        net: None,
+                    }),
+                }
             }
             StmtKind::Check(c) => {
                 let name = format!("check:{}", stmt.line);
@@ -126,11 +159,79 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                 pending.push(Pending {
                     expr: None,
                     check: Some(c),
+                    net: None,
                 });
             }
             StmtKind::Directive(dir) => {
                 directive(dir, stmt.span, &mut meta, &mut ctx, &mut amplitude_seen, &mut diags);
             }
+            StmtKind::Network(h) => {
+                if let Some(prev) = open_net.take() {
+                    diags.push(
+                        Diagnostic::error(
+                            ErrorCode::NetworkBlock,
+                            prev.head_span,
+                            format!("network `{}` has no `end`", prev.head.name.name),
+                        )
+                        .with_secondary(stmt.span, "the next network starts here")
+                        .with_hint("close each network block with a line `end`"),
+                    );
+                }
+                open_net = Some(super::lower_network::NetDecl {
+                    head: h,
+                    head_span: stmt.span,
+                    head_line: stmt.line,
+                    elems: Vec::new(),
+                    bad: Vec::new(),
+                    asked: Vec::new(),
+                });
+            }
+            StmtKind::End => match open_net.take() {
+                None => diags.push(
+                    Diagnostic::error(ErrorCode::NetworkBlock, stmt.span, "`end` without a network block")
+                        .with_hint("`end` closes a block that starts `network NAME at FREQUENCY`"),
+                ),
+                Some(nd) => {
+                    let name = &nd.head.name;
+                    if let Some(&first) = by_name.get(&name.name) {
+                        diags.push(
+                            Diagnostic::error(
+                                ErrorCode::DuplicateCell,
+                                name.span,
+                                format!("`{}` is defined twice", name.name),
+                            )
+                            .with_label("a network of this name")
+                            .with_secondary(cells[first as usize].name_span, "first defined here"),
+                        );
+                        continue;
+                    }
+                    let id = cells.len() as CellId;
+                    by_name.insert(name.name.clone(), id);
+                    let head_stmt = Stmt {
+                        kind: StmtKind::End,
+                        span: nd.head_span,
+                        line: nd.head_line,
+                        comment: None,
+                    };
+                    let mut cell = new_cell(
+                        &sheet.sources,
+                        &head_stmt,
+                        name.name.clone(),
+                        Role::Def,
+                        name.span,
+                        &nd.head.freq,
+                        None,
+                    );
+                    cell.formula = sheet.sources.slice(nd.head_span).to_string();
+                    cells.push(cell);
+                    pending.push(Pending {
+                        expr: None,
+                        check: None,
+                        net: Some(nets.len()),
+                    });
+                    nets.push(nd);
+                }
+            },
             StmtKind::Expr(e) => {
                 diags.push(
                     Diagnostic::error(
@@ -141,6 +242,59 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                     .with_label("this value has no name")
                     .with_hint("write `name = expression`, or `check a ~= b +- 1%` to compare two values"),
                 );
+            }
+        }
+    }
+
+    if let Some(nd) = open_net.take() {
+        diags.push(
+            Diagnostic::error(
+                ErrorCode::NetworkBlock,
+                nd.head_span,
+                format!("network `{}` has no `end`", nd.head.name.name),
+            )
+            .with_hint("close the block with a line `end` after its last element"),
+        );
+        for e in &nd.elems {
+            cells[e.cell as usize].error = Some(CellError::Own);
+        }
+    }
+    // What the sheet asks of each network beyond voltages and currents.
+    if !nets.is_empty() {
+        let mut asked = |e: &Expr| {
+            e.for_each_call(&mut |func, args| {
+                if !matches!(func, "net_thevenin" | "net_z" | "net_y") || args.len() != 3 {
+                    return;
+                }
+                let names: Vec<&str> = args
+                    .iter()
+                    .filter_map(|a| match &a.kind {
+                        ExprKind::Name(id) => Some(id.name.as_str()),
+                        _ => None,
+                    })
+                    .collect();
+                if let [net, a, b] = names[..] {
+                    if let Some(nd) = nets.iter_mut().find(|n| n.head.name.name == net) {
+                        let f: &'static str = match func {
+                            "net_thevenin" => "net_thevenin",
+                            "net_z" => "net_z",
+                            _ => "net_y",
+                        };
+                        let item = (f, a.to_string(), b.to_string());
+                        if !nd.asked.contains(&item) {
+                            nd.asked.push(item);
+                        }
+                    }
+                }
+            })
+        };
+        for p in &pending {
+            if let Some(e) = p.expr {
+                asked(e);
+            }
+            if let Some(c) = p.check {
+                asked(&c.lhs);
+                asked(&c.rhs);
             }
         }
     }
@@ -174,11 +328,28 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
         if let Some(e) = p.expr {
             e.for_each_name(&mut visit);
         }
+        let mut elems = Vec::new();
+        if let Some(k) = p.net {
+            let nd = &nets[k];
+            nd.head.freq.for_each_name(&mut visit);
+            elems.extend(nd.bad.iter().copied());
+            for el in &nd.elems {
+                elems.push(el.cell);
+                if let Some(x) = el.extra {
+                    x.for_each_name(&mut visit);
+                }
+            }
+        }
         if let Some(c) = p.check {
             c.lhs.for_each_name(&mut visit);
             c.rhs.for_each_name(&mut visit);
             if let Tolerance::Absolute(t) = &c.tol {
                 t.for_each_name(&mut visit);
+            }
+        }
+        for e in elems {
+            if !deps.contains(&e) {
+                deps.push(e);
             }
         }
         deps
@@ -212,6 +383,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     let mut call_args: Vec<u32> = Vec::new();
     let mut max_temps = 0u32;
     let pending_searches = std::cell::RefCell::new(Vec::new());
+    let networks = std::cell::RefCell::new(Vec::new());
     let mut order = Vec::with_capacity(n);
     // Which cells have an error, packed: checking a cell's dependencies
     // here then costs no cache miss per dependency on a big sheet.
@@ -241,8 +413,10 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
             ctx,
             current: id,
             searches: &pending_searches,
+            networks: &networks,
         };
         let result = match (&pending[i].expr, &pending[i].check) {
+            _ if pending[i].net.is_some() => lw.lower_network(&mut em, &nets[pending[i].net.unwrap_or_default()]),
             (Some(e), _) => match sheet.overrides.iter().find(|o| o.name == cells[i].name) {
                 Some(ov) => lw
                     .check_override(e, ov)
@@ -289,7 +463,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     };
     for ins in &mut code {
         fix(&mut ins.dst);
-        if !matches!(ins.op, Op::Call(_)) {
+        if !ins.op.uses_arg_table() {
             fix(&mut ins.a);
             if !ins.op.is_unary() {
                 fix(&mut ins.b);
@@ -334,6 +508,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
             temp_base,
             peak: ctx.peak,
             searches,
+            networks: networks.into_inner(),
         },
         meta,
         ctx,
@@ -408,7 +583,7 @@ fn place_result(cell: &mut Cell, val: Val, slots: &mut SlotSpace, code: &mut Vec
                     && last > start as usize
                     && code[last - 1].dst == s
                     && s & TEMP_FLAG != 0
-                    && !matches!(code[last - 1].op, Op::Call(_))
+                    && !code[last - 1].op.uses_arg_table()
                 {
                     code[last - 1].dst = dst;
                 } else {

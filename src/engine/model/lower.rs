@@ -380,6 +380,18 @@ impl Lowerer<'_> {
     }
 
     pub(super) fn call(&self, em: &mut Emitter, whole: &Expr, func: &Ident, args: &[Expr]) -> R<Val> {
+        if NETWORK_RESULTS.contains(&func.name.as_str()) {
+            return self.net_result(em, whole, func, args);
+        }
+        if NETWORK_ELEMENTS.iter().any(|(f, _)| *f == func.name) {
+            return Err(Diagnostic::error(
+                ErrorCode::NetworkElement,
+                func.span,
+                format!("`{}` describes an element of a network", func.name),
+            )
+            .with_label("only inside a network block")
+            .with_hint("write element lines between `network NAME at FREQUENCY` and `end`"));
+        }
         let Some((fid, f)) = funcs::find(&func.name) else {
             let names = funcs::library().iter().map(|f| f.name);
             let mut d = Diagnostic::error(

@@ -337,7 +337,7 @@ pub fn finish(
         fix(&mut p.search.value);
         for ins in &mut p.target_code {
             fix(&mut ins.dst);
-            if !matches!(ins.op, Op::Call(_)) {
+            if !ins.op.uses_arg_table() {
                 fix(&mut ins.a);
                 if !ins.op.is_unary() {
                     fix(&mut ins.b);

@@ -54,6 +54,15 @@ impl Cx<'_> {
                     .collect();
                 Ok(StmtKind::Directive(Directive { name, args }))
             }
+            Rule::network_head => {
+                let mut it = p
+                    .into_inner()
+                    .filter(|q| !matches!(q.as_rule(), Rule::kw_network | Rule::kw_at));
+                let name = self.ident(it.next().expect("name"));
+                let freq = self.expr(it.next().expect("frequency"))?;
+                Ok(StmtKind::Network(NetworkHead { name, freq }))
+            }
+            Rule::block_end => Ok(StmtKind::End),
             Rule::bare_expr => Ok(StmtKind::Expr(
                 self.expr_or_search(p.into_inner().next().expect("expr"))?,
             )),
