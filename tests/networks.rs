@@ -196,3 +196,10 @@ fn shorts_and_opens_take_their_limits_in_a_sheet() {
     let e = engine(&src("0 S"));
     assert!(close(value(&e, "V"), C64::new(0.0, 0.0), 1e-15), "{}", value(&e, "V"));
 }
+
+#[test]
+fn words_of_the_block_stay_free_as_cell_names() {
+    // `end` and `network` close and open blocks only as whole lines.
+    let e = engine("end = 2 V\nnetwork = 3\nx = end * network\n");
+    assert!(close(value(&e, "x"), C64::new(6.0, 0.0), 1e-15));
+}
