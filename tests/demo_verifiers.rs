@@ -1,6 +1,6 @@
 //! Demo sheets against their independent verifier scripts: a verifier in
 //! sheets-demo/verify/ recomputes the sheet from the textbook formulas
-//! with Python's cmath (not from ohmsheet) and, run with `--json`, prints
+//! with Python (cmath or numpy, not from ohmsheet) and, run with `--json`, prints
 //! {cell: [re, im]} in SI units; every cell it names must agree with
 //! ohmsheet's value for the sheet. (demos.rs runs the sheets' own checks.)
 
@@ -9,7 +9,10 @@ use num_complex::Complex64 as C64;
 use crate::common::{close, engine, repo, value};
 
 /// (sheet, verifier) pairs whose verifier has a `--json` mode.
-const PAIRS: &[(&str, &str)] = &[("export-line-ferranti.ohm", "export_line.py")];
+const PAIRS: &[(&str, &str)] = &[
+    ("export-line-ferranti.ohm", "export_line.py"),
+    ("plant-bus-two-sources.ohm", "plant_bus.py"),
+];
 
 fn verifier_values(script: &str) -> Vec<(String, C64)> {
     let out = std::process::Command::new("python3")

@@ -791,6 +791,7 @@ fn block_evaluator_agrees_on_the_function_demos() {
         "beacon-antenna-match.ohm",
         "export-line-ferranti.ohm",
         "sawmill-bank-fault-duty.ohm",
+        "plant-bus-two-sources.ohm",
     ] {
         let text = std::fs::read_to_string(crate::common::repo(&format!("sheets-demo/{name}"))).unwrap();
         let e = engine(&text);
