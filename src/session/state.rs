@@ -290,7 +290,11 @@ impl Session {
                 };
             }
             StmtKind::Def(d) => match self.doc.find_def(&d.name.name) {
-                Some(idx) => Edit::Replace(idx, self.line_for(idx, text, stmt.clone())),
+                Some(idx) => match self.element_value(idx, text, d) {
+                    Ok(Some((full, s))) => Edit::Replace(idx, self.line_for(idx, &full, s)),
+                    Ok(None) => Edit::Replace(idx, self.line_for(idx, text, stmt.clone())),
+                    Err(msg) => return Reply::refused(format!("{msg}{UNCHANGED}")),
+                },
                 None => Edit::Insert(self.doc.lines.len(), plain_line(text, stmt.clone())),
             },
             StmtKind::Directive(d) => match self.doc.find_directive(&d.name.name) {

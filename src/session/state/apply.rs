@@ -11,7 +11,7 @@ use super::{show, sorted_refs, Edit, Session, Shown};
 use crate::diag::{Diagnostic, ErrorCode, Span};
 use crate::engine::{compile, CellId, EditError, Engine, Model, Role};
 use crate::session::doc::DocLine;
-use crate::syntax::ast::{Stmt, StmtKind};
+use crate::syntax::ast::{Definition, Expr, ExprKind, Stmt, StmtKind};
 use crate::units::format::Style;
 
 impl Session {
@@ -43,6 +43,68 @@ impl Session {
         DocLine { cr, ..line }
     }
 
+    /// A value typed for a network element line (`Zt = 4 Ω` for
+    /// `Zt = branch(g, bus, 3 Ω)`): the element line with only its value
+    /// replaced, as `--set` does (`Sheet::set_override`), and its
+    /// statement. `None` when line `idx` is not an element line or the
+    /// whole element form was typed.
+    pub(super) fn element_value(
+        &mut self,
+        idx: usize,
+        typed: &str,
+        d: &Definition,
+    ) -> Result<Option<(String, Stmt)>, String> {
+        let Some(Stmt {
+            kind: StmtKind::Def(old),
+            ..
+        }) = &self.doc.lines[idx].stmt
+        else {
+            return Ok(None);
+        };
+        if element_form(&old.expr).is_none() || element_form(&d.expr).is_some() {
+            return Ok(None);
+        }
+        if d.display.is_some() {
+            return Err(format!(
+                "`{}` is a network element: type its value alone here; a display unit for it is written in the sheet file",
+                d.name.name
+            ));
+        }
+        // The old line and the typed one, each parsed on its own (spans
+        // are then offsets into their own text).
+        let old_text = self.doc.lines[idx].text.clone();
+        let value_span = match self.parse(&old_text) {
+            Ok(Some(Stmt {
+                kind: StmtKind::Def(o), ..
+            })) => match &o.expr.kind {
+                ExprKind::Call { args, .. } => element_form(&o.expr).and_then(|n| args.get(n)).map(|a| a.span),
+                _ => None,
+            },
+            _ => None,
+        };
+        let typed_value = match self.parse(typed) {
+            Ok(Some(Stmt {
+                kind: StmtKind::Def(t), ..
+            })) => Some(t.expr.span),
+            _ => None,
+        };
+        let (Some(v), Some(t)) = (value_span, typed_value) else {
+            return Ok(None);
+        };
+        let value = &typed[t.start as usize..t.end as usize];
+        let full = format!(
+            "{}{}{}",
+            &old_text[..v.start as usize],
+            value.trim(),
+            &old_text[v.end as usize..]
+        );
+        match self.parse(&full) {
+            Ok(Some(s)) if matches!(s.kind, StmtKind::Def(_)) => Ok(Some((full, s))),
+            Ok(_) => Ok(None),
+            Err(diag) => Err(self.render(&diag)),
+        }
+    }
+
     pub(super) fn push_undo(&mut self, inverse: Edit) {
         self.redo.clear();
         self.undo.push((inverse, self.version));
@@ -70,7 +132,8 @@ impl Session {
                 if let (Some(StmtKind::Def(d)), Some(old)) =
                     (line.stmt.as_ref().map(|s| &s.kind), self.doc.lines[*idx].defines())
                 {
-                    if d.name.name == old {
+                    // An element line is compiled with its whole network.
+                    if d.name.name == old && element_form(&d.expr).is_none() {
                         if let Some(id) = self.engine.model.id(old) {
                             let stmt = line.stmt.as_ref().expect("checked");
                             match self.engine.redefine(id, stmt, d) {
@@ -237,6 +300,17 @@ impl Session {
     /// Names of the defined cells.
     pub fn cell_names(&self) -> impl Iterator<Item = &str> {
         self.engine.model.by_name.keys().map(String::as_str)
+    }
+}
+
+/// The value argument's index when `e` is a network element form.
+fn element_form(e: &Expr) -> Option<usize> {
+    match &e.kind {
+        ExprKind::Call { func, .. } => crate::syntax::ast::NETWORK_ELEMENTS
+            .iter()
+            .find(|(f, _)| *f == func.name)
+            .map(|&(_, n)| n),
+        _ => None,
     }
 }
 

@@ -515,3 +515,73 @@ fn an_overridden_library_value_in_the_session() {
         "@include \"lib/cable.ohm\"\n@override Zc = (0.3 + j0.1) Ω    # survey\nZ = Zc * 2\n"
     );
 }
+
+const NET: &str = "# Tie to a load bus (invented)\n\
+network n at 50 Hz\n  \
+Eu = emf(util, ground, 100 V)\n  \
+Zt = branch(util, bus, 3 Ω)     # the tie\n  \
+Ld = branch(bus, ground, 6 Ω)\n\
+end\n\
+Vb = net_v(n, bus)\n";
+
+/// Typing `Zt = 4 Ω` for the element line `Zt = branch(util, bus, 3 Ω)`
+/// replaces only the value inside the form, as `--set` does, and the
+/// network is solved again; undo, the journal and the edges (a short, an
+/// open, a wrong unit) behave as for any input.
+#[test]
+fn a_value_typed_for_a_network_element_replaces_only_its_value() {
+    let f = Fixture::new(NET);
+    let mut s = f.open();
+    // A voltage divider, by hand: 100 V · 6 / (3 + 6).
+    assert!((val(&s, "Vb") - C64::new(600.0 / 9.0, 0.0)).norm() < 1e-9);
+    let out = ok(&mut s, "Zt = 4 Ω");
+    // 100 V · 6 / (4 + 6) = 60 V.
+    assert!((val(&s, "Vb") - C64::new(60.0, 0.0)).norm() < 1e-9, "{out}");
+    assert!(out.contains("Vb"), "the moved result is listed: {out}");
+    let text = s.doc.text();
+    assert!(
+        text.contains("  Zt = branch(util, bus, 4 Ω)     # the tie\n"),
+        "form, nodes, indent and comment kept:\n{text}"
+    );
+    assert_eq!(text.matches("Zt =").count(), 1, "{text}");
+    // A short (0 Ω) puts the bus at the source; an open (∞ Ω) leaves it
+    // at 0 V through the load.
+    ok(&mut s, "Zt = 0 Ω");
+    assert!((val(&s, "Vb") - C64::new(100.0, 0.0)).norm() < 1e-9);
+    ok(&mut s, "Zt = (1/0) Ω");
+    assert!(val(&s, "Vb").norm() < 1e-9, "{}", val(&s, "Vb"));
+    // A value of another dimension is refused at the edit; nothing changes.
+    let before = s.doc.text();
+    let r = s.handle("Zt = 4 A");
+    assert!(r.refused, "{}", r.text);
+    assert!(
+        r.text.contains("network-element") && r.text.contains("a current (A)"),
+        "{}",
+        r.text
+    );
+    assert_eq!(s.doc.text(), before);
+    // A forgotten unit likewise.
+    let r = s.handle("Zt = 4");
+    assert!(r.refused && r.text.contains("a plain number"), "{}", r.text);
+    assert_eq!(s.doc.text(), before);
+    // Typing the whole element form still replaces the whole line.
+    ok(&mut s, "Zt = branch(util, bus, 5 Ω)");
+    // 100 V · 6 / (5 + 6).
+    assert!((val(&s, "Vb") - C64::new(600.0 / 11.0, 0.0)).norm() < 1e-9);
+    // Back through every change to the sheet as written.
+    for _ in 0..4 {
+        ok(&mut s, "/back");
+    }
+    assert_eq!(s.doc.text(), NET);
+    assert!((val(&s, "Vb") - C64::new(600.0 / 9.0, 0.0)).norm() < 1e-9);
+    ok(&mut s, "/forward");
+    let text = s.doc.text();
+    let v = val(&s, "Vb");
+    drop(s);
+    // The journal replays the typed value the same way.
+    let mut b = f.open();
+    let rec = b.recovery().expect("a journal to recover");
+    b.restore(&rec);
+    assert_eq!(b.doc.text(), text);
+    assert_eq!(val(&b, "Vb"), v);
+}
