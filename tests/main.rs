@@ -9,6 +9,7 @@ mod check_cmd;
 mod check_formats;
 mod cli_batch;
 mod cli_run;
+mod closed_stdout;
 mod comparisons;
 mod confinement;
 mod demo_sheets;

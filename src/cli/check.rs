@@ -148,7 +148,7 @@ pub fn check(a: &CheckArgs) -> i32 {
     let text = a.format == CheckFormat::Text || a.output.is_some();
     let say = |line: String| {
         if text {
-            println!("{line}")
+            outln!("{line}")
         }
     };
     let mut results: Vec<SheetChecks> = Vec::new();
@@ -234,7 +234,7 @@ pub fn check(a: &CheckArgs) -> i32 {
                 return EXIT_ERROR;
             }
         }
-        (Some(doc), None) => print!("{doc}"),
+        (Some(doc), None) => out!("{doc}"),
         (None, Some(path)) => {
             eprintln!(
                 "error: --output `{}` needs a machine-readable --format (json or junit); the text goes to the terminal",

@@ -2,6 +2,22 @@
 //! Each returns the process exit code: 0 all fine, 1 a check failed,
 //! 2 the sheet or the command line has an error.
 
+/// `print!` for the commands: writes through `write_stdout`, so a reader
+/// that goes away early (`ohmsheet run s.ohm | head`) ends the program
+/// quietly instead of panicking.
+macro_rules! out {
+    ($($t:tt)*) => {
+        $crate::cli::write_stdout(&format!($($t)*))
+    };
+}
+
+/// `println!` through `write_stdout` (see `out!`).
+macro_rules! outln {
+    ($($t:tt)*) => {
+        $crate::cli::write_stdout(&format!("{}\n", format_args!($($t)*)))
+    };
+}
+
 mod batch;
 mod check;
 mod report;
@@ -23,6 +39,29 @@ use crate::sheet::{LoadOptions, Sheet};
 pub const EXIT_OK: i32 = 0;
 pub const EXIT_CHECK_FAILED: i32 = 1;
 pub const EXIT_ERROR: i32 = 2;
+
+/// Write to standard output and flush. When the reader has closed the pipe
+/// (`ohmsheet run s.ohm | head`) the program ends at once, quietly and with
+/// exit code 0, as command-line filters do: the reader asked for no more.
+/// Any other failure to write (a full disk behind `>`) is reported and
+/// ends the program with exit code 2.
+pub(crate) fn write_stdout(text: &str) {
+    use std::io::Write;
+    let mut o = std::io::stdout().lock();
+    if let Err(e) = o.write_all(text.as_bytes()).and_then(|()| o.flush()) {
+        stdout_failed(&e);
+    }
+}
+
+/// End the program after a failed write to standard output (see
+/// `write_stdout`).
+pub(crate) fn stdout_failed(e: &std::io::Error) -> ! {
+    if e.kind() != std::io::ErrorKind::BrokenPipe {
+        eprintln!("error: cannot write to standard output: {e}");
+        std::process::exit(EXIT_ERROR);
+    }
+    std::process::exit(EXIT_OK)
+}
 
 #[derive(Parser, Debug)]
 #[command(
@@ -217,11 +256,11 @@ pub fn main_with(args: Vec<OsString>) -> i32 {
         },
         Command::Solve(a) => sweep::solve(&a),
         Command::Functions => {
-            print!("{}", run::functions_listing());
+            out!("{}", run::functions_listing());
             EXIT_OK
         }
         Command::Units => {
-            print!("{}", run::units_listing());
+            out!("{}", run::units_listing());
             EXIT_OK
         }
     }

@@ -116,7 +116,7 @@ pub fn report(a: &ReportArgs) -> i32 {
     };
     let failed = r.checks.iter().filter(|c| !c.passed).count();
     match &a.output {
-        None => print!("{text}"),
+        None => out!("{text}"),
         Some(path) => {
             if let Err(e) = crate::fsutil::write_atomic(path, text.as_bytes()) {
                 eprintln!("error: cannot write `{}`: {e}", path.display());

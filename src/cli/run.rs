@@ -27,7 +27,7 @@ pub fn run(a: &RunArgs) -> i32 {
         Format::Csv => output::to_csv(&cells),
     };
     match &a.output {
-        None => print!("{text}"),
+        None => out!("{text}"),
         Some(p) => {
             if crate::fsutil::same_file(p, &a.sheet) {
                 eprintln!(

@@ -232,7 +232,7 @@ pub fn write_atomic(path: &Path, f: impl FnOnce(&mut dyn Write) -> io::Result<()
 fn deliver(text: &str, path: Option<&Path>) -> i32 {
     match path {
         None => {
-            print!("{text}");
+            out!("{text}");
             EXIT_OK
         }
         Some(p) => match write_atomic(p, |w| w.write_all(text.as_bytes())) {
@@ -243,6 +243,9 @@ fn deliver(text: &str, path: Option<&Path>) -> i32 {
 }
 
 fn io_error(path: &Path, e: io::Error) -> i32 {
+    if is_stdout(path) {
+        super::stdout_failed(&e);
+    }
     unplaced(
         ErrorCode::Io,
         format!("cannot write `{}`: {e}", path.display()),
@@ -472,13 +475,13 @@ fn emit(
     }
     if a.chart {
         let width = terminal_width().clamp(40, 160);
-        print!(
+        out!(
             "{}",
             crate::plot::chart::chart(r, width, std::io::IsTerminal::is_terminal(&io::stdout()))
         );
     }
     if table_only {
-        print!("{}", out::table(r, parts, style));
+        out!("{}", out::table(r, parts, style));
     }
     let bad = r.undefined_points();
     warn_undefined(engine, bad.len(), bad.first().copied(), &r.axes);

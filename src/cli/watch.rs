@@ -71,7 +71,7 @@ pub fn watch(a: &WatchArgs) -> i32 {
         }
     }
     rewatch(&mut watcher, &files, &mut dirs);
-    println!(
+    outln!(
         "watching {} file{} for saves; press Ctrl-C to stop",
         files.len(),
         if files.len() == 1 { "" } else { "s" }
@@ -99,7 +99,7 @@ pub fn watch(a: &WatchArgs) -> i32 {
                     .map_or_else(|| p.display().to_string(), |n| n.to_string_lossy().into_owned())
             })
             .collect();
-        println!("\n── update {update}: {} saved ──", names.join(", "));
+        outln!("\n── update {update}: {} saved ──", names.join(", "));
         evaluate(a, style, &mut last, &mut files);
         rewatch(&mut watcher, &files, &mut dirs);
     }
@@ -171,9 +171,9 @@ fn evaluate(a: &WatchArgs, style: Style, last: &mut Option<Shown>, files: &mut H
                 files.extend(s.files.iter().filter_map(|f| f.canonical.clone()));
             }
             if last.is_some() {
-                println!("the sheet has errors (above); the values shown before are the last good ones");
+                outln!("the sheet has errors (above); the values shown before are the last good ones");
             } else {
-                println!("the sheet has errors (above); waiting for a save that fixes them");
+                outln!("the sheet has errors (above); waiting for a save that fixes them");
             }
             return;
         }
@@ -187,12 +187,12 @@ fn evaluate(a: &WatchArgs, style: Style, last: &mut Option<Shown>, files: &mut H
     };
     match last {
         None => {
-            print!("{}", table::cells_table(&engine.model, &now.cells));
-            print!("{}", table::checks_table(&now.checks));
+            out!("{}", table::cells_table(&engine.model, &now.cells));
+            out!("{}", table::checks_table(&now.checks));
         }
-        Some(before) => print!("{}", changes(before, &now)),
+        Some(before) => out!("{}", changes(before, &now)),
     }
-    println!("{}", check_status(&now.checks));
+    outln!("{}", check_status(&now.checks));
     *last = Some(now);
 }
 
