@@ -564,6 +564,10 @@ fn a_value_typed_for_a_network_element_replaces_only_its_value() {
     let r = s.handle("Zt = 4");
     assert!(r.refused && r.text.contains("a plain number"), "{}", r.text);
     assert_eq!(s.doc.text(), before);
+    // A display unit belongs in the file, not beside a typed element value.
+    let r = s.handle("Zt = 4 Ω [mΩ]");
+    assert!(r.refused && r.text.contains("network element"), "{}", r.text);
+    assert_eq!(s.doc.text(), before);
     // Typing the whole element form still replaces the whole line.
     ok(&mut s, "Zt = branch(util, bus, 5 Ω)");
     // 100 V · 6 / (5 + 6).
