@@ -139,48 +139,40 @@ impl Session {
     }
 
     pub(super) fn back(&mut self, journal: bool) -> Reply {
-        let Some((edit, version)) = self.undo.pop() else {
-            return Reply::refused("nothing to undo\n");
-        };
-        let what = match &edit {
-            Edit::Replace(_, l) | Edit::Insert(_, l) => format!("back to: {}", l.text.trim()),
-            Edit::Delete(i) => format!("took back: {}", self.doc.lines[*i].text.trim()),
-        };
-        match self.apply(edit, true) {
-            Ok((inverse, shown)) => {
-                self.redo.push((inverse, self.version));
-                self.version = version;
-                let mut out = String::new();
-                if journal {
-                    self.record(Entry::Back, &mut out);
-                }
-                out.push_str(&what);
-                out.push('\n');
-                let all: Vec<&Shown> = shown.iter().collect();
-                out.push_str(&show::changes(&all));
-                Reply::ok(out)
-            }
-            Err(t) => Reply::refused(t),
-        }
+        self.step(false, journal)
     }
 
     /// `/forward`: make again the change the last `/back` took back (as
     /// long as no other change was made since).
     pub(super) fn forward(&mut self, journal: bool) -> Reply {
-        let Some((edit, version)) = self.redo.pop() else {
-            return Reply::refused("nothing to redo: /forward makes again a change /back took back\n");
+        self.step(true, journal)
+    }
+
+    /// `/back` (from the undo stack to the redo stack) or `/forward` (the
+    /// other way round).
+    fn step(&mut self, forward: bool, journal: bool) -> Reply {
+        let popped = if forward { self.redo.pop() } else { self.undo.pop() };
+        let Some((edit, version)) = popped else {
+            return Reply::refused(if forward {
+                "nothing to redo: /forward makes again a change /back took back\n"
+            } else {
+                "nothing to undo\n"
+            });
         };
-        let what = match &edit {
-            Edit::Replace(_, l) | Edit::Insert(_, l) => format!("forward to: {}", l.text.trim()),
-            Edit::Delete(i) => format!("forward: took out {}", self.doc.lines[*i].text.trim()),
+        let what = match (&edit, forward) {
+            (Edit::Replace(_, l) | Edit::Insert(_, l), false) => format!("back to: {}", l.text.trim()),
+            (Edit::Replace(_, l) | Edit::Insert(_, l), true) => format!("forward to: {}", l.text.trim()),
+            (Edit::Delete(i), false) => format!("took back: {}", self.doc.lines[*i].text.trim()),
+            (Edit::Delete(i), true) => format!("forward: took out {}", self.doc.lines[*i].text.trim()),
         };
         match self.apply(edit, true) {
             Ok((inverse, shown)) => {
-                self.undo.push((inverse, self.version));
+                let other = if forward { &mut self.undo } else { &mut self.redo };
+                other.push((inverse, self.version));
                 self.version = version;
                 let mut out = String::new();
                 if journal {
-                    self.record(Entry::Forward, &mut out);
+                    self.record(if forward { Entry::Forward } else { Entry::Back }, &mut out);
                 }
                 out.push_str(&what);
                 out.push('\n');
