@@ -29,6 +29,7 @@ mod lines_rf;
 mod local_override;
 mod matching_pi_t;
 mod misreadings;
+mod network_reference;
 mod network_solver;
 mod networks;
 mod output_options;

@@ -401,7 +401,15 @@ pub fn solve(net: &Net, vals: &[C64], requests: &[Request]) -> Result<Solution, 
                         z[(row - 1, col - 1)] = v[row];
                     }
                 }
-                let zl = factor_plain(&z).ok_or_else(|| Failure::Singular("the bus impedance matrix".into()))?;
+                // Where an ideal element (a voltage gain, a transimpedance,
+                // a transformer, a 0 Ω branch) ties node voltages together,
+                // the bus impedance matrix is singular and the admittance
+                // matrix does not exist: that entry alone is NaN, the rest
+                // of the network stands.
+                let Some(zl) = factor_plain(&z) else {
+                    sol.extra.push(C64::new(f64::NAN, f64::NAN));
+                    continue;
+                };
                 let mut e = vec![ZERO; nv];
                 if j == 0 || i == 0 {
                     // The reference row and column: minus the sum of the others.
