@@ -67,7 +67,8 @@ pub(super) fn report_nans(engine: &Engine) -> bool {
     true
 }
 
-/// Every function with its parameters, units and a one-line description,
+/// Every function with its parameters, units, a one-line description (its
+/// convention) and the published source it follows and is tested against,
 /// under the heading of its family.
 pub fn functions_listing() -> String {
     let lib = crate::funcs::library();
@@ -81,6 +82,9 @@ pub fn functions_listing() -> String {
             out.push_str(&format!("{heading}\n"));
         }
         out.push_str(&format!("  {} → {}\n      {}\n", signature(f), f.returns, f.summary));
+        if !f.source.is_empty() {
+            out.push_str(&format!("      source: {}\n", f.source));
+        }
     }
     out
 }

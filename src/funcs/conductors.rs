@@ -80,7 +80,7 @@ fn dom_awg0(a: &[C64], _: &Ctx) -> Option<ArgError> {
 }
 
 pub fn funcs() -> Vec<Builtin> {
-    let src = "ASTM B258 (AWG): d = 0.005 in · 92^((36 − n)/39)";
+    let src = "ASTM B258 (AWG): d = 0.005 in · 92^((36 − n)/39) (from memory)";
     vec![
         scalar_fn(
             "awg",

@@ -341,18 +341,19 @@ pub fn vreg(a: &[C64], _: &Ctx) -> Option<ArgError> {
 
 use super::{Builtin, DomainFn};
 
-const COMPLEX: &str = "DLMF §1.9 (complex numbers: parts, modulus, phase, conjugate)";
-const ELEMENT: &str = "IEC 60050-131 (circuit theory: impedance and reactance of an inductor and a capacitor)";
-const QUALITY: &str = "IEC 60050-131 (circuit theory: quality factor)";
-const THEVENIN: &str = "Thévenin's and Norton's theorems (IEC 60050-131)";
-const DIVIDER: &str = "Kirchhoff's laws: voltage and current division (IEC 60050-131)";
-const POWER: &str = "IEEE Std 1459-2010 (power definitions, sinusoidal conditions)";
-const THREE: &str = "IEEE Std 1459-2010 (balanced three-phase systems)";
-const PFC: &str = "IEEE Std 141-1993 §8 (power-factor correction)";
-const BANK: &str = "IEEE Std 18-2012 (shunt power capacitors: Q = ωCV²)";
+const COMPLEX: &str = "DLMF §1.9 (complex numbers: parts, modulus, phase, conjugate), from memory";
+const ELEMENT: &str =
+    "IEC 60050-131 (circuit theory: impedance and reactance of an inductor and a capacitor), from memory";
+const QUALITY: &str = "IEC 60050-131 (circuit theory: quality factor), from memory";
+const THEVENIN: &str = "Thévenin's and Norton's theorems (IEC 60050-131), from memory";
+const DIVIDER: &str = "Kirchhoff's laws: voltage and current division (IEC 60050-131), from memory";
+const POWER: &str = "IEEE Std 1459-2010 (power definitions, sinusoidal conditions), from memory";
+const THREE: &str = "IEEE Std 1459-2010 (balanced three-phase systems), from memory";
+const PFC: &str = "IEEE Std 141-1993 §8 (power-factor correction), from memory";
+const BANK: &str = "IEEE Std 18-2012 (shunt power capacitors: Q = ωCV²), from memory";
 const PER_UNIT: &str = "IEEE Std 399-1997 (the per-unit system), from memory";
-const SEQ: &str = "Fortescue, symmetrical co-ordinates (AIEE Trans., 1918)";
-const KENNELLY: &str = "Kennelly, delta–star equivalence (Electrical World, 1899)";
+const SEQ: &str = "Fortescue, symmetrical co-ordinates (AIEE Trans., 1918), from memory";
+const KENNELLY: &str = "Kennelly, delta–star equivalence (Electrical World, 1899), from memory";
 const LMATCH: &str = "L-network design equations, Q = √(Rhi/Rlo − 1) (RF design handbooks, from memory)";
 
 /// (name, source, domain) for every built-in function.
@@ -360,32 +361,40 @@ pub const TABLE: &[(&str, &str, Option<DomainFn>)] = &[
     ("re", COMPLEX, None),
     ("im", COMPLEX, None),
     ("abs", COMPLEX, None),
-    ("arg", "DLMF §1.9 and §4.2 (principal argument, −π < arg ≤ π)", None),
+    (
+        "arg",
+        "DLMF §1.9 and §4.2 (principal argument, −π < arg ≤ π), from memory",
+        None,
+    ),
     ("conj", COMPLEX, None),
     ("parts", COMPLEX, None),
-    ("sqrt", "DLMF §4.2(iv) (principal square root)", None),
-    ("exp", "DLMF §4.2(iii) (exponential function)", None),
-    ("ln", "DLMF §4.2(i) (principal logarithm)", Some(log)),
-    ("log10", "DLMF §4.2(ii) (logarithm to a general base)", Some(log)),
-    ("sin", "DLMF §4.14 (trigonometric functions)", None),
-    ("cos", "DLMF §4.14 (trigonometric functions)", None),
-    ("tan", "DLMF §4.14 (trigonometric functions)", None),
+    ("sqrt", "DLMF §4.2(iv) (principal square root), from memory", None),
+    ("exp", "DLMF §4.2(iii) (exponential function), from memory", None),
+    ("ln", "DLMF §4.2(i) (principal logarithm), from memory", Some(log)),
+    (
+        "log10",
+        "DLMF §4.2(ii) (logarithm to a general base), from memory",
+        Some(log),
+    ),
+    ("sin", "DLMF §4.14 (trigonometric functions), from memory", None),
+    ("cos", "DLMF §4.14 (trigonometric functions), from memory", None),
+    ("tan", "DLMF §4.14 (trigonometric functions), from memory", None),
     (
         "asin",
-        "DLMF §4.23 (inverse trigonometric functions, principal values)",
+        "DLMF §4.23 (inverse trigonometric functions, principal values), from memory",
         None,
     ),
     (
         "acos",
-        "DLMF §4.23 (inverse trigonometric functions, principal values)",
+        "DLMF §4.23 (inverse trigonometric functions, principal values), from memory",
         None,
     ),
     (
         "atan",
-        "DLMF §4.23 (inverse trigonometric functions, principal values)",
+        "DLMF §4.23 (inverse trigonometric functions, principal values), from memory",
         Some(atan),
     ),
-    ("atan2", "ISO/IEC 9899 §7.12.4.4 (atan2)", None),
+    ("atan2", "ISO/IEC 9899 §7.12.4.4 (atan2), from memory", None),
     ("min", "common practice (ordered by real part)", None),
     ("max", "common practice (ordered by real part)", None),
     ("z_ind", ELEMENT, Some(inductor)),
@@ -396,7 +405,7 @@ pub const TABLE: &[(&str, &str, Option<DomainFn>)] = &[
     ("c_from_x", ELEMENT, Some(c_from_x)),
     (
         "f_res",
-        "IEC 60050-131 (circuit theory: resonance frequency)",
+        "IEC 60050-131 (circuit theory: resonance frequency), from memory",
         Some(f_res),
     ),
     ("q_series", QUALITY, Some(q_rlc)),
@@ -458,8 +467,16 @@ pub const TABLE: &[(&str, &str, Option<DomainFn>)] = &[
     ("lmatch_hp", LMATCH, Some(lmatch)),
     // lmatch_z names its own source and domain (matching.rs)
     ("lmatch_z", LMATCH, None),
-    ("db_v", "IEC 60027-3 (logarithmic quantities: the decibel)", Some(db)),
-    ("db_p", "IEC 60027-3 (logarithmic quantities: the decibel)", Some(db)),
+    (
+        "db_v",
+        "IEC 60027-3 (logarithmic quantities: the decibel), from memory",
+        Some(db),
+    ),
+    (
+        "db_p",
+        "IEC 60027-3 (logarithmic quantities: the decibel), from memory",
+        Some(db),
+    ),
     (
         "vdrop",
         "IEEE Std 141-1993 ch. 3 (voltage drop), from memory",

@@ -487,7 +487,7 @@ pub fn funcs() -> Vec<Builtin> {
             s_z_xr,
         )
         .with_domain(dom_z_xr)
-        .with_source("Z = R + jX with X/R given: R = |Z|/√(1 + (X/R)²) (IEC 60050-131)"),
+        .with_source("Z = R + jX with X/R given: R = |Z|/√(1 + (X/R)²) (IEC 60050-131, from memory)"),
         lowered(
             "z_plate",
             "impedance from a nameplate: z (% or pu on the rating) with X/R, on rating S at voltage V (the side it is referred to)",

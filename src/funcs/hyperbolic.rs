@@ -153,7 +153,8 @@ fn dom_any(a: &[C64], _: &Ctx) -> Option<ArgError> {
 }
 
 pub fn funcs() -> Vec<Builtin> {
-    let src = "DLMF §4.28 and §4.37 (principal branches); tested against mpmath and Python's cmath";
+    let src =
+        "DLMF §4.28 and §4.37 (principal branches; sections from memory); tested against mpmath and Python's cmath";
     let f = |name, summary, eval| scalar_fn(name, summary, X, "1", plain_type, eval).with_source(src);
     vec![
         f("sinh", "hyperbolic sine, complex", s_sinh as ScalarFn).with_domain(dom_any),

@@ -540,7 +540,7 @@ pub fn funcs() -> Vec<Builtin> {
             ty_return_loss,
             s_return_loss,
         )
-        .with_source("IEEE Std 100 (return loss); IEC 60027-3 (root-power level)")
+        .with_source("IEEE Std 100 (return loss); IEC 60027-3 (root-power level); from memory")
         .with_real_result(),
         scalar_fn(
             "from_db_p",
@@ -551,7 +551,7 @@ pub fn funcs() -> Vec<Builtin> {
             s_from_db_p,
         )
         .with_domain(d_from_db)
-        .with_source("IEC 60027-3 (power level, 10·log10)"),
+        .with_source("IEC 60027-3 (power level, 10·log10), from memory"),
         scalar_fn(
             "from_db_v",
             "voltage or current ratio from decibels: 10^(x/20)",
@@ -561,7 +561,7 @@ pub fn funcs() -> Vec<Builtin> {
             s_from_db_v,
         )
         .with_domain(d_from_db)
-        .with_source("IEC 60027-3 (root-power level, 20·log10)"),
+        .with_source("IEC 60027-3 (root-power level, 20·log10), from memory"),
         lowered(
             "line_rlgc",
             "propagation constant γ = √((R + jωL)(G + jωC)) and characteristic impedance Zc of a line from per-length R, L, G, C",

@@ -151,7 +151,7 @@ pub fn funcs() -> Vec<Builtin> {
         )
         .with_domain(dom_unbalance)
         .with_source(
-            "IEC 61000-4-30 (and IEC 61000-2-12): u2 = |U2|/|U1| from symmetrical components (Fortescue 1918)",
+            "IEC 61000-4-30 (and IEC 61000-2-12): u2 = |U2|/|U1| from symmetrical components (Fortescue 1918); from memory",
         ),
         lowered(
             "unbalance_dev",

@@ -249,7 +249,7 @@ fn dom_pick(a: &[C64], _: &Ctx) -> Option<ArgError> {
 
 pub fn funcs() -> Vec<Builtin> {
     let src_round =
-        "common practice: rounding to a step of standard ratings (IEEE Std 18 lists capacitor units in steps)";
+        "common practice: rounding to a step of standard ratings (IEEE Std 18 lists capacitor units in steps, from memory)";
     vec![
         scalar_fn(
             "round",
@@ -294,7 +294,7 @@ pub fn funcs() -> Vec<Builtin> {
         }
         .with_domain(dom_size_up)
         .with_source(
-            "common practice: choose the next standard rating up (IEEE Std C57.12.00 kVA ratings, IEC 60831 kvar)",
+            "common practice: choose the next standard rating up (the size lists of IEEE Std C57.12.00 for kVA and IEC 60831 for kvar, from memory)",
         ),
         Builtin {
             variadic: true,
@@ -318,6 +318,6 @@ pub fn funcs() -> Vec<Builtin> {
             l_pick,
         )
         .with_domain(dom_pick)
-        .with_source("a two-way choice, evaluated case by case; only the branch taken reaches the result"),
+        .with_source("common practice: a two-way choice, evaluated case by case; only the branch taken reaches the result"),
     ]
 }

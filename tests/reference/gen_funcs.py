@@ -77,7 +77,7 @@ Sources:
   largest deviation from the average over the average (from memory).
 - Harmonic resonance of a shunt bank h = √(S_sc/Q_c) (IEEE Std 1036,
   from memory).
-- AWG: ASTM B258, d = 0.005 in · 92^((36 − n)/39).
+- AWG: ASTM B258, d = 0.005 in · 92^((36 − n)/39) (from memory).
 """
 import cmath
 import json
