@@ -29,6 +29,8 @@ mod lines_rf;
 mod local_override;
 mod matching_pi_t;
 mod misreadings;
+mod network_classical;
+mod network_failures;
 mod network_reference;
 mod network_solver;
 mod networks;

@@ -26,7 +26,8 @@ use crate::units::Quantity;
 /// What made a cell's value undefined.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Why {
-    /// The function whose domain was left.
+    /// The function whose domain was left ("" for a network whose case
+    /// has no solution: the message names the network).
     pub func: &'static str,
     /// The argument at fault, or the whole call when no one argument is.
     pub span: Span,
@@ -39,6 +40,9 @@ pub struct Why {
 impl Why {
     /// The message with the function named: "`q_pfc`: argument …".
     pub fn text(&self) -> String {
+        if self.func.is_empty() {
+            return self.message.clone();
+        }
         format!("`{}`: {}", self.func, self.message)
     }
 }
@@ -159,6 +163,9 @@ fn argument(model: &Model, slots: &[C64], e: &Expr) -> Option<Vec<(&'static str,
 /// the generic message stands).
 pub fn explain(model: &Model, slots: &[C64], id: CellId) -> Option<Why> {
     let stmt = statement(model, id)?;
+    if let StmtKind::Network(h) = &stmt.kind {
+        return network_why(model, slots, h);
+    }
     let mut found = Vec::new();
     for e in exprs(&stmt) {
         calls(e, &mut found);
@@ -223,6 +230,69 @@ pub fn explain(model: &Model, slots: &[C64], id: CellId) -> Option<Why> {
         });
     }
     None
+}
+
+/// Why network `h` has undefined results in the case `slots`: the case is
+/// solved again (the code before the network's instruction re-run over a
+/// copy of the slots, so its arguments are as they were) and the solver's
+/// failure is put in words by `network::diagnose`; a solve that succeeds
+/// with an undefined result says which and why.
+fn network_why(model: &Model, slots: &[C64], h: &crate::syntax::ast::NetworkHead) -> Option<Why> {
+    use crate::engine::ops::Op;
+    use crate::network::{Field, Request};
+    let prog = &model.program;
+    let (at, k) = prog.code.iter().enumerate().find_map(|(at, ins)| match ins.op {
+        Op::Network(k) if prog.networks.get(k as usize).is_some_and(|n| n.name == h.name.name) => Some((at, k)),
+        _ => None,
+    })?;
+    let net = &prog.networks[k as usize];
+    let mut vals = slots.to_vec();
+    run(&prog.code[..at], prog, &mut vals);
+    let ins = &prog.code[at];
+    let base = ins.a as usize;
+    let width = prog.call_args[base] as usize;
+    let args: Vec<C64> = (0..ins.b as usize)
+        .map(|i| vals[prog.call_args[base + 1 + i] as usize])
+        .collect();
+    let mut out = vec![C64::new(0.0, 0.0); width];
+    let name = &h.name.name;
+    let message = match net.run(&args, &mut out) {
+        Err(f) => crate::network::diagnose::explain_failure(name, &net.net, &args, &f),
+        Ok(()) => {
+            let node = |k: usize| net.net.nodes[k].as_str();
+            let bad = net
+                .fields()
+                .into_iter()
+                .zip(&out)
+                .find(|(_, z)| z.re.is_nan() || z.im.is_nan())?
+                .0;
+            match bad {
+                Field::Req(r, _) => match net.requests[r] {
+                    Request::YEntry(i, j) => format!(
+                        "network `{name}`: Y({}, {}) is undefined at this case — the bus admittance matrix does not exist \
+                         where an ideal element (a 0 Ω branch, a voltage gain, a transimpedance or a transformer) ties \
+                         node voltages together; the network's other results stand",
+                        node(i),
+                        node(j)
+                    ),
+                    Request::Thevenin(a, b) => format!(
+                        "network `{name}`: the Norton current between `{}` and `{}` is undefined at this case — the \
+                         Thevenin impedance there is 0 (the nodes are joined by a short) and so is the open-circuit voltage",
+                        node(a),
+                        node(b)
+                    ),
+                    Request::ZEntry(..) => return None,
+                },
+                _ => return None,
+            }
+        }
+    };
+    Some(Why {
+        func: "",
+        span: h.name.span,
+        call_span: h.name.span,
+        message,
+    })
 }
 
 /// The error for cell `id` whose value came out NaN in the case `slots`:

@@ -2,6 +2,7 @@
 //! nodal analysis. `netlist` describes a network by numbers; `solve`
 //! solves one case of it.
 
+pub mod diagnose;
 pub mod netlist;
 pub mod solve;
 pub mod topology;
