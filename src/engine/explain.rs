@@ -210,11 +210,21 @@ pub fn explain(model: &Model, slots: &[C64], id: CellId) -> Option<Why> {
             // the calls inside it, which come first
             continue;
         }
-        let Some(err) = domain(&vals, &model.ctx) else { continue };
+        let Some(mut err) = domain(&vals, &model.ctx) else {
+            continue;
+        };
+        // values the message names (`ArgError::value`), shown with units
+        let shown = |i: usize| format_value(vals[i], quantities[i], None, Style { digits: 6 }).rect;
+        for i in (0..vals.len()).rev() {
+            let token = funcs::ArgError::value(i);
+            if err.message.contains(&token) {
+                err.message = err.message.replace(&token, &shown(i));
+            }
+        }
         let (span, message) = match err.arg {
             Some(i) if i < vals.len() => {
                 let p = &names[i];
-                let shown = format_value(vals[i], quantities[i], None, Style { digits: 6 }).rect;
+                let shown = shown(i);
                 (
                     args[f.written_arg(args.len(), i)].span,
                     format!("argument `{p}` = {shown} is out of range: {}", err.message),

@@ -61,10 +61,7 @@ fn dom_awg(a: &[C64], _: &Ctx) -> Option<ArgError> {
         Some(n) if (-3.0..=56.0).contains(&n) => None,
         _ => Some(ArgError::at(
             0,
-            format!(
-                "`n` must be a whole gauge number from 0 to 56, or −1, −2, −3 for 00, 000, 0000 (or use awg0), but it is {}",
-                a[0]
-            ),
+            "`n` must be a whole gauge number from 0 to 56, or −1, −2, −3 for 00, 000, 0000 (or use awg0)",
         )),
     }
 }
@@ -72,10 +69,7 @@ fn dom_awg(a: &[C64], _: &Ctx) -> Option<ArgError> {
 fn dom_awg0(a: &[C64], _: &Ctx) -> Option<ArgError> {
     match whole(a[0]) {
         Some(k) if (1.0..=4.0).contains(&k) => None,
-        _ => Some(ArgError::at(
-            0,
-            format!("`k` must be 1, 2, 3 or 4 (1/0 to 4/0), but it is {}", a[0]),
-        )),
+        _ => Some(ArgError::at(0, "`k` must be 1, 2, 3 or 4 (1/0 to 4/0)")),
     }
 }
 

@@ -138,15 +138,12 @@ fn s_z_xr(a: &[C64], out: &mut [C64], _: &Ctx) {
 }
 
 fn dom_xr(x: C64, i: usize) -> Option<ArgError> {
-    (!nonneg_real(x)).then(|| ArgError::at(i, format!("`XR` must be a real number ≥ 0, but it is {x}")))
+    (!nonneg_real(x)).then(|| ArgError::at(i, "`XR` must be a real number ≥ 0"))
 }
 
 fn dom_z_xr(a: &[C64], _: &Ctx) -> Option<ArgError> {
     if !nonneg_real(a[0]) {
-        return Some(ArgError::at(
-            0,
-            format!("`Zmag` must be a magnitude (real, ≥ 0), but it is {}", a[0]),
-        ));
+        return Some(ArgError::at(0, "`Zmag` must be a magnitude (real, ≥ 0)"));
     }
     dom_xr(a[1], 1)
 }
@@ -175,10 +172,7 @@ fn l_z_plate(e: &mut Emitter, a: &[Operand], q: &[Quantity]) -> Vec<Operand> {
 
 fn dom_z_plate(a: &[C64], _: &Ctx) -> Option<ArgError> {
     if !nonneg_real(a[0]) {
-        return Some(ArgError::at(
-            0,
-            format!("`z` must be a real fraction ≥ 0, but it is {}", a[0]),
-        ));
+        return Some(ArgError::at(0, "`z` must be a real fraction ≥ 0"));
     }
     if let Some(e) = dom_xr(a[1], 1) {
         return Some(e);
@@ -469,10 +463,10 @@ fn dom_sc_peak(a: &[C64], _: &Ctx) -> Option<ArgError> {
     if z.re < 0.0 || z.im < 0.0 || (z.re == 0.0 && z.im == 0.0) {
         return Some(ArgError::at(
             1,
-            format!("`Zk` must be a short-circuit impedance with R ≥ 0 and X ≥ 0, not zero, but it is {z}"),
+            "`Zk` must be a short-circuit impedance with R ≥ 0 and X ≥ 0, not zero",
         ));
     }
-    (!pos_real(a[2])).then(|| ArgError::at(2, format!("`c` must be a real factor > 0, but it is {}", a[2])))
+    (!pos_real(a[2])).then(|| ArgError::at(2, "`c` must be a real factor > 0"))
 }
 
 pub fn funcs() -> Vec<Builtin> {

@@ -90,6 +90,12 @@ impl ArgError {
             message: message.into(),
         }
     }
+    /// A place in a message for the value passed as argument `i`: the
+    /// explanation puts the value there as values are shown, with its
+    /// unit (`750 kVA`, `3 + j4 Ω`), never as raw SI numbers.
+    pub fn value(i: usize) -> String {
+        format!("{{#{i}}}")
+    }
     pub fn whole(message: impl Into<String>) -> ArgError {
         ArgError {
             arg: None,

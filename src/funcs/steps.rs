@@ -114,10 +114,7 @@ fn real_x(x: C64, name: &str) -> Option<ArgError> {
     } else if x.im != 0.0 {
         Some(ArgError::at(
             0,
-            format!(
-                "`{name}` must be a real value, but its imaginary part is {}; take re(…) or abs(…) first",
-                x.im
-            ),
+            format!("`{name}` must be a real value, not a complex one; take re(…) or abs(…) first"),
         ))
     } else {
         None
@@ -127,10 +124,7 @@ fn real_x(x: C64, name: &str) -> Option<ArgError> {
 fn dom_step(a: &[C64], _: &Ctx) -> Option<ArgError> {
     let step = a[1];
     if !pos_real(step) || step.re.is_infinite() {
-        return Some(ArgError::at(
-            1,
-            format!("`step` must be a real value greater than 0 and finite, but it is {step}"),
-        ));
+        return Some(ArgError::at(1, "`step` must be a real value greater than 0 and finite"));
     }
     real_x(a[0], "x")
 }
@@ -193,26 +187,24 @@ fn dom_sizes(a: &[C64], up: bool) -> Option<ArgError> {
         return Some(e);
     }
     if let Some(k) = a[1..].iter().position(|s| !is_real(*s)) {
-        return Some(ArgError::at(
-            k + 1,
-            format!("a size must be a real value, but this is {}", a[k + 1]),
-        ));
+        return Some(ArgError::at(k + 1, "a size must be a real value"));
     }
-    let list: Vec<f64> = a[1..].iter().map(|s| s.re).collect();
-    let (bound, word) = if up {
+    // the size at the end of the list the value is beyond
+    let sizes = a[1..].iter().enumerate();
+    let (bound, word, remedy) = if up {
+        let k = sizes.max_by(|x, y| x.1.re.total_cmp(&y.1.re)).map_or(0, |x| x.0);
         (
-            list.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+            k,
             "above the largest",
+            "add a larger size to the list, or split the load",
         )
     } else {
-        (list.iter().copied().fold(f64::INFINITY, f64::min), "below the smallest")
+        let k = sizes.min_by(|x, y| x.1.re.total_cmp(&y.1.re)).map_or(0, |x| x.0);
+        (k, "below the smallest", "add a smaller size to the list")
     };
     Some(ArgError::at(
         0,
-        format!(
-            "`x` = {} (SI units) is {word} size listed ({bound}); add a larger size to the list, or split the load",
-            a[0].re
-        ),
+        format!("`x` is {word} size listed, {}; {remedy}", ArgError::value(bound + 1)),
     ))
 }
 
@@ -240,10 +232,7 @@ fn dom_pick(a: &[C64], _: &Ctx) -> Option<ArgError> {
     if (c.re == 1.0 || c.re == 0.0) && c.im == 0.0 {
         None
     } else {
-        Some(ArgError::at(
-            0,
-            format!("`cond` must be exactly 1 or 0 (as a comparison gives), but it is {c}"),
-        ))
+        Some(ArgError::at(0, "`cond` must be exactly 1 or 0 (as a comparison gives)"))
     }
 }
 

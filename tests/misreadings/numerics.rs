@@ -525,6 +525,53 @@ fn each_domain_error_names_the_argument_and_why() {
     }
 }
 
+/// Domain messages show the values they name as the sheet shows values,
+/// with units (`0 Ω`, `2 MVA`), never as raw complex numbers (`0+0i`) or
+/// raw SI numbers. The ranges are those of the functions' conventions
+/// (docs/functions.md): a short-circuit impedance has R ≥ 0 and X ≥ 0 and
+/// is not zero; a size list has a largest and a smallest size.
+#[test]
+fn domain_messages_show_values_with_their_units() {
+    for (formula, says) in [
+        (
+            "sc_peak(400 V, 0 Ω, 1.05)",
+            "argument `Zk` = 0 Ω is out of range: `Zk` must be a short-circuit impedance",
+        ),
+        (
+            "sc_peak(400 V, (-1 + j2) Ω, 1.05)",
+            "argument `Zk` = -1 + j2 Ω is out of range",
+        ),
+        (
+            "size_up(3 MVA, 500 kVA, 2000 kVA, 750 kVA)",
+            "argument `x` = 3 MVA is out of range: `x` is above the largest size listed, 2 MVA; add a larger size",
+        ),
+        (
+            "size_down(100 kVA, 500 kVA, 300 kVA)",
+            "`x` is below the smallest size listed, 300 kVA",
+        ),
+        (
+            "round_up((400 + j30) VA, 50 VA)",
+            "argument `x` = 400 + j30 VA is out of range: `x` must be a real value, not a complex one",
+        ),
+        (
+            "round_up(400 kvar, -50 kvar)",
+            "argument `step` = -50 kvar is out of range",
+        ),
+        ("z_xr(-2 Ω, 3)", "argument `Zmag` = -2 Ω is out of range"),
+        ("pick(0.5, 1 A, 2 A)", "argument `cond` = 0.5 is out of range"),
+        ("awg(60)", "argument `n` = 60 is out of range"),
+        ("awg0(7)", "argument `k` = 7 is out of range: `k` must be 1, 2, 3 or 4"),
+    ] {
+        let e = engine(&format!("x = {formula}\n"));
+        let id = e.model.id("x").unwrap();
+        let why = e.explain(id).unwrap_or_else(|| panic!("{formula}: no explanation"));
+        assert!(why.message.contains(says), "{formula}: {}", why.message);
+        for raw in ["0i", "+0i", "-0i", "{#", "(SI units)", "but it is"] {
+            assert!(!why.message.contains(raw), "{formula}: raw value in {}", why.message);
+        }
+    }
+}
+
 #[test]
 fn every_function_names_its_source() {
     for f in ohmsheet::funcs::library() {
