@@ -188,6 +188,33 @@ fn a_bad_line_shows_a_caret_and_leaves_the_sheet_intact() {
     assert_eq!(left, 0);
 }
 
+// A mistyped unit in a new value for a cell is answered with units of
+// the cell's dimension, as batch answers a cases column (issue 15): a
+// time `6 mn` is offered times, not `m`; a length `6 mil` the mile.
+#[test]
+fn a_mistyped_unit_is_answered_with_units_of_the_cells_dimension() {
+    let env = Env::new();
+    let sheet = env.sheet("t = 3 s\nL = 2 km\nv = L / t\n");
+    let mut t = env.spawn(Some(&sheet));
+    t.prompt();
+    t.line("t = 6 mn");
+    t.expect("error[unknown-unit]");
+    t.expect("`t` is a time");
+    t.expect("min");
+    t.expect("the sheet is as it was");
+    t.prompt();
+    t.line("L = 6 mil");
+    t.expect("did you mean `mile`?");
+    t.expect("the sheet is as it was");
+    t.prompt();
+    t.line("/done");
+    t.eof();
+    assert_eq!(
+        std::fs::read_to_string(&sheet).unwrap(),
+        "t = 3 s\nL = 2 km\nv = L / t\n"
+    );
+}
+
 #[test]
 fn a_killed_session_is_recovered_whole() {
     let env = Env::new();

@@ -209,6 +209,30 @@ fn units_like(want: Quantity) -> Vec<String> {
     v
 }
 
+/// The hint for an unknown unit `word` in a value given to `name`, a
+/// quantity `want`: a did-you-mean only among units of its dimension
+/// (`6 mn` for a time is not answered with `m`), else a few such units.
+/// Batch words its cells with it (`unit_error_for`); the session its
+/// edits of a cell.
+pub fn unit_hint_for(word: &str, name: &str, want: Quantity) -> String {
+    let like = units_like(want);
+    // Two letters are too few to guess from (`mi` is neither `mm` nor `min`).
+    let guess = if word.chars().count() > 2 {
+        did_you_mean(word, like.iter().map(String::as_str))
+    } else {
+        None
+    };
+    match guess {
+        Some(x) => format!("did you mean `{x}`?"),
+        None if want.is_plain_number() => format!("`{name}` is a plain number"),
+        None if !like.is_empty() => {
+            let few: Vec<&str> = like.iter().take(6).map(String::as_str).collect();
+            format!("`{name}` is {}: units such as {}", want.describe(), few.join(", "))
+        }
+        None => format!("`{name}` is {}", want.describe()),
+    }
+}
+
 /// A unit error worded for an input of quantity `want`: a did-you-mean
 /// only among units of its dimension, else a few such units.
 pub(crate) fn unit_error_for(text: &str, e: UnitError, name: &str, want: Quantity) -> String {

@@ -589,3 +589,30 @@ fn a_value_typed_for_a_network_element_replaces_only_its_value() {
     assert_eq!(b.doc.text(), text);
     assert_eq!(val(&b, "Vb"), v);
 }
+
+// A mistyped unit in a new value for a cell is answered with units of
+// that cell's dimension, as batch answers a cases column (issue 15): a
+// time `6 mn` is not offered `m`, a length `6 mil` is offered `mile`
+// (not `min`), a plain number is said to be one. (`min`, `mile` and `ms`
+// are the minute, the mile and the millisecond of the units table.)
+#[test]
+fn a_mistyped_unit_is_answered_with_units_of_the_cells_dimension() {
+    let f = Fixture::new("t = 3 s\nL = 2 km\nk = 4\nv = L / t\n");
+    let mut s = f.open();
+    let r = s.handle("t = 6 mn");
+    assert!(r.refused, "{}", r.text);
+    assert!(r.text.contains("`t` is a time"), "{}", r.text);
+    assert!(r.text.contains("min") && r.text.contains("ms"), "{}", r.text);
+    assert!(!r.text.contains("did you mean `m`"), "{}", r.text);
+    let r = s.handle("t = 6 mins");
+    assert!(r.refused && r.text.contains("did you mean `min`?"), "{}", r.text);
+    let r = s.handle("L = 6 mil");
+    assert!(r.refused && r.text.contains("did you mean `mile`?"), "{}", r.text);
+    assert!(!r.text.contains("`min`"), "{}", r.text);
+    let r = s.handle("k = 6 vv");
+    assert!(r.refused && r.text.contains("`k` is a plain number"), "{}", r.text);
+    // a new name has no dimension yet: the general suggestion stands
+    let r = s.handle("u = 6 mn");
+    assert!(r.refused && r.text.contains("did you mean"), "{}", r.text);
+    assert_eq!(val(&s, "t"), C64::new(3.0, 0.0), "nothing changed");
+}
