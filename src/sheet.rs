@@ -328,7 +328,9 @@ impl Sheet {
                     display: stmt.display.or(keep_display),
                 };
                 let name = stmt.name.name;
-                self.overrides.retain(|o| o.name != name);
+                // an earlier `--set` of the name gives way; an `@override`
+                // line stays, so reports and `run` name both
+                self.overrides.retain(|o| o.name != name || o.library.is_some());
                 self.overrides.push(Override {
                     name,
                     original,

@@ -156,3 +156,77 @@ fn the_report_shows_the_override_and_the_library_value_it_replaces() {
         assert!(text.contains(want), "{format}:\n{text}");
     }
 }
+
+/// `run`'s table says which values an `@override` line replaced, and where
+/// the library's value was; a `--set` of such a value names both the
+/// `--set` and the override, in the table and in a report.
+#[test]
+fn run_marks_an_overridden_value_and_a_set_on_top_of_it() {
+    let d = folder(&[
+        (
+            "job.ohm",
+            "@include \"lib/cables.ohm\"\n@override Zc = (0.25 + j0.12) Ω\nI = 400 V / Z\n",
+        ),
+        ("lib/cables.ohm", LIB),
+    ]);
+    let run = |args: &[&str]| {
+        let out = ohmsheet()
+            .current_dir(d.path())
+            .args(args)
+            .assert()
+            .code(0)
+            .get_output()
+            .stdout
+            .clone();
+        String::from_utf8(out).unwrap()
+    };
+    let line = |text: &str, name: &str| {
+        text.lines()
+            .find(|l| l.trim_start().starts_with(&format!("{name} ")))
+            .unwrap_or_else(|| panic!("no row {name}:\n{text}"))
+            .to_string()
+    };
+    let text = run(&["run", "job.ohm"]);
+    assert!(
+        line(&text, "Zc").ends_with("(0.25 + j0.12) Ω   (@override of lib/cables.ohm:2)"),
+        "{text}"
+    );
+    assert!(!line(&text, "Qc").contains("@override"), "{text}");
+    assert!(!line(&text, "I").contains("@override"), "{text}");
+    assert!(
+        text.contains("(@override of FILE:LINE: this sheet's value in place of the library's"),
+        "{text}"
+    );
+
+    // --set on top of the override: both named; the value is the --set's
+    // (Z = 2 × 0.3 Ω = 0.6 Ω, by hand)
+    let text = run(&["run", "job.ohm", "--set", "Zc=0.3 Ω"]);
+    assert!(
+        line(&text, "Zc").ends_with("(--set, over the @override of lib/cables.ohm:2)"),
+        "{text}"
+    );
+    assert!(line(&text, "Z").contains("600 mΩ"), "{text}");
+    // --set of a value no override touched
+    let text = run(&["run", "job.ohm", "--set", "Qc=250 kvar"]);
+    assert!(line(&text, "Qc").ends_with("(--set)"), "{text}");
+    // the --set still has to fit the library's value (an impedance)
+    ohmsheet()
+        .current_dir(d.path())
+        .args(["run", "job.ohm", "--set", "Zc=3 V"])
+        .assert()
+        .code(2)
+        .stderr(predicates::str::contains(
+            "`Zc` is an impedance (Ω); `3 V` is a voltage (V)",
+        ));
+
+    // a report with --set on the overridden value mentions both
+    for format in ["md", "html", "json"] {
+        let text = run(&["report", "job.ohm", "--set", "Zc=0.3 Ω", "--format", format]);
+        assert!(
+            text.contains("job.ohm, line 2: @override of the library value in lib/cables.ohm, line 2"),
+            "{format}:\n{text}"
+        );
+        assert!(text.contains("formula set on the command line"), "{format}:\n{text}");
+        assert!(text.contains("Zc=0.3 Ω"), "{format}:\n{text}");
+    }
+}

@@ -7,7 +7,7 @@ use crate::output::{self, table};
 use crate::units::format::Style;
 
 pub fn run(a: &RunArgs) -> i32 {
-    let Ok((_, model)) = load_sheet(&a.sheet, &a.set, &a.load.options()) else {
+    let Ok((sheet, model)) = load_sheet(&a.sheet, &a.set, &a.load.options()) else {
         return EXIT_ERROR;
     };
     let style = Style {
@@ -20,7 +20,7 @@ pub fn run(a: &RunArgs) -> i32 {
     let text = match a.format {
         Format::Table => format!(
             "{}{}",
-            table::cells_table(&engine.model, &cells),
+            table::cells_table_noted(&engine.model, &cells, &table::override_notes(&sheet, &engine.model)),
             table::checks_table(&checks)
         ),
         Format::Json => format!("{}\n", output::to_json(&name, &engine.model, &cells, &checks)),

@@ -14,6 +14,37 @@ fn pad(s: &str, w: usize) -> String {
 
 /// Cells as aligned columns: name, value, polar form, formula.
 pub fn cells_table(model: &Model, cells: &[CellRow]) -> String {
+    cells_table_noted(model, cells, &[])
+}
+
+/// Where each value the sheet does not take from its own definition came
+/// from, for `cells_table_noted`: (cell name, note) for a library value
+/// replaced by an `@override` line, a `--set` on the command line, or both.
+pub fn override_notes(sheet: &crate::sheet::Sheet, model: &Model) -> Vec<(String, String)> {
+    let mut notes: Vec<(String, String)> = Vec::new();
+    for o in &sheet.overrides {
+        let here = match o.library {
+            Some(lib) => format!(
+                "@override of {}:{}",
+                model.sources.get(lib.file).name,
+                model.sources.line_of(lib)
+            ),
+            None => "--set".to_string(),
+        };
+        match notes.iter_mut().find(|(n, _)| *n == o.name) {
+            // a `--set` of a value the sheet overrides: both are named
+            Some((_, text)) if o.library.is_none() => *text = format!("--set, over the {text}"),
+            Some((_, text)) => *text = format!("--set, over the {here}"),
+            None => notes.push((o.name.clone(), here)),
+        }
+    }
+    notes
+}
+
+/// `cells_table`, with a note after the formula of each cell named in
+/// `notes` (and of its record fields): where its value came from instead
+/// of its own definition (`override_notes`).
+pub fn cells_table_noted(model: &Model, cells: &[CellRow], notes: &[(String, String)]) -> String {
     let mut out = String::new();
     if let Some(t) = model.meta.get("title") {
         out.push_str(t);
@@ -37,11 +68,19 @@ pub fn cells_table(model: &Model, cells: &[CellRow]) -> String {
             };
             // Cells from an included library sheet say where they came from.
             let main = model.sources.files().first().map(|f| f.name.as_str());
-            let formula = if main.is_some_and(|m| m != c.file) {
+            let mut formula = if main.is_some_and(|m| m != c.file) {
                 format!("{}   (from {}:{})", c.formula, c.file, c.line)
             } else {
                 c.formula.clone()
             };
+            let field_of = |n: &str| {
+                c.name
+                    .strip_prefix(n)
+                    .is_some_and(|r| r.is_empty() || r.starts_with('.'))
+            };
+            if let Some((_, note)) = notes.iter().find(|(n, _)| field_of(n)) {
+                formula = format!("{formula}   ({note})");
+            }
             [name, c.display.clone(), polar, formula]
         })
         .collect();
@@ -66,6 +105,11 @@ pub fn cells_table(model: &Model, cells: &[CellRow]) -> String {
     }
     if cells.iter().any(|c| c.input) {
         out.push_str("  (◂ input: a value the sheet takes as given; change it with --set NAME=VALUE)\n");
+    }
+    if notes.iter().any(|(n, _)| model.id(n).is_some()) {
+        out.push_str(
+            "  (@override of FILE:LINE: this sheet's value in place of the library's defined there; --set: given on the command line)\n",
+        );
     }
     out
 }

@@ -417,7 +417,9 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
         };
         let result = match (&pending[i].expr, &pending[i].check) {
             _ if pending[i].net.is_some() => lw.lower_network(&mut em, &nets[pending[i].net.unwrap_or_default()]),
-            (Some(e), _) => match sheet.overrides.iter().find(|o| o.name == cells[i].name) {
+            // the last override of the name is the formula in place (a
+            // `--set` of a value an `@override` line replaced)
+            (Some(e), _) => match sheet.overrides.iter().rfind(|o| o.name == cells[i].name) {
                 Some(ov) => lw
                     .check_override(e, ov)
                     .and_then(|()| lw.lower_def(&mut em, e, &cells[i])),
