@@ -71,6 +71,17 @@ ENTRIES = [
     ("record-as-value", "A record used where one value is needed.", "p = parts(3 + j4)\nx = p * 2\n", None),
     ("bad-tolerance", "A check's tolerance without the unit of the values compared.",
      "Z = 5 Ω\ncheck Z ~= 5 Ω +- 0.1\n", None),
+    ("tolerance-not-on-input", "A tolerance (`within …`, `among …`) on a cell computed from other cells: only "
+     "an input's value can vary (docs/tolerances.md).",
+     "Vs = 400 V within 5 %\nVb = Vs * 2 within 5 %\n", None),
+    ("bad-input-tolerance", "An input's tolerance that cannot be read as a band: the stated value outside it "
+     "(`within 2 % .. 5 %`), a negative half-width, a band taking the magnitude below zero, a % at one end and "
+     "a unit at the other, an angle band on a real power or frequency, `normal` on a lopsided band or with "
+     "K ≤ 0, or an amount that names a cell.",
+     "Qc = 600 kvar within 2 % .. 5 %\n", None),
+    ("tolerance-unit", "An input's tolerance in a unit that does not fit the input (kW for a kvar input, a "
+     "plain number for volts), or an angle band not in degrees or radians.",
+     "P = 1.2 MW within 50 kvar\n", None),
     ("unknown-directive", "An `@word` the language does not know.", "@titel \"Feeder 3\"\nx = 1\n", None),
     ("bad-directive", "A directive with a wrong value.", "@amplitude average\nx = 1\n", None),
     ("not-a-number", "A cell evaluated to NaN. When a function's argument lies outside its domain the "

@@ -319,6 +319,9 @@ impl Sheet {
                     None => def.expr.clone(),
                 };
                 let keep_display = def.display.take();
+                // The sheet's tolerance stays with the new value unless
+                // `--set` gives one (`--set "Qc=700 kvar within 5 %"`).
+                let keep_spread = def.spread.take();
                 *def = Definition {
                     name: Ident {
                         name: def.name.name.clone(),
@@ -326,6 +329,7 @@ impl Sheet {
                     },
                     expr: stmt.expr,
                     display: stmt.display.or(keep_display),
+                    spread: stmt.spread.or(keep_spread),
                 };
                 let name = stmt.name.name;
                 // an earlier `--set` of the name gives way; an `@override`

@@ -45,5 +45,6 @@ mod scale_sheet;
 mod search_sheet;
 mod session_pty;
 mod sweep;
+mod tolerances;
 mod two_ports;
 mod watch;

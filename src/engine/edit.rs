@@ -262,6 +262,9 @@ impl Engine {
             return Err(EditError::Recompile("the model has cells with errors"));
         }
         self.no_searches(&def.expr)?;
+        if def.spread.is_some() || self.model.spread_of(id).is_some() {
+            return Err(EditError::Recompile("a tolerance is checked with the whole sheet"));
+        }
         let i = id as usize;
         let m = &self.model;
         if m.cells[i].role != Role::Def || m.cells[i].name != def.name.name {
@@ -369,6 +372,9 @@ impl Engine {
             return Err(EditError::Recompile("the model has cells with errors"));
         }
         self.no_searches(&def.expr)?;
+        if def.spread.is_some() {
+            return Err(EditError::Recompile("a tolerance is checked with the whole sheet"));
+        }
         let name = &def.name.name;
         if self.model.by_name.contains_key(name) || RESERVED.contains(&name.as_str()) {
             return Err(EditError::Recompile("the name is taken or reserved"));
@@ -444,8 +450,8 @@ impl Engine {
             && m.cells[i].role == Role::Def
             && m.dependents[i].is_empty()
             && m.cells[i].code.end as usize == m.program.code.len();
-        if !last || !self.error_free() {
-            return Err(EditError::Recompile("not the last cell, or still in use"));
+        if !last || m.spread_of(id).is_some() || !self.error_free() {
+            return Err(EditError::Recompile("not the last cell, still in use, or with a tolerance"));
         }
         let m = &mut self.model;
         let cell = m.cells.pop().expect("checked");

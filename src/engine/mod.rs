@@ -10,6 +10,7 @@ pub mod notes;
 pub mod ops;
 pub mod program;
 pub mod search;
+pub mod tolerance;
 
 pub use edit::EditError;
 pub use eval::{check_result, Change, CheckResult, Engine};

@@ -23,6 +23,7 @@ mod graph;
 mod lower;
 mod lower_network;
 mod lower_search;
+mod lower_spread;
 mod meta;
 
 pub use collect::{compile, compile_limited};
@@ -164,6 +165,9 @@ pub struct Model {
     pub meta: Meta,
     pub ctx: Ctx,
     pub diagnostics: Vec<Diagnostic>,
+    /// The inputs' tolerances (`within …`, `among …`), in sheet order;
+    /// empty for a sheet without any (see `engine::tolerance`).
+    pub spreads: Vec<crate::engine::tolerance::Spread>,
 }
 
 impl Model {
@@ -172,6 +176,10 @@ impl Model {
     }
     pub fn cell(&self, name: &str) -> Option<&Cell> {
         self.by_name.get(name).map(|&id| &self.cells[id as usize])
+    }
+    /// The tolerance of input `id`, if it has one.
+    pub fn spread_of(&self, id: CellId) -> Option<&crate::engine::tolerance::Spread> {
+        self.spreads.iter().find(|s| s.cell == id)
     }
     pub fn id(&self, name: &str) -> Option<CellId> {
         self.by_name.get(name).copied()

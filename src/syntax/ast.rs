@@ -137,6 +137,47 @@ pub struct Definition {
     pub name: Ident,
     pub expr: Expr,
     pub display: Option<UnitRef>,
+    /// `within …` or `among …` after the value: the input's tolerance.
+    pub spread: Option<SpreadSpec>,
+}
+
+/// A tolerance as written after an input's value (docs/tolerances.md).
+#[derive(Clone, Debug, PartialEq)]
+pub struct SpreadSpec {
+    /// The whole clause, from `within` or `among` on.
+    pub span: Span,
+    pub form: SpreadForm,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum SpreadForm {
+    /// `within 5 %`, `within -0 % .. +10 %`, `within 2 % angle 3°`,
+    /// `within 20 % normal 2σ`.
+    Band {
+        /// On the magnitude (or the real value).
+        mag: Option<BandText>,
+        /// On the angle of a phasor.
+        angle: Option<BandText>,
+        law: LawText,
+    },
+    /// `among 450 kvar, 600 kvar, 750 kvar`: one of the listed values.
+    Among(Vec<Expr>),
+}
+
+/// `A` (for −A .. +A) or `LO .. HI` (offsets from the value).
+#[derive(Clone, Debug, PartialEq)]
+pub struct BandText {
+    pub span: Span,
+    pub lo: Option<Expr>,
+    pub hi: Expr,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum LawText {
+    /// Every value in the band equally likely (the default).
+    Uniform,
+    /// `normal Kσ`: the band's half-width is K standard deviations.
+    Normal { k: f64, span: Span },
 }
 
 #[derive(Clone, Debug, PartialEq)]

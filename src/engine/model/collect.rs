@@ -20,6 +20,8 @@ struct Pending<'a> {
     check: Option<&'a Check>,
     /// A network's own cell: its index in the sheet's networks.
     net: Option<usize>,
+    /// The input's tolerance, as written.
+    spread: Option<&'a SpreadSpec>,
 }
 
 /// Compile a sheet. Always returns a model; `model.diagnostics` holds every
@@ -118,6 +120,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                                 expr: Some(el.value),
                                 check: None,
                                 net: None,
+                                spread: d.spread.as_ref(),
                             });
                             nd.elems.push(el);
                         }
@@ -129,6 +132,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                                 expr: None,
                                 check: None,
                                 net: None,
+                                spread: d.spread.as_ref(),
                             });
                         }
                     },
@@ -136,6 +140,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                         expr: Some(&d.expr),
                         check: None,
                         net: None,
+                        spread: d.spread.as_ref(),
                     }),
                 }
             }
@@ -160,6 +165,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                     expr: None,
                     check: Some(c),
                     net: None,
+                    spread: None,
                 });
             }
             StmtKind::Directive(dir) => {
@@ -228,6 +234,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                         expr: None,
                         check: None,
                         net: Some(nets.len()),
+                        spread: None,
                     });
                     nets.push(nd);
                 }
@@ -385,6 +392,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     let pending_searches = std::cell::RefCell::new(Vec::new());
     let networks = std::cell::RefCell::new(Vec::new());
     let mut order = Vec::with_capacity(n);
+    let mut spreads = Vec::new();
     // Which cells have an error, packed: checking a cell's dependencies
     // here then costs no cache miss per dependency on a big sheet.
     let mut failed: Vec<bool> = cells.iter().map(|c| c.error.is_some()).collect();
@@ -452,6 +460,38 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                     cell.deps = p.frontier.clone();
                 }
                 order.push(id);
+                if let Some(spec) = pending[i].spread {
+                    let cell = &cells[i];
+                    let lw = Lowerer {
+                        cells: &cells,
+                        by_name: &by_name,
+                        sources: &sheet.sources,
+                        ctx,
+                        current: id,
+                        searches: &pending_searches,
+                        networks: &networks,
+                    };
+                    let q = cell.quantity();
+                    let searching = pending_searches.borrow().last().is_some_and(|p| p.cell == id);
+                    match q {
+                        Some(q) if cell.input && !searching => {
+                            let nominal = (cell.code.is_empty()).then(|| slots.init[cell.slot as usize]);
+                            match lw.lower_spread(spec, id, q, nominal) {
+                                Ok(s) => spreads.push(s),
+                                Err(d) => diags.push(d),
+                            }
+                        }
+                        _ => diags.push(
+                            Diagnostic::error(
+                                ErrorCode::ToleranceNotOnInput,
+                                spec.span,
+                                format!("`{}` is computed from other cells; only an input can have a tolerance", cell.name),
+                            )
+                            .with_label("a tolerance on a formula")
+                            .with_hint("put the tolerance on the inputs this cell is computed from"),
+                        ),
+                    }
+                }
             }
         }
     }
@@ -515,6 +555,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
         meta,
         ctx,
         diagnostics: diags,
+        spreads,
     };
     if !model.meta.sweeps.is_empty() {
         let more = crate::sweep::declared::check(&model);

@@ -38,6 +38,10 @@ fn describe_rule(r: &Rule) -> Option<&'static str> {
         Rule::search_eq => "`= value`",
         Rule::kw_largest | Rule::kw_smallest => "`largest` or `smallest`",
         Rule::kw_where => "`where`",
+        Rule::spread | Rule::kw_within | Rule::kw_among => "a tolerance `within …` or `among …`",
+        Rule::spread_angle | Rule::kw_angle => "`angle`",
+        Rule::spread_law | Rule::kw_normal | Rule::kw_uniform => "`normal Kσ` or `uniform`",
+        Rule::kw_sigma => "`σ` or `sigma`",
         _ => return None,
     })
 }

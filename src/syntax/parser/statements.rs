@@ -13,14 +13,22 @@ impl Cx<'_> {
                 let mut it = p.into_inner();
                 let name = self.ident(it.next().expect("name"));
                 let expr = self.expr_or_search(it.next().expect("expr"))?;
-                let display = match it.next() {
-                    Some(d) => {
+                let mut display = None;
+                let mut spread = None;
+                for d in it {
+                    if d.as_rule() == Rule::spread {
+                        spread = Some(self.spread(d)?);
+                    } else {
                         let u = d.into_inner().next().expect("unit");
-                        Some(self.unit(&u, false)?)
+                        display = Some(self.unit(&u, false)?);
                     }
-                    None => None,
-                };
-                Ok(StmtKind::Def(Definition { name, expr, display }))
+                }
+                Ok(StmtKind::Def(Definition {
+                    name,
+                    expr,
+                    display,
+                    spread,
+                }))
             }
             Rule::check => {
                 let mut it = p.into_inner().filter(|q| q.as_rule() != Rule::kw_check);
@@ -102,6 +110,57 @@ impl Cx<'_> {
                 goal,
             })),
             span,
+        })
+    }
+
+    /// `within …` or `among …` after an input's value.
+    fn spread(&self, p: Pair<Rule>) -> R<SpreadSpec> {
+        let span = self.span(&p);
+        let mut it = p.into_inner().peekable();
+        let head = it.next().expect("keyword");
+        if head.as_rule() == Rule::kw_among {
+            let values = it.map(|e| self.expr(e)).collect::<R<Vec<_>>>()?;
+            return Ok(SpreadSpec {
+                span,
+                form: SpreadForm::Among(values),
+            });
+        }
+        let (mut mag, mut angle, mut law) = (None, None, LawText::Uniform);
+        for q in it {
+            match q.as_rule() {
+                Rule::spread_band => mag = Some(self.band(q)?),
+                Rule::spread_angle => {
+                    let b = q.into_inner().find(|r| r.as_rule() == Rule::spread_band).expect("band");
+                    angle = Some(self.band(b)?);
+                }
+                Rule::spread_law => {
+                    let lspan = self.span(&q);
+                    let n = q.into_inner().find(|r| r.as_rule() == Rule::number);
+                    law = match n {
+                        Some(n) => LawText::Normal {
+                            k: n.as_str().parse::<f64>().unwrap_or(f64::NAN),
+                            span: lspan,
+                        },
+                        None => LawText::Uniform,
+                    };
+                }
+                r => unreachable!("spread part {r:?}"),
+            }
+        }
+        Ok(SpreadSpec {
+            span,
+            form: SpreadForm::Band { mag, angle, law },
+        })
+    }
+
+    fn band(&self, p: Pair<Rule>) -> R<BandText> {
+        let span = self.span(&p);
+        let mut ends = p.into_inner().map(|e| self.expr(e)).collect::<R<Vec<_>>>()?;
+        let hi = ends.pop().expect("band end");
+        Ok(BandText {
+            span,
+            lo: ends.pop(),
+            hi,
         })
     }
 
