@@ -9,11 +9,7 @@ use ohmsheet::engine::tolerance::{Band, Direction, Law, MagBand};
 use crate::common::{engine, errors, model, ohmsheet, value};
 
 fn code_of(src: &str) -> ErrorCode {
-    errors(src)
-        .into_iter()
-        .find(|d| d.is_error())
-        .expect("an error")
-        .code
+    errors(src).into_iter().find(|d| d.is_error()).expect("an error").code
 }
 
 #[test]
@@ -29,7 +25,10 @@ fn every_form_is_carried_to_the_model() {
          Vb = Vs * 2\n",
     );
     assert_eq!(m.spreads.len(), 7);
-    let s = |n: &str| m.spread_of(m.id(n).unwrap()).unwrap_or_else(|| panic!("{n} has a spread"));
+    let s = |n: &str| {
+        m.spread_of(m.id(n).unwrap())
+            .unwrap_or_else(|| panic!("{n} has a spread"))
+    };
     assert_eq!(s("Zt").mag, Some(MagBand::Relative(Band { lo: -0.075, hi: 0.075 })));
     assert_eq!(s("Zt").law, Law::Uniform);
     let qc = s("Qc").mag.unwrap().band();
@@ -83,29 +82,36 @@ fn a_tolerance_must_fit_the_input() {
     assert_eq!(code_of("V = 3 V within 2 % angle 5 V"), ErrorCode::ToleranceUnit);
     // A percentage is always of the value; the message names both kinds.
     let d = &errors("Qc = 600 kvar within 50 kW")[0];
-    assert!(d.message.contains("reactive power") && d.message.contains("real power"), "{}", d.message);
+    assert!(
+        d.message.contains("reactive power") && d.message.contains("real power"),
+        "{}",
+        d.message
+    );
 }
 
 #[test]
 fn bad_bands_are_refused_where_written() {
     for src in [
-        "P = 1 MW within 2 % angle 3°",              // a real power has no angle
-        "f = 50 Hz within 1 % angle 1°",             // nor has a frequency
-        "P = 1 MW within 2 % .. 5 %",                // the value outside its band
-        "P = 1 MW within -5 % .. -2 %",              // likewise
-        "P = 1 MW within 2 MW .. 5 %",               // mixed forms
-        "V = 3 V within -2 %",                       // a negative half-width
-        "V = 3 V within 4 V",                        // below zero magnitude
-        "V = 3 V within -120 % .. +10 %",            // likewise
-        "V = 3 V within 3 % normal 0σ",              // no spread of the law
-        "V = 3 V within -1 % .. 2 % normal 2σ",      // normal but lopsided
-        "V = 3 V within angle 200°",                 // a band over a whole turn
-        "x = 2\nV = 3 V within x * 1 V",             // a cell in a tolerance
+        "P = 1 MW within 2 % angle 3°",         // a real power has no angle
+        "f = 50 Hz within 1 % angle 1°",        // nor has a frequency
+        "P = 1 MW within 2 % .. 5 %",           // the value outside its band
+        "P = 1 MW within -5 % .. -2 %",         // likewise
+        "P = 1 MW within 2 MW .. 5 %",          // mixed forms
+        "V = 3 V within -2 %",                  // a negative half-width
+        "V = 3 V within 4 V",                   // below zero magnitude
+        "V = 3 V within -120 % .. +10 %",       // likewise
+        "V = 3 V within 3 % normal 0σ",         // no spread of the law
+        "V = 3 V within -1 % .. 2 % normal 2σ", // normal but lopsided
+        "V = 3 V within angle 200°",            // a band over a whole turn
+        "x = 2\nV = 3 V within x * 1 V",        // a cell in a tolerance
     ] {
         assert_eq!(code_of(src), ErrorCode::BadInputTolerance, "{src}");
     }
     // A listed value the language refuses anyway (var with j: issue 13).
-    assert_eq!(code_of("Q = 2 kvar among 2 kvar, (1 + j) kvar"), ErrorCode::KindMismatch);
+    assert_eq!(
+        code_of("Q = 2 kvar among 2 kvar, (1 + j) kvar"),
+        ErrorCode::KindMismatch
+    );
 }
 
 #[test]
@@ -113,13 +119,21 @@ fn only_inputs_have_tolerances() {
     let d = &errors("Vs = 3 V\nVb = Vs * 2 within 5 %")[0];
     assert_eq!(d.code, ErrorCode::ToleranceNotOnInput);
     // Located on the clause.
-    let m = ohmsheet::engine::compile(&ohmsheet::sheet::Sheet::from_text("t.ohm", "Vs = 3 V\nVb = Vs * 2 within 5 %"));
+    let m = ohmsheet::engine::compile(&ohmsheet::sheet::Sheet::from_text(
+        "t.ohm",
+        "Vs = 3 V\nVb = Vs * 2 within 5 %",
+    ));
     assert_eq!(m.sources.slice(d.span.unwrap()), "within 5 %");
 }
 
 #[test]
 fn malformed_tolerances_are_syntax_errors() {
-    for src in ["V = 3 V within", "V = 3 V within 5 % normal 3", "V = 3 V among 3 V", "V = 3 V within 5 % foo"] {
+    for src in [
+        "V = 3 V within",
+        "V = 3 V within 5 % normal 3",
+        "V = 3 V among 3 V",
+        "V = 3 V within 5 % foo",
+    ] {
         assert_eq!(code_of(src), ErrorCode::Syntax, "{src}");
     }
 }
@@ -130,10 +144,7 @@ fn set_keeps_the_sheets_tolerance_or_replaces_it() {
     let mut sheet = Sheet::from_text("t.ohm", "Qc = 600 kvar within 10 %\nI = Qc / 1 kV\n");
     sheet.set_override("Qc=700 kvar").unwrap();
     let m = ohmsheet::engine::compile(&sheet);
-    assert_eq!(
-        m.spreads[0].mag,
-        Some(MagBand::Relative(Band { lo: -0.1, hi: 0.1 }))
-    );
+    assert_eq!(m.spreads[0].mag, Some(MagBand::Relative(Band { lo: -0.1, hi: 0.1 })));
     let mut sheet = Sheet::from_text("t.ohm", "Qc = 600 kvar within 10 %\nI = Qc / 1 kV\n");
     sheet.set_override("Qc=700 kvar within 5 %").unwrap();
     let m = ohmsheet::engine::compile(&sheet);
@@ -149,7 +160,11 @@ fn set_keeps_the_sheets_tolerance_or_replaces_it() {
 fn run_shows_a_toleranced_sheet_as_before() {
     let dir = tempfile::tempdir().unwrap();
     let p = dir.path().join("t.ohm");
-    std::fs::write(&p, "Zt = 6 % within 7.5 %\nVs = 400 V within 5 % angle 2°\nI = Vs / 4 Ω\n").unwrap();
+    std::fs::write(
+        &p,
+        "Zt = 6 % within 7.5 %\nVs = 400 V within 5 % angle 2°\nI = Vs / 4 Ω\n",
+    )
+    .unwrap();
     ohmsheet()
         .arg("run")
         .arg(&p)

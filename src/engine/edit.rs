@@ -451,7 +451,9 @@ impl Engine {
             && m.dependents[i].is_empty()
             && m.cells[i].code.end as usize == m.program.code.len();
         if !last || m.spread_of(id).is_some() || !self.error_free() {
-            return Err(EditError::Recompile("not the last cell, still in use, or with a tolerance"));
+            return Err(EditError::Recompile(
+                "not the last cell, still in use, or with a tolerance",
+            ));
         }
         let m = &mut self.model;
         let cell = m.cells.pop().expect("checked");

@@ -216,7 +216,7 @@ mod tests {
     fn sp(mag: Option<MagBand>, angle: Option<Band>, law: Law) -> Spread {
         Spread {
             cell: 0,
-            span: Span::new(0, 0, 0),
+            span: Span::new(crate::diag::FileId(0), 0, 0),
             mag,
             angle,
             law,
@@ -226,7 +226,11 @@ mod tests {
     #[test]
     fn offsets_scale_the_magnitude_and_turn_the_angle() {
         let b = Band { lo: -0.1, hi: 0.1 };
-        let s = sp(Some(MagBand::Relative(b)), Some(Band { lo: -0.1, hi: 0.1 }), Law::Uniform);
+        let s = sp(
+            Some(MagBand::Relative(b)),
+            Some(Band { lo: -0.1, hi: 0.1 }),
+            Law::Uniform,
+        );
         let v = s.value(C64::from_polar(10.0, 0.3), 0.1, -0.05, 0);
         assert!((v.norm() - 11.0).abs() < 1e-12);
         assert!((v.arg() - 0.25).abs() < 1e-12);

@@ -155,9 +155,9 @@ pub enum SpreadForm {
     /// `within 20 % normal 2σ`.
     Band {
         /// On the magnitude (or the real value).
-        mag: Option<BandText>,
+        mag: Option<Box<BandText>>,
         /// On the angle of a phasor.
-        angle: Option<BandText>,
+        angle: Option<Box<BandText>>,
         law: LawText,
     },
     /// `among 450 kvar, 600 kvar, 750 kvar`: one of the listed values.

@@ -485,7 +485,10 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                             Diagnostic::error(
                                 ErrorCode::ToleranceNotOnInput,
                                 spec.span,
-                                format!("`{}` is computed from other cells; only an input can have a tolerance", cell.name),
+                                format!(
+                                    "`{}` is computed from other cells; only an input can have a tolerance",
+                                    cell.name
+                                ),
                             )
                             .with_label("a tolerance on a formula")
                             .with_hint("put the tolerance on the inputs this cell is computed from"),

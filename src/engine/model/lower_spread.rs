@@ -21,7 +21,7 @@ impl Lowerer<'_> {
                 let mut vs = Vec::with_capacity(values.len());
                 for e in values {
                     let (v, vq) = self.spread_constant(e)?;
-                    if !fits_input(q, vq) && !(v == C64::new(0.0, 0.0) && vq == Quantity::PLAIN) {
+                    if !(fits_input(q, vq) || v == C64::new(0.0, 0.0) && vq == Quantity::PLAIN) {
                         return Err(self.unit_clash(cell, q, vq, e.span));
                     }
                     if !(v.re.is_finite() && v.im.is_finite()) {
@@ -65,8 +65,10 @@ impl Lowerer<'_> {
                     LawText::Uniform => Law::Uniform,
                     LawText::Normal { k, span } => {
                         if !(k.is_finite() && *k > 0.0) {
-                            return Err(bad(*span, "the coverage factor of `normal` must be more than zero".into())
-                                .with_hint("`normal 3σ`: the tolerance is three standard deviations"));
+                            return Err(
+                                bad(*span, "the coverage factor of `normal` must be more than zero".into())
+                                    .with_hint("`normal 3σ`: the tolerance is three standard deviations"),
+                            );
                         }
                         let asym = mag.is_some_and(|m| !m.band().symmetric()) || angle.is_some_and(|a| !a.symmetric());
                         if asym {
@@ -156,7 +158,7 @@ impl Lowerer<'_> {
         for e in b.lo.iter().chain(std::iter::once(&b.hi)) {
             let (v, q) = self.spread_constant(e)?;
             let zero = v == C64::new(0.0, 0.0) && q == Quantity::PLAIN;
-            if !zero && !(q.kind == Kind::Angle && q.dim.is_none()) {
+            if !(zero || q.kind == Kind::Angle && q.dim.is_none()) {
                 return Err(Diagnostic::error(
                     ErrorCode::ToleranceUnit,
                     e.span,

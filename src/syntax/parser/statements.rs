@@ -128,10 +128,10 @@ impl Cx<'_> {
         let (mut mag, mut angle, mut law) = (None, None, LawText::Uniform);
         for q in it {
             match q.as_rule() {
-                Rule::spread_band => mag = Some(self.band(q)?),
+                Rule::spread_band => mag = Some(Box::new(self.band(q)?)),
                 Rule::spread_angle => {
                     let b = q.into_inner().find(|r| r.as_rule() == Rule::spread_band).expect("band");
-                    angle = Some(self.band(b)?);
+                    angle = Some(Box::new(self.band(b)?));
                 }
                 Rule::spread_law => {
                     let lspan = self.span(&q);
