@@ -41,6 +41,8 @@ fn energised_equipment_sheets_carry_the_caution() {
         "beacon-antenna-match.ohm",
         "export-line-ferranti.ohm",
         "sawmill-bank-fault-duty.ohm",
+        "harbour-vhf-feeder.ohm",
+        "quarry-crusher-feeder.ohm",
         "plant-bus-two-sources.ohm",
     ] {
         let text = std::fs::read_to_string(repo(&format!("sheets-demo/{name}"))).unwrap();

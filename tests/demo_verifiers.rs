@@ -3,6 +3,15 @@
 //! with Python (cmath or numpy, not from ohmsheet) and, run with `--json`, prints
 //! {cell: [re, im]} in SI units; every cell it names must agree with
 //! ohmsheet's value for the sheet. (demos.rs runs the sheets' own checks.)
+//!
+//! Every verifier in sheets-demo/verify/ is run here: those with a
+//! `--json` mode are compared value by value (`PAIRS`); the older ones,
+//! which print their values for a reader, must run to the end without an
+//! error (`RUN_ONLY`). Python with numpy and mpmath is an outside program
+//! (tests/common/outside.rs): under CI=true a missing one fails the tests,
+//! elsewhere they are skipped and the skip is shown.
+
+use std::path::PathBuf;
 
 use num_complex::Complex64 as C64;
 
@@ -12,20 +21,51 @@ use crate::common::{close, engine, repo, value};
 const PAIRS: &[(&str, &str)] = &[
     ("export-line-ferranti.ohm", "export_line.py"),
     ("plant-bus-two-sources.ohm", "plant_bus.py"),
+    ("sawmill-bank-fault-duty.ohm", "sawmill.py"),
+    ("harbour-vhf-feeder.ohm", "harbour_vhf.py"),
+    ("quarry-crusher-feeder.ohm", "quarry.py"),
 ];
 
-fn verifier_values(script: &str) -> Vec<(String, C64)> {
-    let out = std::process::Command::new("python3")
-        .arg(repo(&format!("sheets-demo/verify/{script}")))
-        .arg("--json")
-        .output()
-        .expect("python3 runs the demo verifiers (it is needed for the test suite)");
+/// (sheet, verifier) pairs whose verifier prints its values for a reader
+/// (no `--json` mode): it must run to the end and print them.
+const RUN_ONLY: &[(&str, &str)] = &[
+    ("beacon-antenna-match.ohm", "beacon.py"),
+    ("unbalanced-cold-store.ohm", "cold_store.py"),
+    ("pf-correction-feed-mill.ohm", "feed_mill.py"),
+    ("induction-heater-match.ohm", "forge.py"),
+    ("motor-bus-thevenin.ohm", "motor_bus.py"),
+    ("pump-feeder-p3.ohm", "pump_feeder_p3.py"),
+    ("rural-feeder-capacitor.ohm", "rural_line.py"),
+    ("station-max-power.ohm", "station_max_power.py"),
+];
+
+/// Helpers the verifiers import, not verifiers themselves.
+const HELPERS: &[&str] = &["formulas.py"];
+
+/// Python 3 with numpy and mpmath, or `None` (the skip recorded) outside CI.
+fn python(test: &str) -> Option<PathBuf> {
+    crate::common::outside::need_python(test, &["numpy", "mpmath"])
+}
+
+fn run_verifier(py: &PathBuf, script: &str, json: bool) -> Vec<u8> {
+    let mut cmd = std::process::Command::new(py);
+    cmd.arg(repo(&format!("sheets-demo/verify/{script}")));
+    if json {
+        cmd.arg("--json");
+    }
+    let out = cmd.output().expect("python runs");
     assert!(
         out.status.success(),
-        "{script} failed:\n{}",
+        "{script} failed ({}):\n{}",
+        out.status,
         String::from_utf8_lossy(&out.stderr)
     );
-    let map: serde_json::Map<String, serde_json::Value> = serde_json::from_slice(&out.stdout).expect("json");
+    out.stdout
+}
+
+fn verifier_values(py: &PathBuf, script: &str) -> Vec<(String, C64)> {
+    let out = run_verifier(py, script, true);
+    let map: serde_json::Map<String, serde_json::Value> = serde_json::from_slice(&out).expect("json");
     map.into_iter()
         .map(|(k, v)| {
             let re = v[0].as_f64().expect("re");
@@ -37,10 +77,13 @@ fn verifier_values(script: &str) -> Vec<(String, C64)> {
 
 #[test]
 fn demo_sheets_agree_with_their_verifiers() {
+    let Some(py) = python("demo_verifiers::demo_sheets_agree_with_their_verifiers") else {
+        return;
+    };
     for (sheet, script) in PAIRS {
         let text = std::fs::read_to_string(repo(&format!("sheets-demo/{sheet}"))).unwrap();
         let e = engine(&text);
-        let want = verifier_values(script);
+        let want = verifier_values(&py, script);
         assert!(want.len() >= 5, "{script} gave {} values", want.len());
         let mut bad = Vec::new();
         for (name, w) in &want {
@@ -51,4 +94,67 @@ fn demo_sheets_agree_with_their_verifiers() {
         }
         assert!(bad.is_empty(), "{}", bad.join("\n"));
     }
+}
+
+#[test]
+fn the_older_verifiers_run_to_the_end() {
+    let Some(py) = python("demo_verifiers::the_older_verifiers_run_to_the_end") else {
+        return;
+    };
+    for (_, script) in RUN_ONLY {
+        let out = run_verifier(&py, script, false);
+        let text = String::from_utf8(out).expect("UTF-8");
+        assert!(
+            text.chars().any(|c| c.is_ascii_digit()),
+            "{script} printed no values:\n{text}"
+        );
+    }
+}
+
+/// No verifier is left out, and each names a demo sheet that exists.
+#[test]
+fn every_verifier_is_run_by_the_tests() {
+    let mut listed: Vec<&str> = PAIRS.iter().chain(RUN_ONLY).map(|p| p.1).collect();
+    listed.extend(HELPERS);
+    for entry in std::fs::read_dir(repo("sheets-demo/verify")).unwrap() {
+        let name = entry.unwrap().file_name().to_string_lossy().to_string();
+        if name.ends_with(".py") {
+            assert!(
+                listed.contains(&name.as_str()),
+                "{name} is run by no test: add it to PAIRS or RUN_ONLY"
+            );
+        }
+    }
+    for (sheet, script) in PAIRS.iter().chain(RUN_ONLY) {
+        assert!(repo(&format!("sheets-demo/{sheet}")).is_file(), "{sheet} ({script})");
+        let text = std::fs::read_to_string(repo(&format!("sheets-demo/verify/{script}"))).unwrap();
+        assert!(
+            text.contains(&format!("sheets-demo/{sheet}")),
+            "{script} does not name {sheet}"
+        );
+    }
+}
+
+/// Every function issue 14 added is used in a demo sheet whose verifier
+/// is compared value by value (`PAIRS`).
+#[test]
+fn every_practitioner_function_is_in_a_verified_demo() {
+    let sheets: Vec<String> = PAIRS
+        .iter()
+        .map(|(s, _)| std::fs::read_to_string(repo(&format!("sheets-demo/{s}"))).unwrap())
+        .collect();
+    for name in crate::functions::PRACTITIONER_FUNCTIONS {
+        let call = format!("{name}(");
+        let used = sheets.iter().any(|t| {
+            t.lines().filter(|l| !l.trim_start().starts_with('#')).any(|l| {
+                l.match_indices(&call)
+                    .any(|(i, _)| i == 0 || !is_name_char(l.as_bytes()[i - 1]))
+            })
+        });
+        assert!(used, "{name} is used in no demo sheet with a --json verifier");
+    }
+}
+
+fn is_name_char(b: u8) -> bool {
+    b.is_ascii_alphanumeric() || b == b'_'
 }

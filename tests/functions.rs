@@ -878,6 +878,8 @@ fn block_evaluator_agrees_on_the_function_demos() {
         "beacon-antenna-match.ohm",
         "export-line-ferranti.ohm",
         "sawmill-bank-fault-duty.ohm",
+        "harbour-vhf-feeder.ohm",
+        "quarry-crusher-feeder.ohm",
         "plant-bus-two-sources.ohm",
     ] {
         let text = std::fs::read_to_string(crate::common::repo(&format!("sheets-demo/{name}"))).unwrap();

@@ -9,9 +9,15 @@ at the angle atan(X/R) for a nameplate, V²/S_sc for the source, referred
 by (V2/V1)²; IEC 60909-0: Ik" = c·Un/(√3·|Zk|), κ = 1.02 + 0.98·e^(−3R/X),
 ip = κ·√2·Ik" (from memory); the unsymmetrical faults by a phase-domain
 solve (Thevenin matrix A·diag(Z0, Z1, Z2)·A⁻¹ and the fault's
-constraints), not by sequence-network formulas; h = √(S_sc/Q_c)."""
+constraints), not by sequence-network formulas; h = √(S_sc/Q_c).
+
+Prints the values the sheet's `check` lines record; with `--json`, the
+values as {cell: [re, im]} in SI units, which tests/demo_verifiers.rs
+compares with ohmsheet's results for the sheet."""
 import cmath
+import json
 import math
+import sys
 
 import numpy as np
 
@@ -75,14 +81,44 @@ def sawmill():
     ip_duty = kappa * math.sqrt(2) * i_duty
     s_sc = v_lv**2 / abs(z1)
     h = math.sqrt(s_sc / q_bank)
-    print(f"Q_need = {q_need / 1e3:.7g} kvar, Q_bank = {q_bank / 1e3:.7g} kvar, pf_after = {pf_after:.7g}")
-    print(f"C_bank = {c_bank * 1e6:.7g} µF, |S_after| = {abs(s_after) / 1e3:.7g} kVA, S_tx = {s_tx / 1e3:.7g} kVA")
-    print(f"Z_q = {zq:.7g} Ω, Z_t = {zt:.7g} Ω, Z1 = {z1:.7g} Ω")
-    print(f"Ik = {ik / 1e3:.7g} kA, kappa = {kappa:.7g}, ip = {ip / 1e3:.7g} kA")
-    print(f"I_slg = {i_slg / 1e3:.7g} kA, I_ll = {i_ll / 1e3:.7g} kA, I_dlg_ground = {i_dlg_ground / 1e3:.7g} kA")
-    print(f"I_duty = {i_duty / 1e3:.7g} kA, ip_duty = {ip_duty / 1e3:.7g} kA")
-    print(f"S_sc = {s_sc / 1e6:.7g} MVA, h = {h:.7g}, within 10 % of the 5th: {abs(h / 5 - 1) < 0.1}, of the 7th: {abs(h / 7 - 1) < 0.1}")
+    return {
+        "Q_need": q_need,
+        "Q_bank": q_bank,
+        "pf_after": pf_after,
+        "C_bank": c_bank,
+        "S_after": abs(s_after),
+        "S_tx": s_tx,
+        "Z_q": zq,
+        "Z_t": zt,
+        "Z1": z1,
+        "k3.Ik": ik,
+        "k3.kappa": kappa,
+        "k3.ip": ip,
+        "I_slg": i_slg,
+        "I_ll": i_ll,
+        "I_dlg_ground": i_dlg_ground,
+        "I_duty": i_duty,
+        "ip_duty": ip_duty,
+        "S_sc": s_sc,
+        "h": h,
+        "near_5th": 1.0 if abs(h / 5 - 1) < 0.1 else 0.0,
+        "near_7th": 1.0 if abs(h / 7 - 1) < 0.1 else 0.0,
+    }
+
+
+def show(r):
+    print(f"Q_need = {r['Q_need'] / 1e3:.7g} kvar, Q_bank = {r['Q_bank'] / 1e3:.7g} kvar, pf_after = {r['pf_after']:.7g}")
+    print(f"C_bank = {r['C_bank'] * 1e6:.7g} µF, |S_after| = {r['S_after'] / 1e3:.7g} kVA, S_tx = {r['S_tx'] / 1e3:.7g} kVA")
+    print(f"Z_q = {r['Z_q']:.7g} Ω, Z_t = {r['Z_t']:.7g} Ω, Z1 = {r['Z1']:.7g} Ω")
+    print(f"Ik = {r['k3.Ik'] / 1e3:.7g} kA, kappa = {r['k3.kappa']:.7g}, ip = {r['k3.ip'] / 1e3:.7g} kA")
+    print(f"I_slg = {r['I_slg'] / 1e3:.7g} kA, I_ll = {r['I_ll'] / 1e3:.7g} kA, I_dlg_ground = {r['I_dlg_ground'] / 1e3:.7g} kA")
+    print(f"I_duty = {r['I_duty'] / 1e3:.7g} kA, ip_duty = {r['ip_duty'] / 1e3:.7g} kA")
+    print(f"S_sc = {r['S_sc'] / 1e6:.7g} MVA, h = {r['h']:.7g}, within 10 % of the 5th: {bool(r['near_5th'])}, of the 7th: {bool(r['near_7th'])}")
 
 
 if __name__ == "__main__":
-    sawmill()
+    r = sawmill()
+    if "--json" in sys.argv:
+        print(json.dumps({k: [complex(v).real, complex(v).imag] for k, v in r.items()}))
+    else:
+        show(r)

@@ -69,12 +69,34 @@ extern "C" fn summary() {
     }
 }
 
+/// Python 3 with the modules `modules` (numpy, mpmath), for the tests that
+/// run the verifier and reference scripts. `OHMSHEET_PYTHON` names another
+/// interpreter. A python without one of the modules counts as missing:
+/// under CI the test fails, elsewhere it is skipped and the skip shown.
+pub fn need_python(test: &str, modules: &[&str]) -> Option<PathBuf> {
+    const ENV: &str = "OHMSHEET_PYTHON";
+    let found = find(&["python3"], ENV).filter(|p| {
+        let import = format!("import {}", modules.join(", "));
+        std::process::Command::new(p)
+            .args(["-c", &import])
+            .output()
+            .is_ok_and(|o| o.status.success())
+    });
+    let what = format!("python3 with {}", modules.join(" and "));
+    settle(test, &what, found, ENV, "apt-get install python3-numpy python3-mpmath")
+}
+
 /// The program a test needs (`what`: e.g. "Chromium"; `names`: the
 /// commands to look for; `env_override`: a variable naming it; `how`: how
 /// to install it). `None` means the test is skipped, and the skip has been
 /// recorded and shown; under CI a missing program panics.
 pub fn need(test: &str, what: &str, names: &[&str], env_override: &str, how: &str) -> Option<PathBuf> {
-    let found = find(names, env_override);
+    settle(test, what, find(names, env_override), env_override, how)
+}
+
+/// Run, fail (under CI) or skip and record the skip, for a program found
+/// or not.
+fn settle(test: &str, what: &str, found: Option<PathBuf>, env_override: &str, how: &str) -> Option<PathBuf> {
     match decide(found, std::env::var("CI").ok().as_deref()) {
         Outcome::Run(p) => Some(p),
         Outcome::Fail => panic!(
