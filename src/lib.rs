@@ -6,6 +6,7 @@
 // `std` feature (see Cargo.toml).
 extern crate alloc;
 
+pub mod analysis;
 pub mod batch;
 pub mod cli;
 pub mod diag;
@@ -13,6 +14,7 @@ pub mod engine;
 pub mod fsutil;
 pub mod funcs;
 pub mod harness;
+pub mod lsp;
 pub mod network;
 pub mod output;
 pub mod plot;

@@ -37,6 +37,10 @@ pub const MAX_INCLUDED_FILES: usize = 256;
 pub struct LoadOptions {
     /// Folders outside the sheet's own tree that `@include` may read from.
     pub allow_dirs: Vec<PathBuf>,
+    /// Texts to read in place of files, by canonical path: an editor's
+    /// unsaved buffers (the language server). The confinement rules are
+    /// the same; a buffer is read instead of the file's bytes.
+    pub buffers: HashMap<PathBuf, String>,
 }
 
 /// One file of a sheet: the main file first, then each included file in
@@ -195,6 +199,62 @@ impl Sheet {
             Ok(text) => {
                 let canonical =
                     std::fs::canonicalize(path).map_err(|e| io_err(format!("cannot read `{name}`: {e}")))?;
+                Sheet::load_decoded(path, canonical, text, &bytes, opts)
+            }
+            Err((at, good)) => {
+                let mut sources = SourceMap::new();
+                let id = sources.add(SourceFile::new(&name, Some(path.to_path_buf()), good.clone()));
+                let d = Diagnostic::error(
+                    ErrorCode::NotUtf8,
+                    Span::new(id, at, at),
+                    format!("`{name}` is not UTF-8 text (bad byte at offset {at})"),
+                )
+                .with_label("the text stops making sense here")
+                .with_hint("sheets are plain UTF-8 text; save the file as UTF-8");
+                Err(Box::new(LoadError { sources, diagnostic: d }))
+            }
+        }
+    }
+
+    /// A sheet whose main file's text is given (an editor's buffer) rather
+    /// than read: its includes are found from `path`'s folder under the
+    /// same rules as `load_with` (and read from `opts.buffers` first). A
+    /// path not on disk yet (a new, unsaved file) is judged by its folder.
+    pub fn load_buffer(path: &Path, text: &str, opts: &LoadOptions) -> Result<Sheet, Box<LoadError>> {
+        let name = path.display().to_string();
+        let canonical = std::fs::canonicalize(path).or_else(|e| {
+            match (path.parent().map(std::fs::canonicalize), path.file_name()) {
+                (Some(Ok(dir)), Some(f)) => Ok(dir.join(f)),
+                _ => Err(e),
+            }
+        });
+        let canonical = canonical.map_err(|e| {
+            Box::new(LoadError {
+                sources: SourceMap::new(),
+                diagnostic: Diagnostic::unplaced(ErrorCode::Io, format!("cannot read `{name}`: {e}")),
+            })
+        })?;
+        let text = text.strip_prefix('\u{FEFF}').unwrap_or(text).to_string();
+        let bytes = text.clone().into_bytes();
+        Sheet::load_decoded(path, canonical, text, &bytes, opts)
+    }
+
+    fn load_decoded(
+        path: &Path,
+        canonical: PathBuf,
+        text: String,
+        bytes: &[u8],
+        opts: &LoadOptions,
+    ) -> Result<Sheet, Box<LoadError>> {
+        let name = path.display().to_string();
+        let io_err = |msg: String| {
+            Box::new(LoadError {
+                sources: SourceMap::new(),
+                diagnostic: Diagnostic::unplaced(ErrorCode::Io, msg),
+            })
+        };
+        {
+            {
                 let root = canonical.parent().map(Path::to_path_buf).unwrap_or_default();
                 let mut allowed = vec![root.clone()];
                 for d in &opts.allow_dirs {
@@ -216,7 +276,7 @@ impl Sheet {
                         id: main,
                         rel: file_name,
                         canonical: Some(canonical.clone()),
-                        sha256: Sha256::digest(&bytes).into(),
+                        sha256: Sha256::digest(bytes).into(),
                         len: bytes.len() as u64,
                         meta: Vec::new(),
                         included_at: None,
@@ -228,6 +288,7 @@ impl Sheet {
                     amplitudes: Vec::new(),
                     local: Vec::new(),
                     overrides: Vec::new(),
+                    buffers: &opts.buffers,
                 };
                 ld.file(0, &mut vec![canonical]);
                 ld.finish();
@@ -240,18 +301,6 @@ impl Sheet {
                     files: ld.files,
                     overrides: ld.overrides,
                 })
-            }
-            Err((at, good)) => {
-                let mut sources = SourceMap::new();
-                let id = sources.add(SourceFile::new(&name, Some(path.to_path_buf()), good.clone()));
-                let d = Diagnostic::error(
-                    ErrorCode::NotUtf8,
-                    Span::new(id, at, at),
-                    format!("`{name}` is not UTF-8 text (bad byte at offset {at})"),
-                )
-                .with_label("the text stops making sense here")
-                .with_hint("sheets are plain UTF-8 text; save the file as UTF-8");
-                Err(Box::new(LoadError { sources, diagnostic: d }))
             }
         }
     }
@@ -363,7 +412,7 @@ impl Sheet {
 }
 
 /// Reads a main file and, depth first, the files it includes.
-struct Loader {
+struct Loader<'o> {
     sources: SourceMap,
     files: Vec<SheetFile>,
     stmts: Vec<Stmt>,
@@ -380,9 +429,11 @@ struct Loader {
     local: Vec<(Stmt, Span)>,
     /// The library values replaced by `@override` lines.
     overrides: Vec<Override>,
+    /// Texts read in place of files (`LoadOptions::buffers`).
+    buffers: &'o HashMap<PathBuf, String>,
 }
 
-impl Loader {
+impl Loader<'_> {
     /// Merge the statements of `files[idx]`; `stack` holds the canonical
     /// paths of the files that include it (itself last).
     fn file(&mut self, idx: usize, stack: &mut Vec<PathBuf>) {
@@ -466,6 +517,8 @@ impl Loader {
         let joined = base.join(p);
         let canon = match std::fs::canonicalize(&joined) {
             Ok(c) => c,
+            // An unsaved buffer not on disk yet.
+            Err(_) if self.buffers.contains_key(&normalize(&joined)) => normalize(&joined),
             Err(e) => {
                 let d = if e.kind() == std::io::ErrorKind::NotFound {
                     err(ErrorCode::IncludePath, format!("cannot find `{written}`"))
@@ -509,7 +562,7 @@ impl Loader {
             ));
             return;
         }
-        if !canon.is_file() {
+        if !canon.is_file() && !self.buffers.contains_key(&canon) {
             self.errors.push(
                 err(ErrorCode::IncludePath, format!("`{written}` is not a file"))
                     .with_label("a library sheet must be a .ohm file"),
@@ -542,7 +595,11 @@ impl Loader {
             ));
             return;
         }
-        let bytes = match std::fs::read(&canon) {
+        let read = match self.buffers.get(&canon) {
+            Some(t) => Ok(t.clone().into_bytes()),
+            None => std::fs::read(&canon),
+        };
+        let bytes = match read {
             Ok(b) => b,
             Err(e) => {
                 self.errors

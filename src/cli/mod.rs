@@ -112,6 +112,22 @@ ohmsheet functions | grep -A1 par")]
 ohmsheet units\n  \
 ohmsheet units | tr -s ' ' '\\n' | grep -x 'kvar'")]
     Units,
+    /// Serve sheets to an editor: a language server over standard input and output (see docs/editors.md)
+    #[command(
+        after_help = "Started by the editor, not by hand: the editor speaks the Language Server\n\
+Protocol on the program's standard input and output. Settings (rect or polar, digits) come\n\
+from the editor; docs/editors.md shows the setup for common editors.\n\n\
+Examples:\n  \
+ohmsheet lsp\n  \
+ohmsheet lsp --allow-dir ../lib"
+    )]
+    Lsp(LspArgs),
+}
+
+#[derive(Args, Debug)]
+pub struct LspArgs {
+    #[command(flatten)]
+    pub load: LoadArgs,
 }
 
 #[derive(Args, Debug)]
@@ -146,6 +162,7 @@ impl LoadArgs {
     pub fn options(&self) -> LoadOptions {
         LoadOptions {
             allow_dirs: self.allow_dir.clone(),
+            ..LoadOptions::default()
         }
     }
 }
@@ -263,6 +280,7 @@ pub fn main_with(args: Vec<OsString>) -> i32 {
             out!("{}", run::units_listing());
             EXIT_OK
         }
+        Command::Lsp(a) => crate::lsp::run(a.load.allow_dir),
     }
 }
 

@@ -42,7 +42,7 @@ pub(super) fn parse(text: &str, st: &Stmt, d: &Directive) -> Result<Stmt, Diagno
     }
 }
 
-impl Loader {
+impl Loader<'_> {
     /// Put each `@override` line's definition in place of the library's,
     /// or report why it cannot be.
     pub(super) fn apply_local_overrides(&mut self) {

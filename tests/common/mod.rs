@@ -3,6 +3,7 @@
 
 use std::path::PathBuf;
 
+pub mod lsp;
 pub mod outside;
 
 use num_complex::Complex64 as C64;
