@@ -139,7 +139,7 @@ def main():
                 log(f"end to end, ohmsheet batch ({name}), run {rep + 1}")
                 if os.path.exists(results):
                     os.remove(results)
-                wall, cpu, rss = run_child([b["ohmsheet"], "batch", sheet, "--cases", cases, "--out", results, "-q"])
+                wall, cpu, rss = run_child([b["ohmsheet"], "batch", sheet, "--cases", cases, "--out", results, "--complex", "rect", "-q"])
                 e2e[name][0].append(wall * 1e9 / args.cases)
                 e2e[name][1].append(cpu * 1e9 / args.cases)
                 peak[name] = max(peak.get(name, 0), rss)
@@ -150,7 +150,7 @@ def main():
                     # does not change (see docs/performance.md).
                     os.remove(results)
                     env = dict(os.environ, RAYON_NUM_THREADS="1")
-                    wall, cpu, _ = run_child([b["ohmsheet"], "batch", sheet, "--cases", cases, "--out", results, "-q"],
+                    wall, cpu, _ = run_child([b["ohmsheet"], "batch", sheet, "--cases", cases, "--out", results, "--complex", "rect", "-q"],
                                              env=env)
                     e2e["one thread"][0].append(wall * 1e9 / args.cases)
                     e2e["one thread"][1].append(cpu * 1e9 / args.cases)
@@ -187,9 +187,9 @@ def main():
             bigout = os.path.join(work, "big-results.csv")
             show = "I,Vload,pf_src,Vdrop"
             _, _, rss_small = run_child([b["ohmsheet"], "batch", sheet, "--cases", cases, "--out", bigout, "-q",
-                                         "--show", show])
+                                         "--show", show, "--complex", "rect"])
             wall, cpu, rss_big = run_child([b["ohmsheet"], "batch", sheet, "--cases", bigcases, "--out", bigout,
-                                            "-q", "--show", show])
+                                            "-q", "--show", show, "--complex", "rect"])
             big = (rss_small, rss_big, wall, show)
     finally:
         shutil.rmtree(work, ignore_errors=True)

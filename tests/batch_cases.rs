@@ -147,7 +147,12 @@ const TWO: &str =
 #[test]
 fn a_nan_cell_among_good_ones_is_marked_and_the_rest_written() {
     let dir = tempfile::tempdir().unwrap();
-    let (out, a) = batch(dir.path(), TWO, "V,R1 [Ω],R2 [Ω]\n120 V,10,5\n0 V,0,5\n", &[]);
+    let (out, a) = batch(
+        dir.path(),
+        TWO,
+        "V,R1 [Ω],R2 [Ω]\n120 V,10,5\n0 V,0,5\n",
+        &["--complex", "rect"],
+    );
     a.code(1).stderr(predicate::str::contains("1 bad row"));
     let rows = read_csv(&out);
     assert_eq!(

@@ -175,16 +175,25 @@ fn junit_escapes_what_xml_reserves() {
     assert_eq!(suite.attribute("name"), Some("a&b.ohm"));
 }
 
+/// `-o FILE` writes what would be printed, as for `run`: with the lines
+/// for people (`--format table`, the default) those lines.
 #[test]
-fn output_without_a_machine_format_is_refused() {
+fn output_with_the_table_format_writes_the_lines() {
     let d = folder(&[("a.ohm", GOOD)]);
+    let printed = ohmsheet()
+        .current_dir(d.path())
+        .args(["check", "a.ohm"])
+        .output()
+        .unwrap();
     ohmsheet()
         .current_dir(d.path())
         .args(["check", "a.ohm", "-o", "r.txt"])
         .assert()
-        .code(2)
-        .stderr(predicate::str::contains("needs a machine-readable --format"));
-    assert!(!d.path().join("r.txt").exists());
+        .code(0)
+        .stdout("");
+    let written = std::fs::read(d.path().join("r.txt")).unwrap();
+    assert_eq!(written, printed.stdout);
+    assert!(String::from_utf8(written).unwrap().contains("pass"));
 }
 
 #[test]

@@ -84,3 +84,33 @@ fn every_engineering_function_has_a_reference_case() {
         .collect();
     assert!(missing.is_empty(), "functions without a reference case: {missing:?}");
 }
+
+/// The committed vectors are what the committed generators print: run
+/// with mpmath (and numpy), each reproduces its JSON byte for byte, so no
+/// expected value was edited by hand or taken from ohmsheet's output.
+#[test]
+fn the_reference_vectors_are_what_their_generators_print() {
+    let test = "funcs_reference::the_reference_vectors_are_what_their_generators_print";
+    let Some(py) = crate::common::outside::need_python(test, &["numpy", "mpmath"]) else {
+        return;
+    };
+    for (script, json) in [
+        ("gen_funcs.py", "funcs_vectors.json"),
+        ("gen_vectors.py", "vectors.json"),
+    ] {
+        let out = std::process::Command::new(&py)
+            .arg(repo(&format!("tests/reference/{script}")))
+            .output()
+            .expect("python runs");
+        assert!(
+            out.status.success(),
+            "{script}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let committed = std::fs::read(repo(&format!("tests/reference/{json}"))).unwrap();
+        assert!(
+            out.stdout == committed,
+            "{script} no longer prints the committed {json}: regenerate it (DEVELOPERS.md)"
+        );
+    }
+}

@@ -95,6 +95,8 @@ fn a_sweep_marks_the_singular_point_with_its_reason() {
             "5",
             "--show",
             "It",
+            "--complex",
+            "polar",
             "--csv",
             "-",
         ])

@@ -146,15 +146,12 @@ fn sweep_format_and_output_equal_the_csv_and_json_shorthands() {
     run(&["--parts", "rect", "--format", "csv", "-o", "d.csv"]);
     assert_eq!(read(d.path(), "c.csv"), read(d.path(), "d.csv"));
     assert!(read(d.path(), "c.csv").lines().next().unwrap().contains("I.re"));
-    // The table cannot go to a file; the shorthands do not mix with --format.
+    // -o with the table writes the table, as run -o does; the shorthands
+    // do not mix with --format.
     let mut args: Vec<&str> = base.to_vec();
     args.extend_from_slice(&["-o", "t.txt"]);
-    ohmsheet()
-        .current_dir(d.path())
-        .args(&args)
-        .assert()
-        .code(2)
-        .stderr(predicate::str::contains("needs --format csv or --format json"));
+    ohmsheet().current_dir(d.path()).args(&args).assert().code(0).stdout("");
+    assert_eq!(read(d.path(), "t.txt"), stdout_of(d.path(), &base));
     let mut args: Vec<&str> = base.to_vec();
     args.extend_from_slice(&["--csv", "x.csv", "--format", "json"]);
     ohmsheet().current_dir(d.path()).args(&args).assert().code(2);
@@ -285,4 +282,199 @@ fn every_command_help_ends_with_examples() {
             assert!(l.trim().starts_with(&format!("ohmsheet {cmd}")), "{cmd}: {l}");
         }
     }
+}
+
+// ---- every subcommand × every output option (issue 15) ----
+//
+// One sheet for all: V = 10 V across Z = (3 + j4) Ω gives I = V/Z =
+// 1.2 − j1.6 A = 2 ∠ −53.13° A, and R = 3 Ω carries V/R = 3.333… A (Ohm's
+// law, worked by hand; atan(4/3) = 53.130102°, from memory).
+const CX: &str = "V = 10 V\nZ = (3 + j4) Ω\nR = 3 Ω\nI = V / Z\nIr = V / R\n\
+check I ~= V / Z +- 0.001%\ncheck Ir ~= 10 V / 3 Ω +- 0.001%\n";
+
+/// The commands that write values, each with the arguments that make it
+/// run on `CX` (batch over a one-row cases table; sweep over 3 points; solve
+/// for the R that brings Ir to 3 A, R = 10/3 Ω = 3.333… Ω).
+fn commands() -> Vec<(&'static str, Vec<&'static str>)> {
+    vec![
+        ("run", vec!["run", "s.ohm"]),
+        ("report", vec!["report", "s.ohm", "--format", "md"]),
+        (
+            "sweep",
+            vec![
+                "sweep",
+                "s.ohm",
+                "--vary",
+                "R=3Ω..5Ω",
+                "--points",
+                "3",
+                "--show",
+                "I,Ir",
+            ],
+        ),
+        ("solve", vec!["solve", "s.ohm", "--vary", "R=1Ω..10Ω"]),
+        ("batch", vec!["batch", "s.ohm", "--cases", "c.csv", "--show", "I,Ir"]),
+        ("check", vec!["check", "s.ohm"]),
+    ]
+}
+
+fn cx_folder() -> tempfile::TempDir {
+    folder(&[("s.ohm", CX), ("c.csv", "R [Ω]\n3\n")])
+}
+
+/// Run `args` (`-o out` appended for batch, which needs a file); the text
+/// written, from standard output or the file.
+fn written(d: &Path, cmd: &str, args: &[&str]) -> String {
+    let mut a: Vec<&str> = args.to_vec();
+    if cmd == "solve" {
+        a.extend_from_slice(&["--target", "Ir = 3 A"]);
+    }
+    if cmd == "batch" && !a.contains(&"-o") {
+        a.extend_from_slice(&["-o", "batch.csv"]);
+        stdout_of(d, &a);
+        return read(d, "batch.csv");
+    }
+    stdout_of(d, &a)
+}
+
+#[test]
+fn every_command_takes_every_output_option_with_the_same_defaults() {
+    let d = cx_folder();
+    let formats: &[(&str, &[&str])] = &[
+        ("run", &["table", "json", "csv"]),
+        ("report", &["md", "html", "json"]),
+        ("sweep", &["table", "csv", "json"]),
+        ("solve", &["table", "json"]),
+        ("batch", &["csv"]),
+        ("check", &["table", "text", "json", "junit"]),
+    ];
+    for (cmd, base) in commands() {
+        let opts = |extra: &[&'static str]| {
+            let mut a = base.clone();
+            a.extend_from_slice(extra);
+            a
+        };
+        // The same defaults: nothing said is --digits 4 --complex both
+        // (batch writes numbers, in full unless --digits is given).
+        let plain = written(d.path(), cmd, &base);
+        let defaults: &[&str] = if cmd == "batch" {
+            &["--complex", "both"]
+        } else {
+            &["--digits", "4", "--complex", "both"]
+        };
+        let said = written(d.path(), cmd, &opts(defaults));
+        assert_eq!(plain, said, "{cmd}: the defaults are {defaults:?}");
+        // (a report's check table shows the digits its tolerance needs:
+        // --digits is about the values of the steps)
+        let values = |t: &str| -> String {
+            t.lines()
+                .filter(|l| cmd != "report" || !l.contains("check "))
+                .collect::<Vec<_>>()
+                .join("\n")
+        };
+        let plain = values(&plain);
+        if cmd == "batch" {
+            assert!(
+                plain.contains("3.3333333333333335"),
+                "batch writes numbers in full:\n{plain}"
+            );
+        } else {
+            assert!(
+                plain.contains("3.333") && !plain.contains("3.3333"),
+                "{cmd}: 4 digits:\n{plain}"
+            );
+        }
+
+        // --format: every value the command takes, and -o FILE / --output
+        // FILE write what would be printed.
+        let fs = formats.iter().find(|f| f.0 == cmd).unwrap().1;
+        for f in fs {
+            let mut a = base.clone();
+            if cmd == "report" {
+                a.truncate(2);
+            }
+            a.extend_from_slice(&["--format", f]);
+            let printed = written(d.path(), cmd, &a);
+            assert!(!printed.is_empty(), "{cmd} --format {f}");
+            for flag in ["-o", "--output"] {
+                let file = format!("{cmd}-{f}{flag}.out");
+                let mut b = a.clone();
+                b.extend_from_slice(&[flag, &file]);
+                if cmd == "solve" {
+                    b.extend_from_slice(&["--target", "Ir = 3 A"]);
+                }
+                let out = ohmsheet().current_dir(d.path()).args(&b).output().unwrap();
+                assert_eq!(
+                    out.status.code(),
+                    Some(0),
+                    "{b:?}: {}",
+                    String::from_utf8_lossy(&out.stderr)
+                );
+                let file_text = read(d.path(), &file);
+                if cmd == "check" && (*f == "table" || *f == "text") {
+                    // the lines for people go to the terminal; -o takes the
+                    // machine-readable forms
+                    continue;
+                }
+                if cmd != "check" {
+                    assert!(out.stdout.is_empty(), "{b:?} printed as well as writing");
+                }
+                assert_eq!(file_text, printed, "{b:?}");
+            }
+        }
+
+        // --digits: 3.333… A has as many digits as asked for.
+        let two = values(&written(d.path(), cmd, &opts(&["--digits", "2"])));
+        let seven = values(&written(d.path(), cmd, &opts(&["--digits", "7"])));
+        assert!(two.contains("3.3"), "{cmd} --digits 2:\n{two}");
+        assert!(!two.contains("3.33"), "{cmd} --digits 2:\n{two}");
+        assert!(seven.contains("3.333333"), "{cmd} --digits 7:\n{seven}");
+        assert!(!seven.contains("3.3333333"), "{cmd} --digits 7:\n{seven}");
+
+        // --complex: 1.2 − j1.6 A, 2 ∠ −53.13° A, or both.
+        if cmd == "solve" {
+            continue; // its answer, R, is real: checked apart below
+        }
+        let rect = written(d.path(), cmd, &opts(&["--complex", "rect"]));
+        let polar = written(d.path(), cmd, &opts(&["--complex", "polar"]));
+        let both = written(d.path(), cmd, &opts(&["--complex", "both"]));
+        type Has = fn(&str) -> bool;
+        let (has_rect, has_polar): (Has, Has) = if cmd == "batch" {
+            (
+                |t| t.contains("I.re [A]") && t.contains("1.2"),
+                |t| t.contains("I.mag [A]") && t.contains("-53.13010235415"),
+            )
+        } else if cmd == "sweep" || cmd == "check" {
+            (|t| t.contains("- j1.6"), |t| t.contains("∠ -53.13°"))
+        } else {
+            (|t| t.contains("1.2 - j1.6 A"), |t| t.contains("2 ∠ -53.13° A"))
+        };
+        assert!(has_rect(&rect) && !has_polar(&rect), "{cmd} --complex rect:\n{rect}");
+        assert!(
+            has_polar(&polar) && !has_rect(&polar),
+            "{cmd} --complex polar:\n{polar}"
+        );
+        assert!(has_rect(&both) && has_polar(&both), "{cmd} --complex both:\n{both}");
+    }
+}
+
+/// solve's answer is real; the complex value it reaches at its answer is
+/// shown in the form asked for: the smallest re(I·(1 + j)) over V from 1
+/// to 10 V is at 1 V, where I = 1 V/(3 + j4) Ω = 0.12 − j0.16 A and
+/// I·(1 + j) = 0.28 − j0.04 A, |…| = 0.2828 A at −atan(0.04/0.28) =
+/// −8.13° (worked by hand).
+#[test]
+fn solve_shows_a_complex_value_in_the_form_asked_for() {
+    let d = cx_folder();
+    let base = ["solve", "s.ohm", "--vary", "V=1V..10V", "--minimize", "I * (1 + j)"];
+    let run = |form: &str| {
+        let mut a = base.to_vec();
+        a.extend_from_slice(&["--complex", form]);
+        stdout_of(d.path(), &a)
+    };
+    let (rect, polar, both) = (run("rect"), run("polar"), run("both"));
+    assert!(rect.contains("280 - j40 mA") && !rect.contains('∠'), "{rect}");
+    assert!(polar.contains("282.8 ∠ -8.13° mA") && !polar.contains("j40"), "{polar}");
+    assert!(both.contains("280 - j40 mA = 282.8 ∠ -8.13° mA"), "{both}");
+    assert_eq!(both, stdout_of(d.path(), &base));
 }

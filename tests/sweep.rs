@@ -264,6 +264,8 @@ fn sweep_csv_has_units_in_headers_and_marks_undefined_points() {
             "5",
             "--show",
             "Vload,Zc",
+            "--complex",
+            "polar",
             "--csv",
             out.path().to_str().unwrap(),
         ])

@@ -36,13 +36,16 @@ use crate::funcs::Shape;
 use crate::units::format::base_symbol;
 use crate::units::{parse_unit_expr, Kind, Quantity, Unit, UnitError};
 
-/// How a complex value is written: two columns either way.
+/// How a complex value is written: two columns, or four for both.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum ComplexForm {
     /// Real and imaginary parts.
     Rect,
     /// Magnitude and angle in degrees.
     Polar,
+    /// Both pairs: real and imaginary parts, then magnitude and angle
+    /// (each complex value is shown twice, once in each form).
+    Both,
 }
 
 /// A column of the cases table: the input it sets.
@@ -82,6 +85,9 @@ pub struct Shown {
     /// The value does not depend on any column of the cases: its text,
     /// written once and copied into every row.
     pub fixed: Option<Vec<u8>>,
+    /// Its two columns: `Rect` or `Polar` (a plan in both forms shows a
+    /// complex value twice, once each way).
+    pub form: ComplexForm,
 }
 
 /// Columns in, columns out, and the compiled sheet.
@@ -455,15 +461,24 @@ impl Plan {
                 None if q.kind == Kind::Percent => (0.01, "%".to_string()),
                 None => (1.0, base_symbol(q)),
             };
-            shown.push(Shown {
-                label,
-                cell: id,
-                slot,
-                real: real[slot as usize],
-                scale,
-                unit,
-                fixed: None,
-            });
+            let is_real = real[slot as usize];
+            let forms = match form {
+                ComplexForm::Both if !is_real => vec![ComplexForm::Rect, ComplexForm::Polar],
+                ComplexForm::Both => vec![ComplexForm::Rect],
+                f => vec![f],
+            };
+            for f in forms {
+                shown.push(Shown {
+                    label: label.clone(),
+                    cell: id,
+                    slot,
+                    real: is_real,
+                    scale,
+                    unit: unit.clone(),
+                    fixed: None,
+                    form: f,
+                });
+            }
         };
         let fields = |id: CellId| match &m.cells[id as usize].shape {
             Some(Shape::Record(f)) => (0..f.len()).map(Some).collect(),
@@ -584,8 +599,8 @@ impl Plan {
                 h.push(with(s.label.clone(), &s.unit));
                 continue;
             }
-            match self.form {
-                ComplexForm::Rect => {
+            match s.form {
+                ComplexForm::Rect | ComplexForm::Both => {
                     h.push(with(format!("{}.re", s.label), &s.unit));
                     h.push(with(format!("{}.im", s.label), &s.unit));
                 }

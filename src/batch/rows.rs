@@ -301,8 +301,8 @@ impl Plan {
         if s.real {
             return (scaled(z.re), None);
         }
-        match self.form {
-            ComplexForm::Rect => (scaled(z.re), Some(scaled(z.im))),
+        match s.form {
+            ComplexForm::Rect | ComplexForm::Both => (scaled(z.re), Some(scaled(z.im))),
             ComplexForm::Polar => (scaled(ops::abs(z)), Some(ops::arg(z).to_degrees())),
         }
     }
@@ -388,6 +388,10 @@ impl Plan {
         let mut slots: Option<Vec<C64>> = None;
         let mut failed = Vec::new();
         for (s, _) in self.shown.iter().zip(&marks).filter(|(_, &bad)| bad) {
+            // a value shown in both forms is listed once
+            if failed.iter().any(|(label, _)| *label == s.label) {
+                continue;
+            }
             let z = b.get(s.slot, lane);
             if !z.re.is_nan() && !z.im.is_nan() {
                 failed.push((

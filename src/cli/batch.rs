@@ -68,6 +68,7 @@ pub fn batch(a: &BatchArgs) -> i32 {
     let form = match a.complex {
         ComplexArg::Rect => ComplexForm::Rect,
         ComplexArg::Polar => ComplexForm::Polar,
+        ComplexArg::Both => ComplexForm::Both,
     };
     let plan = match Plan::with_tags(Arc::new(model), &headers, &a.tag, a.show.as_deref(), form) {
         Ok(p) => Arc::new(p.with_digits(a.digits.map(usize::from))),

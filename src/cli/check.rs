@@ -29,11 +29,14 @@ pub struct CheckArgs {
     /// Significant digits shown
     #[arg(long, default_value_t = 4, value_parser = clap::value_parser!(u8).range(1..=15))]
     pub digits: u8,
-    /// Output format: text lines for people, or JSON or JUnit XML (read natively by CI systems)
-    #[arg(long, value_enum, default_value_t = CheckFormat::Text)]
+    /// Output format: lines for people (`table`; `text` also works), or JSON or JUnit XML (read natively by CI systems)
+    #[arg(long, value_enum, default_value_t = CheckFormat::Table)]
     pub format: CheckFormat,
-    /// Write the JSON or JUnit XML result to FILE (written whole, or not at all); the text lines
-    /// still go to the terminal
+    /// Computed and reference values as a + jb (rect), m ∠ θ (polar) or both
+    #[arg(long, value_enum, default_value_t = super::ComplexArg::Both)]
+    pub complex: super::ComplexArg,
+    /// Write the result to FILE (written whole, or not at all); with json or junit the lines for
+    /// people still go to the terminal
     #[arg(short = 'o', long = "output", value_name = "FILE")]
     pub output: Option<PathBuf>,
     #[command(flatten)]
@@ -43,7 +46,9 @@ pub struct CheckArgs {
 /// What `check` writes.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, clap::ValueEnum)]
 pub enum CheckFormat {
-    Text,
+    /// Lines for people (the name `text` of earlier versions also works)
+    #[value(alias = "text")]
+    Table,
     Json,
     Junit,
 }
@@ -144,10 +149,16 @@ pub fn check(a: &CheckArgs) -> i32 {
         eprintln!("error: {p}");
     }
     let opts = a.load.options();
-    // The lines for people go to stdout unless a machine format does.
-    let text = a.format == CheckFormat::Text || a.output.is_some();
-    let say = |line: String| {
-        if text {
+    // The lines for people go to stdout unless a machine format does; to
+    // FILE with `--format table -o FILE`, as `run -o` writes its table.
+    let text = a.format == CheckFormat::Table || a.output.is_some();
+    let to_file = a.format == CheckFormat::Table && a.output.is_some();
+    let mut kept = String::new();
+    let mut say = |line: String| {
+        if to_file {
+            kept.push_str(&line);
+            kept.push('\n');
+        } else if text {
             outln!("{line}")
         }
     };
@@ -167,7 +178,8 @@ pub fn check(a: &CheckArgs) -> i32 {
                 continue;
             }
         };
-        let rows = output::check_rows(&engine, style);
+        let mut rows = output::check_rows(&engine, style);
+        output::checks_in_form(&mut rows, a.complex);
         let mut error = None;
         if report_nans(&engine) {
             say(format!("ERROR {name}: a value is not a number (shown above)"));
@@ -223,7 +235,7 @@ pub fn check(a: &CheckArgs) -> i32 {
     }
     say(summary);
     let doc = match a.format {
-        CheckFormat::Text => None,
+        CheckFormat::Table => a.output.is_some().then_some(kept),
         CheckFormat::Json => Some(checks::to_json(&results, &problems) + "\n"),
         CheckFormat::Junit => Some(checks::to_junit(&results, &problems)),
     };
@@ -235,14 +247,7 @@ pub fn check(a: &CheckArgs) -> i32 {
             }
         }
         (Some(doc), None) => out!("{doc}"),
-        (None, Some(path)) => {
-            eprintln!(
-                "error: --output `{}` needs a machine-readable --format (json or junit); the text goes to the terminal",
-                path.display()
-            );
-            return EXIT_ERROR;
-        }
-        (None, None) => {}
+        (None, _) => {}
     }
     if broken > 0 {
         EXIT_ERROR

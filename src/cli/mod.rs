@@ -143,6 +143,9 @@ pub struct RunArgs {
     /// Output format
     #[arg(long, value_enum, default_value_t = Format::Table)]
     pub format: Format,
+    /// Complex values as a + jb (rect), m ∠ θ (polar) or both
+    #[arg(long, value_enum, default_value_t = ComplexArg::Both)]
+    pub complex: ComplexArg,
     /// Write the output to FILE (written whole, or not at all) instead of standard output
     #[arg(short = 'o', long = "output", value_name = "FILE")]
     pub output: Option<PathBuf>,
@@ -178,7 +181,7 @@ cell; each is listed, with its reason, in RESULTS.errors.csv.\n\
 Exit status: 0 every row computed, 1 some rows bad or cells not computed, 2 nothing written.\n\n\
 Examples:\n  \
 ohmsheet batch feeder.ohm --cases feeders.csv --out results.csv\n  \
-ohmsheet batch feeder.ohm --cases feeders.csv --out results.csv --show I,pf --complex polar --digits 6\n  \
+ohmsheet batch feeder.ohm --cases feeders.csv -o results.csv --show I,pf --complex polar --digits 6\n  \
 ohmsheet batch feeder.ohm --cases feeders.csv --out results.csv --tag Vl,note --allow-dir ../lib"
 )]
 pub struct BatchArgs {
@@ -193,9 +196,12 @@ pub struct BatchArgs {
     /// Cells to write, comma-separated (default: every computed cell)
     #[arg(long, value_delimiter = ',', value_name = "CELL,…")]
     pub show: Option<Vec<String>>,
-    /// Complex values as real/imaginary (rect) or magnitude/angle (polar) column pairs
-    #[arg(long, value_enum, default_value_t = ComplexArg::Rect)]
+    /// Complex values as real/imaginary (rect) or magnitude/angle (polar) column pairs, or both (four columns)
+    #[arg(long, value_enum, default_value_t = ComplexArg::Both)]
     pub complex: ComplexArg,
+    /// Output format: CSV (the only one; taken for the same options as the other commands)
+    #[arg(long, value_enum, default_value_t = BatchFormat::Csv)]
+    pub format: BatchFormat,
     /// Stop at the first bad row; no results file is written
     #[arg(long)]
     pub strict: bool,
@@ -216,10 +222,14 @@ pub struct BatchArgs {
     pub load: LoadArgs,
 }
 
+/// `--complex`: the same option and default on every command.
+pub use crate::output::Form as ComplexArg;
+
+/// What `batch` writes: CSV only (`--format` is accepted so that every
+/// command takes the same options).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
-pub enum ComplexArg {
-    Rect,
-    Polar,
+pub enum BatchFormat {
+    Csv,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]

@@ -30,6 +30,9 @@ pub struct ReportArgs {
     /// Significant digits shown
     #[arg(long, default_value_t = 4, value_parser = clap::value_parser!(u8).range(1..=15))]
     pub digits: u8,
+    /// Complex values as a + jb (rect), m ∠ θ (polar) or both
+    #[arg(long, value_enum, default_value_t = super::ComplexArg::Both)]
+    pub complex: super::ComplexArg,
     #[command(flatten)]
     pub load: LoadArgs,
 }
@@ -85,7 +88,8 @@ pub fn report(a: &ReportArgs) -> i32 {
     let style = Style {
         digits: a.digits as usize,
     };
-    let r = report::build(&sheet, &engine, &a.set, style);
+    let mut r = report::build(&sheet, &engine, &a.set, style);
+    r.in_form(a.complex);
     // Markdown written to a file takes its plots from SVG files beside it,
     // which Markdown viewers show (few show `data:` images).
     // `names[k]` is the file of plot `k`, or empty when it has no picture.

@@ -14,8 +14,10 @@ pub fn run(a: &RunArgs) -> i32 {
         digits: a.digits as usize,
     };
     let engine = Engine::new(model);
-    let cells = output::cell_rows(&engine, style);
-    let checks = output::check_rows(&engine, style);
+    let mut cells = output::cell_rows(&engine, style);
+    let mut checks = output::check_rows(&engine, style);
+    output::cells_in_form(&mut cells, a.complex);
+    output::checks_in_form(&mut checks, a.complex);
     let name = a.sheet.display().to_string();
     let text = match a.format {
         Format::Table => format!(

@@ -42,9 +42,12 @@ pub struct SweepArgs {
     /// Output format: a table for people, or every point as CSV or JSON (to standard output, or to -o FILE)
     #[arg(long, value_enum)]
     pub format: Option<SweepFormat>,
-    /// Write the CSV or JSON to FILE (written whole, or not at all; `-` for standard output)
+    /// Write the table, CSV or JSON to FILE (written whole, or not at all; `-` for standard output)
     #[arg(short = 'o', long = "output", value_name = "FILE")]
     pub output: Option<PathBuf>,
+    /// Where `--format table -o FILE` writes the table (set from `output`).
+    #[arg(skip)]
+    pub table_file: Option<PathBuf>,
     /// Shorthand for --format csv -o FILE
     #[arg(long, value_name = "FILE", conflicts_with_all = ["format", "output"])]
     pub csv: Option<PathBuf>,
@@ -57,8 +60,9 @@ pub struct SweepArgs {
     /// Draw a quick chart in the terminal
     #[arg(long)]
     pub chart: bool,
-    /// Complex values as magnitude and angle (polar) or real and imaginary parts (rect); `--parts` also works
-    #[arg(long = "complex", visible_alias = "parts", value_enum, default_value_t = PartsArg::Polar)]
+    /// Complex values as real and imaginary parts (rect), magnitude and angle (polar) or both (a plot
+    /// draws magnitude and angle unless rect); `--parts` also works
+    #[arg(long = "complex", visible_alias = "parts", value_enum, default_value_t = PartsArg::Both)]
     pub parts: PartsArg,
     /// Give a cell a new formula for this run, e.g. --set "Vs=480 V" (repeatable)
     #[arg(long = "set", value_name = "NAME=EXPR")]
@@ -86,36 +90,28 @@ pub enum SweepFormat {
 
 impl SweepArgs {
     /// `--format csv|json` and `-o` as the `--csv`/`--json` they stand
-    /// for; an error for `-o` with the table.
+    /// for; `-o` with the table writes the table to the file, as `run -o`
+    /// does (`-` is standard output).
     pub fn resolve_output(&mut self) -> Result<(), String> {
         let out = self.output.take();
         match self.format {
             Some(SweepFormat::Csv) => self.csv = Some(out.unwrap_or_else(|| "-".into())),
             Some(SweepFormat::Json) => self.json = Some(out.unwrap_or_else(|| "-".into())),
-            Some(SweepFormat::Table) | None => {
-                if let Some(p) = out {
-                    return Err(format!(
-                        "-o `{}` needs --format csv or --format json; the table goes to the terminal (--plot FILE.svg writes a picture)",
-                        p.display()
-                    ));
-                }
-            }
+            Some(SweepFormat::Table) | None => self.table_file = out.filter(|p| p.as_os_str() != "-"),
         }
         Ok(())
     }
 }
 
-#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
-pub enum PartsArg {
-    Polar,
-    Rect,
-}
+/// `--complex` (`--parts`): the option every command shares.
+pub use super::ComplexArg as PartsArg;
 
 impl From<PartsArg> for Parts {
     fn from(p: PartsArg) -> Parts {
         match p {
             PartsArg::Polar => Parts::Polar,
             PartsArg::Rect => Parts::Rect,
+            PartsArg::Both => Parts::Both,
         }
     }
 }
@@ -154,8 +150,11 @@ pub struct SolveArgs {
     #[arg(long = "set", value_name = "NAME=EXPR")]
     pub set: Vec<String>,
     /// Significant digits shown
-    #[arg(long, default_value_t = 6, value_parser = clap::value_parser!(u8).range(1..=15))]
+    #[arg(long, default_value_t = 4, value_parser = clap::value_parser!(u8).range(1..=15))]
     pub digits: u8,
+    /// The expression's value as a + jb (rect), m ∠ θ (polar) or both
+    #[arg(long, value_enum, default_value_t = super::ComplexArg::Both)]
+    pub complex: super::ComplexArg,
     /// Output format: the answer in words, or as JSON
     #[arg(long, value_enum, default_value_t = SolveFormat::Table)]
     pub format: SolveFormat,
@@ -448,7 +447,9 @@ fn emit(
         let (svg, geo) = match crate::plot::svg_with_geometry(
             r,
             &crate::plot::PlotOptions {
-                parts,
+                // a plot draws one pair of panels: magnitude and angle
+                // unless rect is asked for
+                parts: if parts == Parts::Both { Parts::Polar } else { parts },
                 ..Default::default()
             },
         ) {
@@ -481,7 +482,15 @@ fn emit(
         );
     }
     if table_only {
-        out!("{}", out::table(r, parts, style));
+        let table = out::table(r, parts, style);
+        match &a.table_file {
+            Some(p) => {
+                if let Err(e) = write_atomic(p, |w| w.write_all(table.as_bytes())) {
+                    return io_error(p, e);
+                }
+            }
+            None => out!("{table}"),
+        }
     }
     let bad = r.undefined_points();
     warn_undefined(engine, bad.len(), bad.first().copied(), &r.axes);
@@ -586,7 +595,10 @@ pub fn solve(a: &SolveArgs) -> i32 {
         log,
     };
     let digits = a.digits as usize;
-    let fmt = |s: &Series, x: C64| format_value(x, s.quantity, s.display.as_ref(), Style { digits }).rect;
+    let fmt = |s: &Series, x: C64| {
+        let f = format_value(x, s.quantity, s.display.as_ref(), Style { digits });
+        a.complex.text(&f.rect, &f.polar)
+    };
     let mut out = String::new();
     macro_rules! say {
         ($($t:tt)*) => {{

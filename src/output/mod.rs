@@ -61,6 +61,12 @@ pub struct CheckRow {
     pub tolerance_display: String,
     pub lhs_display: String,
     pub rhs_display: String,
+    /// The polar forms of the computed and reference values, for
+    /// `checks_in_form`.
+    #[serde(skip)]
+    pub lhs_polar: String,
+    #[serde(skip)]
+    pub rhs_polar: String,
 }
 
 #[derive(Clone, Copy, Debug, Serialize)]
@@ -141,6 +147,54 @@ fn row(
     }
 }
 
+/// How complex values are written: `--complex rect|polar|both`, one
+/// option with one default (both) on run, report, sweep, solve, batch and
+/// check.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default, clap::ValueEnum)]
+pub enum Form {
+    /// Real and imaginary parts, a + jb (CSV: `.re`, `.im` columns).
+    Rect,
+    /// Magnitude and angle, m ∠ θ (CSV: `.mag`, `.ang` columns).
+    Polar,
+    /// Both forms (CSV: the four columns).
+    #[default]
+    Both,
+}
+
+impl Form {
+    /// One value as text in this form, from its two forms: a value whose
+    /// two forms read the same (a positive real) is written once; both
+    /// forms are joined by ` = `.
+    pub fn text(self, rect: &str, polar: &str) -> String {
+        match self {
+            _ if rect == polar => rect.to_string(),
+            Form::Rect => rect.to_string(),
+            Form::Polar => polar.to_string(),
+            Form::Both => format!("{rect} = {polar}"),
+        }
+    }
+}
+
+/// Cell rows in `form`: with rect or polar alone, both text fields carry
+/// that form (a table then shows the one column), the numbers stay.
+pub fn cells_in_form(rows: &mut [CellRow], form: Form) {
+    for r in rows {
+        match form {
+            Form::Rect => r.polar = r.display.clone(),
+            Form::Polar => r.display = r.polar.clone(),
+            Form::Both => {}
+        }
+    }
+}
+
+/// Check rows with their computed and reference values in `form`.
+pub fn checks_in_form(rows: &mut [CheckRow], form: Form) {
+    for r in rows {
+        r.lhs_display = form.text(&r.lhs_display, &r.lhs_polar);
+        r.rhs_display = form.text(&r.rhs_display, &r.rhs_polar);
+    }
+}
+
 /// Rows for every check, in sheet order.
 pub fn check_rows(engine: &Engine, style: Style) -> Vec<CheckRow> {
     let m = &engine.model;
@@ -152,6 +206,7 @@ pub fn check_rows(engine: &Engine, style: Style) -> Vec<CheckRow> {
         let r = check_result(m, id, engine.values(id));
         let q = c.checked_quantity();
         let show = |z: C64| format_value(z, q, c.display.as_ref(), style).rect;
+        let polar = |z: C64| format_value(z, q, c.display.as_ref(), style).polar;
         let (error_display, tolerance_display) =
             crate::units::format::check_gap(q, c.display.as_ref(), r.diff, r.tol, style);
         rows.push(CheckRow {
@@ -174,6 +229,8 @@ pub fn check_rows(engine: &Engine, style: Style) -> Vec<CheckRow> {
             tolerance_display,
             lhs_display: show(r.lhs),
             rhs_display: show(r.rhs),
+            lhs_polar: polar(r.lhs),
+            rhs_polar: polar(r.rhs),
         });
     }
     rows

@@ -2,8 +2,9 @@
 //!
 //! CSV columns are one per swept input, then two per shown value:
 //! magnitude and angle (`Vload.mag [V]`, `Vload.ang [deg]`) or real and
-//! imaginary parts (`Vload.re [V]`, `Vload.im [V]`) — one for a value real
-//! by construction (`pf`, docs/batch.md). Numbers are in the
+//! imaginary parts (`Vload.re [V]`, `Vload.im [V]`), or all four (both,
+//! the default) — one for a value real by construction (`pf`,
+//! docs/batch.md). Numbers are in the
 //! unit named in the header: the cell's display unit if the sheet gives
 //! one, else the coherent SI unit; angles in degrees. Undefined values are
 //! written `NaN`, `inf` or `-inf`, never dropped.
@@ -26,6 +27,8 @@ pub enum Parts {
     Polar,
     /// Real and imaginary parts.
     Rect,
+    /// Both: real, imaginary, magnitude, angle (four columns).
+    Both,
 }
 
 /// The unit a column is written in and the factor to divide SI values by.
@@ -87,26 +90,25 @@ pub fn csv_headers(axes: &[Axis], series: &[Series], parts: Parts) -> Vec<String
             h.push(header(&s.name, &u));
             continue;
         }
-        match parts {
-            Parts::Polar => {
-                h.push(header(&format!("{}.mag", s.name), &u));
-                h.push(header(&format!("{}.ang", s.name), "deg"));
-            }
-            Parts::Rect => {
-                h.push(header(&format!("{}.re", s.name), &u));
-                h.push(header(&format!("{}.im", s.name), &u));
-            }
+        if parts != Parts::Polar {
+            h.push(header(&format!("{}.re", s.name), &u));
+            h.push(header(&format!("{}.im", s.name), &u));
+        }
+        if parts != Parts::Rect {
+            h.push(header(&format!("{}.mag", s.name), &u));
+            h.push(header(&format!("{}.ang", s.name), "deg"));
         }
     }
     h
 }
 
-/// The two numbers written for a value.
+/// The two numbers written for a value in rect or polar parts (both:
+/// the rect pair, then `split(z, scale, Parts::Polar)`).
 #[inline]
 pub fn split(z: C64, scale: Scale, parts: Parts) -> (f64, f64) {
     match parts {
         Parts::Polar => (scale.apply(ops::abs(z)), ops::arg(z).to_degrees()),
-        Parts::Rect => (scale.apply(z.re), scale.apply(z.im)),
+        Parts::Rect | Parts::Both => (scale.apply(z.re), scale.apply(z.im)),
     }
 }
 
@@ -176,6 +178,13 @@ impl<W: Write> CsvRows<W> {
             self.num(a);
             self.line.push(b',');
             self.num(b);
+            if self.parts == Parts::Both {
+                let (m, d) = split(z, self.series_scale[k], Parts::Polar);
+                self.line.push(b',');
+                self.num(m);
+                self.line.push(b',');
+                self.num(d);
+            }
         }
         self.line.push(b'\n');
         self.out.write_all(&self.line)
@@ -217,8 +226,10 @@ pub fn table(r: &SweepResult, parts: Parts, style: Style) -> String {
         }
         for (s, col) in r.series.iter().zip(&r.values) {
             let f = format_value(col[p], s.quantity, s.display.as_ref(), style);
+            let complex = col[p].im != 0.0 || col[p].re < 0.0;
             let text = match parts {
-                Parts::Polar if col[p].im != 0.0 || col[p].re < 0.0 => f.polar,
+                Parts::Polar if complex => f.polar,
+                Parts::Both if complex => format!("{} = {}", f.rect, f.polar),
                 _ => f.rect,
             };
             row.push(if super::super::sweep::finite(col[p]) {

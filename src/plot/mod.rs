@@ -171,7 +171,7 @@ pub fn layout(r: &SweepResult, parts: Parts) -> Result<Layout, String> {
     };
     let mut specs: Vec<(Part, Vec<usize>)> = Vec::new();
     match parts {
-        Parts::Polar => {
+        Parts::Polar | Parts::Both => {
             for g in groups_of(&|_| true) {
                 specs.push((Part::Value, g));
             }

@@ -306,6 +306,8 @@ fn every_entry_point_reads_alike() {
             cases.to_str().unwrap(),
             "--out",
             results.to_str().unwrap(),
+            "--complex",
+            "rect",
         ])
         .assert()
         .stderr(predicate::str::contains("(2 V ∠ 30°) * 3"));

@@ -201,6 +201,7 @@ fn batch_gives_real_values_one_column() {
         .arg(&cases)
         .arg("--out")
         .arg(&out)
+        .args(["--complex", "rect"])
         .assert()
         .success();
     let text = std::fs::read_to_string(&out).unwrap();
@@ -284,6 +285,8 @@ fn sweep_gives_real_values_one_column() {
             "2",
             "--show",
             "k,parts.Q,Qc,pl,I",
+            "--complex",
+            "polar",
             "--csv",
             "-",
         ])

@@ -1,6 +1,6 @@
 //! The report as one self-contained HTML file.
 
-use super::layout::{check_summary, file_contents, lower_first, one_form, same_text, show_substituted, STEPS_INTRO};
+use super::layout::{check_summary, file_contents, lower_first, one_form, same_text, show_substituted, steps_intro};
 use super::Report;
 
 fn esc(s: &str) -> String {
@@ -171,7 +171,7 @@ pub fn html(r: &Report) -> String {
 
     o.push_str("<section id=\"calculation\">\n<h2>2. Calculation</h2>\n");
     if !r.steps.is_empty() {
-        o.push_str(&format!("<p class=\"small\">{}</p>\n", esc(STEPS_INTRO)));
+        o.push_str(&format!("<p class=\"small\">{}</p>\n", esc(steps_intro(r.form))));
     }
     if r.steps.is_empty() {
         o.push_str("<p>The sheet computes nothing from its inputs.</p>\n");

@@ -90,9 +90,26 @@ pub(super) fn show_substituted(s: &Step) -> bool {
 }
 
 /// What a step shows, said once before the steps.
-pub(super) const STEPS_INTRO: &str = "Each step gives the formula as written, the formula with the value and unit of \
+pub(super) fn steps_intro(form: crate::output::Form) -> &'static str {
+    use crate::output::Form;
+    match form {
+        Form::Both => {
+            "Each step gives the formula as written, the formula with the value and unit of \
 each quantity put in its place, and the result. A complex result is given in rectangular form \
-(a + jb) and in polar form (magnitude ∠ angle); a real result is given once.";
+(a + jb) and in polar form (magnitude ∠ angle); a real result is given once."
+        }
+        Form::Rect => {
+            "Each step gives the formula as written, the formula with the value and unit of \
+each quantity put in its place, and the result. A complex result is given in rectangular form \
+(a + jb)."
+        }
+        Form::Polar => {
+            "Each step gives the formula as written, the formula with the value and unit of \
+each quantity put in its place, and the result. A complex result is given in polar form \
+(magnitude ∠ angle)."
+        }
+    }
+}
 
 pub(super) fn check_summary(r: &Report) -> String {
     let failed = r.checks.iter().filter(|c| !c.passed).count();

@@ -1,6 +1,6 @@
 //! The report as Markdown.
 
-use super::layout::{check_summary, equation_lines, file_contents, lower_first, one_form, same_text, STEPS_INTRO};
+use super::layout::{check_summary, equation_lines, file_contents, lower_first, one_form, same_text, steps_intro};
 use super::Report;
 
 /// Text for a Markdown paragraph or table cell: characters that start
@@ -154,7 +154,7 @@ pub fn markdown_with_plot_files(r: &Report, plot_files: &[String]) -> String {
     p(&mut o, "## 2. Calculation");
     if !r.steps.is_empty() {
         p(&mut o, "");
-        p(&mut o, &md_text(STEPS_INTRO));
+        p(&mut o, &md_text(steps_intro(r.form)));
     }
     if r.steps.is_empty() {
         p(&mut o, "");

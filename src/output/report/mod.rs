@@ -63,6 +63,36 @@ pub struct Report {
     pub caution: &'static str,
     /// `ohmsheet 0.1.0`
     pub generator: String,
+    /// How complex values are given (`--complex`; `Report::in_form`).
+    #[serde(skip)]
+    pub form: crate::output::Form,
+}
+
+impl Report {
+    /// The values of inputs, steps and checks in `form`: with rect or polar
+    /// alone both text fields carry that form, so the layouts give each
+    /// value once.
+    pub fn in_form(&mut self, form: crate::output::Form) {
+        use crate::output::Form;
+        let set = |v: &mut Value| match form {
+            Form::Rect => v.polar = v.rect.clone(),
+            Form::Polar => v.rect = v.polar.clone(),
+            Form::Both => {}
+        };
+        for i in &mut self.inputs {
+            set(&mut i.value);
+        }
+        for s in &mut self.steps {
+            for r in &mut s.results {
+                set(&mut r.value);
+            }
+        }
+        for c in &mut self.checks {
+            c.computed = form.text(&c.computed, &c.computed_polar);
+            c.reference = form.text(&c.reference, &c.reference_polar);
+        }
+        self.form = form;
+    }
 }
 
 #[derive(Clone, Debug, Serialize)]
@@ -147,6 +177,11 @@ pub struct CheckLine {
     pub passed: bool,
     pub computed: String,
     pub reference: String,
+    /// The polar forms of `computed` and `reference` (`Report::in_form`).
+    #[serde(skip)]
+    pub computed_polar: String,
+    #[serde(skip)]
+    pub reference_polar: String,
     /// |computed − reference|
     pub difference: String,
     /// The largest difference allowed.
@@ -369,6 +404,7 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
             style.digits
         };
         let show = |z: C64| format_value(z, q, unit.as_ref(), Style { digits }).rect;
+        let polar = |z: C64| format_value(z, q, unit.as_ref(), Style { digits }).polar;
         // The difference and the allowance in one unit, as on the command
         // line and in the session (`check_gap`).
         let (difference, allowed) = crate::units::format::check_gap(q, unit.as_ref(), r.diff, r.tol, style);
@@ -386,6 +422,8 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
             passed: r.passed,
             computed: show(r.lhs),
             reference: show(r.rhs),
+            computed_polar: polar(r.lhs),
+            reference_polar: polar(r.rhs),
             difference,
             allowed,
             tolerance_rule: rule,
@@ -413,6 +451,7 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
         checks,
         plots: plots(m, style),
         caution: CAUTION,
+        form: crate::output::Form::Both,
         generator: format!("ohmsheet {}", env!("CARGO_PKG_VERSION")),
     }
 }
