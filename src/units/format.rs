@@ -442,19 +442,38 @@ pub fn rect_string(z: C64, digits: usize) -> String {
     format!("{} {} j{}", fmt_sig(re, digits), sign, ims)
 }
 
-/// `m ∠ θ°` form, angle in degrees.
+/// `m ∠ θ°` form, angle in degrees: the principal value, −180° < θ ≤ 180°
+/// (`ops::arg`), so a negative real with a −0 imaginary part is ∠ 180°,
+/// and an angle that rounds to −180° is shown as 180°.
 pub fn polar_string(z: C64, digits: usize) -> String {
     let mag = z.norm();
-    let ang = z.im.atan2(z.re).to_degrees();
+    let ang = crate::engine::ops::arg(z).to_degrees();
     let decimals = digits.saturating_sub(2).max(1);
     let a = format!("{:.*}", decimals, ang);
     let a = trim_zeros(&a);
+    let a = match a.as_str() {
+        "-180" => "180".to_string(),
+        "-0" => "0".to_string(),
+        _ => a,
+    };
     format!("{} ∠ {}°", fmt_sig(mag, digits), a)
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The principal argument, −180° < θ ≤ 180° (DLMF §4.2): a negative
+    /// real is ∠ 180° whatever the sign of its zero imaginary part, and an
+    /// angle just above −180° that rounds to it is written 180°.
+    #[test]
+    fn polar_angles_are_principal_values() {
+        assert_eq!(polar_string(C64::new(-5.0, -0.0), 4), "5 ∠ 180°");
+        assert_eq!(polar_string(C64::new(-5.0, 0.0), 4), "5 ∠ 180°");
+        assert_eq!(polar_string(C64::new(-5.0, -1e-9), 4), "5 ∠ 180°");
+        assert_eq!(polar_string(C64::new(0.0, -0.0), 4), "0 ∠ 0°");
+        assert_eq!(polar_string(C64::new(-1.0, -1.0), 4), "1.414 ∠ -135°");
+    }
 
     fn q(d: Dim) -> Quantity {
         Quantity::of(d)
