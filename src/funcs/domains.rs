@@ -106,16 +106,21 @@ pub fn capacitor(a: &[C64], _: &Ctx) -> Option<ArgError> {
 }
 
 pub fn l_from_x(a: &[C64], _: &Ctx) -> Option<ArgError> {
-    (!is_real(a[0]))
-        .then(|| ArgError::at(0, "a reactance is a real number (Im Z)"))
+    (!(is_real(a[0]) && a[0].re >= 0.0))
+        .then(|| {
+            ArgError::at(
+                0,
+                "an inductor's reactance is a real number ≥ 0 (ωL); a negative one is a capacitor's: use `c_from_x`",
+            )
+        })
         .or_else(|| frequency(a, 1))
 }
 
 pub fn c_from_x(a: &[C64], _: &Ctx) -> Option<ArgError> {
-    if !(is_real(a[0]) && a[0].re != 0.0) {
+    if !(is_real(a[0]) && a[0].re < 0.0) {
         return Some(ArgError::at(
             0,
-            "a capacitor's reactance is a negative real number (−1/ωC); 0 is a short, which no finite capacitance gives",
+            "a capacitor's reactance is a negative real number (−1/ωC); a positive one is an inductor's (use `l_from_x`), and 0 is a short, which no finite capacitance gives",
         ));
     }
     frequency(a, 1)
@@ -252,8 +257,13 @@ pub fn q_pfc(a: &[C64], _: &Ctx) -> Option<ArgError> {
 }
 
 pub fn cap_bank(a: &[C64], _: &Ctx) -> Option<ArgError> {
-    (!is_real(a[0]))
-        .then(|| ArgError::at(0, "a bank's rating is a finite real number (var)"))
+    (!(is_real(a[0]) && a[0].re >= 0.0))
+        .then(|| {
+            ArgError::at(
+                0,
+                "a bank's rating is a finite real number ≥ 0 (var delivered); a negative rating would give a negative capacitance",
+            )
+        })
         .or_else(|| nonzero(a, 1, "a bank's voltage"))
         .or_else(|| frequency(a, 2))
 }
@@ -317,6 +327,16 @@ pub fn lmatch(a: &[C64], _: &Ctx) -> Option<ArgError> {
 
 // ---- ratios ----
 
+/// A reflection coefficient of a passive load: |Γ| ≤ 1.
+pub fn gamma(a: &[C64], _: &Ctx) -> Option<ArgError> {
+    (ops::abs(a[0]) > 1.0).then(|| {
+        ArgError::at(
+            0,
+            "|Γ| > 1: the load gives back more than it receives (an active load); VSWR and return loss are defined for |Γ| ≤ 1",
+        )
+    })
+}
+
 pub fn db(a: &[C64], _: &Ctx) -> Option<ArgError> {
     if is_zero(a[0]) {
         return Some(ArgError::at(0, "a ratio of 0 is −∞ dB"));
@@ -335,6 +355,49 @@ pub fn vreg(a: &[C64], _: &Ctx) -> Option<ArgError> {
             "regulation is a fraction of the full-load voltage, which cannot be 0",
         )
     })
+}
+
+// ---- physical ranges: where a formula would give a finite misreading ----
+
+use super::Range::{self, *};
+
+/// Arguments whose physical range the formula alone does not keep (a
+/// negative inductance would give a capacitive impedance, a zero base a
+/// per-unit value of 0): outside the range the call's results are NaN
+/// (`funcs::guard_ranges`) and the function's domain check says why.
+/// Indices are those of the values a domain check sees. A value on the
+/// range's edge where the function has a limit (0 H, an open ∞) is inside.
+pub const RANGES: &[(&str, &[(usize, Range)])] = &[
+    ("z_ind", &[(0, NonNeg), (1, NonNeg)]),
+    ("x_ind", &[(0, NonNeg), (1, NonNeg)]),
+    ("z_cap", &[(0, NonNeg), (1, NonNeg)]),
+    ("x_cap", &[(0, NonNeg), (1, NonNeg)]),
+    ("l_from_x", &[(0, NonNeg), (1, Positive)]),
+    ("c_from_x", &[(0, Negative), (1, Positive)]),
+    ("f_res", &[(0, Positive), (1, Positive)]),
+    ("q_series", &[(0, Positive), (1, Positive), (2, Positive)]),
+    ("q_parallel", &[(0, Positive), (1, Positive), (2, Positive)]),
+    ("q_of", &[(0, RePositive)]),
+    ("p_max", &[(1, RePositive)]),
+    ("cap_delta", &[(0, NonNeg), (1, NonZero), (2, Positive)]),
+    ("cap_wye", &[(0, NonNeg), (1, NonZero), (2, Positive)]),
+    ("cap_1ph", &[(0, NonNeg), (1, NonZero), (2, Positive)]),
+    ("z_base", &[(0, NonZero), (1, NonZero)]),
+    ("i_base", &[(0, NonZero), (1, NonZero)]),
+    ("pu_to_ohm", &[(1, NonZero), (2, NonZero)]),
+    ("ohm_to_pu", &[(1, NonZero), (2, NonZero)]),
+    ("rebase", &[(1, NonZero), (2, NonZero), (3, NonZero), (4, NonZero)]),
+    ("line_rlgc", &[(0, NonNeg), (1, NonNeg), (2, NonNeg), (3, NonNeg), (4, NonNeg)]),
+    ("return_loss", &[(0, UnitDisc)]),
+    ("sc_peak", &[(2, Positive)]),
+];
+
+/// `f` with its ranges from `RANGES`.
+pub fn with_ranges(f: Builtin) -> Builtin {
+    match RANGES.iter().find(|(n, _)| *n == f.name) {
+        Some(&(_, ranges)) => Builtin { ranges, ..f },
+        None => f,
+    }
 }
 
 // ---- the table: each function's published source, and its domain ----

@@ -187,15 +187,6 @@ fn s_vswr(a: &[C64], out: &mut [C64], _: &Ctx) {
     };
 }
 
-fn d_gamma(a: &[C64], _: &Ctx) -> Option<ArgError> {
-    (ops::abs(a[0]) > 1.0).then(|| {
-        ArgError::at(
-            0,
-            "|Γ| > 1: the load gives back more than it receives (an active load); VSWR is defined for |Γ| ≤ 1",
-        )
-    })
-}
-
 fn s_return_loss(a: &[C64], out: &mut [C64], _: &Ctx) {
     let m = ops::abs(a[0]);
     out[0] = if m.is_nan() {
@@ -529,7 +520,7 @@ pub fn funcs() -> Vec<Builtin> {
             ty_gamma_in,
             s_vswr,
         )
-        .with_domain(d_gamma)
+        .with_domain(super::domains::gamma)
         .with_source("IEEE Std 100 (standing-wave ratio); Pozar, Microwave Engineering, §2.3 (from memory)")
         .with_real_result(),
         scalar_fn(
@@ -540,6 +531,7 @@ pub fn funcs() -> Vec<Builtin> {
             ty_return_loss,
             s_return_loss,
         )
+        .with_domain(super::domains::gamma)
         .with_source("IEEE Std 100 (return loss); IEC 60027-3 (root-power level); from memory")
         .with_real_result(),
         scalar_fn(

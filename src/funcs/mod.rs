@@ -113,6 +113,26 @@ pub type LowerFn = fn(&mut Emitter, &[Operand], &[Quantity]) -> Vec<Operand>;
 /// result that is not a finite number, never on the hot path.
 pub type DomainFn = fn(&[C64], &Ctx) -> Option<ArgError>;
 
+/// The physical range of one argument (`Builtin::ranges`): outside it the
+/// function's result is NaN, whatever its formula would give, so the
+/// domain check explains it instead of a finite misreading (a negative
+/// inductance giving a capacitive impedance).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Range {
+    /// Real and ≥ 0 (∞ allowed): an element value, a rating that may be 0.
+    NonNeg,
+    /// Real and > 0 (∞ allowed): a base, a frequency, a resistance.
+    Positive,
+    /// Real and < 0: a capacitor's reactance.
+    Negative,
+    /// Real part > 0 (any imaginary part): a source's impedance.
+    RePositive,
+    /// Magnitude ≤ 1: a passive load's reflection coefficient.
+    UnitDisc,
+    /// Neither 0 nor infinite (any phase): a base, a bank's voltage.
+    NonZero,
+}
+
 pub enum Impl {
     Lower(LowerFn),
     Scalar(ScalarFn),
@@ -186,6 +206,10 @@ pub struct Builtin {
     /// value one column (see `batch::real_slots`). A lowered function needs
     /// no flag: its instructions are read for the same purpose.
     pub real_result: bool,
+    /// Arguments with a physical range (`Range`), by the index of the value
+    /// (as a domain check sees them); from `domains::RANGES`. The compiler
+    /// makes the results NaN outside them (`Lowerer::call`).
+    pub ranges: &'static [(usize, Range)],
 }
 
 impl Builtin {
@@ -281,7 +305,7 @@ fn lib() -> &'static Lib {
         let mut sections = Vec::new();
         for (heading, fs) in families() {
             sections.push((heading, funcs.len()));
-            funcs.extend(fs);
+            funcs.extend(fs.into_iter().map(domains::with_ranges));
         }
         Lib { funcs, sections }
     })
@@ -489,6 +513,7 @@ pub fn lowered(
         source: "",
         prepare: None,
         real_result: false,
+        ranges: &[],
     }
 }
 
@@ -513,6 +538,7 @@ pub fn scalar_fn(
         source: "",
         prepare: None,
         real_result: false,
+        ranges: &[],
     }
 }
 
@@ -527,3 +553,66 @@ macro_rules! param {
     };
 }
 pub use param as p;
+
+/// 1 where `x` lies in range `r`, 0 where it does not, NaN where `x` is
+/// NaN (comparisons read real parts; see `Op::Lt`).
+fn in_range(e: &mut Emitter, x: Operand, r: Range) -> Operand {
+    use crate::engine::ops::Op;
+    let zero = e.konst(0.0, 0.0);
+    let real = |e: &mut Emitter| {
+        let im = e.un(Op::Im, x);
+        let im = e.un(Op::Abs, im);
+        e.bin(Op::Le, im, zero)
+    };
+    match r {
+        Range::NonNeg => {
+            let c = e.bin(Op::Ge, x, zero);
+            let r = real(e);
+            e.bin(Op::Mul, c, r)
+        }
+        Range::Positive => {
+            let c = e.bin(Op::Gt, x, zero);
+            let r = real(e);
+            e.bin(Op::Mul, c, r)
+        }
+        Range::Negative => {
+            let c = e.bin(Op::Lt, x, zero);
+            let r = real(e);
+            e.bin(Op::Mul, c, r)
+        }
+        Range::RePositive => e.bin(Op::Gt, x, zero),
+        Range::UnitDisc => {
+            let m = e.un(Op::Abs, x);
+            let one = e.konst(1.0, 0.0);
+            e.bin(Op::Le, m, one)
+        }
+        Range::NonZero => {
+            let m = e.un(Op::Abs, x);
+            let c = e.bin(Op::Gt, m, zero);
+            let inf = e.konst(f64::INFINITY, 0.0);
+            let f = e.bin(Op::Lt, m, inf);
+            e.bin(Op::Mul, c, f)
+        }
+    }
+}
+
+/// The results `outs` of a call of `f` with argument values `args`, made
+/// NaN where an argument leaves its physical range (`Builtin::ranges`), so
+/// the domain check explains the call instead of a finite number being
+/// shown. The NaN has a zero imaginary part, so a real result stays real
+/// by construction (`batch::real_slots`).
+pub fn guard_ranges(e: &mut Emitter, f: &Builtin, args: &[Operand], outs: Vec<Operand>) -> Vec<Operand> {
+    use crate::engine::ops::Op;
+    let mut cond: Option<Operand> = None;
+    for &(i, r) in f.ranges {
+        let Some(&x) = args.get(i) else { continue };
+        let c = in_range(e, x, r);
+        cond = Some(match cond {
+            None => c,
+            Some(p) => e.bin(Op::Mul, p, c),
+        });
+    }
+    let Some(cond) = cond else { return outs };
+    let nan = e.konst(f64::NAN, 0.0);
+    outs.into_iter().map(|o| e.select(cond, o, nan)).collect()
+}

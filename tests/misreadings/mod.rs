@@ -7,4 +7,5 @@ mod display;
 mod kinds;
 mod lookalikes;
 mod numerics;
+mod ranges;
 mod trig_note;

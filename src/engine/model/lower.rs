@@ -464,6 +464,7 @@ impl Lowerer<'_> {
                 None => em.call(fid, &ops, shape.width()),
             },
         };
+        let outs = funcs::guard_ranges(em, f, &ops, outs);
         Ok(match shape {
             Shape::Scalar(q) => Val::Scalar(outs[0], q),
             Shape::Record(fields) => Val::Record(fields.into_iter().zip(outs).map(|((n, q), o)| (n, o, q)).collect()),
