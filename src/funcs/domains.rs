@@ -387,7 +387,10 @@ pub const RANGES: &[(&str, &[(usize, Range)])] = &[
     ("pu_to_ohm", &[(1, NonZero), (2, NonZero)]),
     ("ohm_to_pu", &[(1, NonZero), (2, NonZero)]),
     ("rebase", &[(1, NonZero), (2, NonZero), (3, NonZero), (4, NonZero)]),
-    ("line_rlgc", &[(0, NonNeg), (1, NonNeg), (2, NonNeg), (3, NonNeg), (4, NonNeg)]),
+    (
+        "line_rlgc",
+        &[(0, NonNeg), (1, NonNeg), (2, NonNeg), (3, NonNeg), (4, NonNeg)],
+    ),
     ("return_loss", &[(0, UnitDisc)]),
     ("sc_peak", &[(2, Positive)]),
 ];

@@ -19,49 +19,283 @@ use crate::common::{engine, ohmsheet, value};
 /// (function, index of the argument, formula, what the explanation says,
 /// the text it points at)
 const RANGE_CASES: &[(&str, usize, &str, &str, &str)] = &[
-    ("z_ind", 0, "z_ind(-1 mH, 60 Hz)", "an inductance is a real number ≥ 0", "-1 mH"),
-    ("z_ind", 1, "z_ind(1 mH, -60 Hz)", "a frequency is a real number ≥ 0", "-60 Hz"),
-    ("x_ind", 0, "x_ind(-1 mH, 60 Hz)", "an inductance is a real number ≥ 0", "-1 mH"),
-    ("x_ind", 1, "x_ind(1 mH, -60 Hz)", "a frequency is a real number ≥ 0", "-60 Hz"),
-    ("z_cap", 0, "z_cap(-1 uF, 60 Hz)", "a capacitance is a real number ≥ 0", "-1 uF"),
-    ("z_cap", 1, "z_cap(1 uF, -60 Hz)", "a frequency is a real number ≥ 0", "-60 Hz"),
-    ("x_cap", 0, "x_cap(-1 uF, 60 Hz)", "a capacitance is a real number ≥ 0", "-1 uF"),
-    ("x_cap", 1, "x_cap(1 uF, -60 Hz)", "a frequency is a real number ≥ 0", "-60 Hz"),
-    ("l_from_x", 0, "l_from_x(-10 Ω, 60 Hz)", "a negative one is a capacitor's", "-10 Ω"),
-    ("l_from_x", 1, "l_from_x(10 Ω, -60 Hz)", "a frequency is a positive real number", "-60 Hz"),
-    ("c_from_x", 0, "c_from_x(10 Ω, 60 Hz)", "a positive one is an inductor's", "10 Ω"),
-    ("c_from_x", 1, "c_from_x(-10 Ω, 0 Hz)", "a frequency is a positive real number", "0 Hz"),
-    ("f_res", 0, "f_res(-1 mH, 1 uF)", "an inductance is a positive real number", "-1 mH"),
-    ("f_res", 1, "f_res(1 mH, -1 uF)", "a capacitance is a positive real number", "-1 uF"),
-    ("q_series", 0, "q_series(-1 Ω, 1 mH, 1 uF)", "resistance of a resonant circuit", "-1 Ω"),
-    ("q_series", 1, "q_series(1 Ω, -1 mH, 1 uF)", "an inductance is a positive", "-1 mH"),
-    ("q_series", 2, "q_series(1 Ω, 1 mH, -1 uF)", "a capacitance is a positive", "-1 uF"),
-    ("q_parallel", 0, "q_parallel(-1 kΩ, 1 mH, 1 uF)", "resistance of a resonant circuit", "-1 kΩ"),
-    ("q_parallel", 1, "q_parallel(1 kΩ, -1 mH, 1 uF)", "an inductance is a positive", "-1 mH"),
-    ("q_parallel", 2, "q_parallel(1 kΩ, 1 mH, -1 uF)", "a capacitance is a positive", "-1 uF"),
-    ("q_of", 0, "q_of((-1 + j5) Ω)", "needs a finite impedance with R > 0", "(-1 + j5) Ω"),
-    ("p_max", 1, "p_max(480 V, (-1 + j2) Ω)", "Re Zth must be positive", "(-1 + j2) Ω"),
-    ("cap_delta", 0, "cap_delta(-100 kvar, 480 V, 60 Hz)", "a bank's rating is a finite real number ≥ 0", "-100 kvar"),
-    ("cap_delta", 1, "cap_delta(100 kvar, 0 V, 60 Hz)", "a bank's voltage cannot be 0", "0 V"),
-    ("cap_delta", 2, "cap_delta(100 kvar, 480 V, -60 Hz)", "a frequency is a positive real number", "-60 Hz"),
-    ("cap_wye", 0, "cap_wye(-100 kvar, 480 V, 60 Hz)", "a bank's rating is a finite real number ≥ 0", "-100 kvar"),
-    ("cap_wye", 1, "cap_wye(100 kvar, 0 V, 60 Hz)", "a bank's voltage cannot be 0", "0 V"),
-    ("cap_wye", 2, "cap_wye(100 kvar, 480 V, 0 Hz)", "a frequency is a positive real number", "0 Hz"),
-    ("cap_1ph", 0, "cap_1ph(-10 kvar, 240 V, 60 Hz)", "a bank's rating is a finite real number ≥ 0", "-10 kvar"),
-    ("cap_1ph", 1, "cap_1ph(10 kvar, 0 V, 60 Hz)", "a bank's voltage cannot be 0", "0 V"),
-    ("cap_1ph", 2, "cap_1ph(10 kvar, 240 V, -60 Hz)", "a frequency is a positive real number", "-60 Hz"),
+    (
+        "z_ind",
+        0,
+        "z_ind(-1 mH, 60 Hz)",
+        "an inductance is a real number ≥ 0",
+        "-1 mH",
+    ),
+    (
+        "z_ind",
+        1,
+        "z_ind(1 mH, -60 Hz)",
+        "a frequency is a real number ≥ 0",
+        "-60 Hz",
+    ),
+    (
+        "x_ind",
+        0,
+        "x_ind(-1 mH, 60 Hz)",
+        "an inductance is a real number ≥ 0",
+        "-1 mH",
+    ),
+    (
+        "x_ind",
+        1,
+        "x_ind(1 mH, -60 Hz)",
+        "a frequency is a real number ≥ 0",
+        "-60 Hz",
+    ),
+    (
+        "z_cap",
+        0,
+        "z_cap(-1 uF, 60 Hz)",
+        "a capacitance is a real number ≥ 0",
+        "-1 uF",
+    ),
+    (
+        "z_cap",
+        1,
+        "z_cap(1 uF, -60 Hz)",
+        "a frequency is a real number ≥ 0",
+        "-60 Hz",
+    ),
+    (
+        "x_cap",
+        0,
+        "x_cap(-1 uF, 60 Hz)",
+        "a capacitance is a real number ≥ 0",
+        "-1 uF",
+    ),
+    (
+        "x_cap",
+        1,
+        "x_cap(1 uF, -60 Hz)",
+        "a frequency is a real number ≥ 0",
+        "-60 Hz",
+    ),
+    (
+        "l_from_x",
+        0,
+        "l_from_x(-10 Ω, 60 Hz)",
+        "a negative one is a capacitor's",
+        "-10 Ω",
+    ),
+    (
+        "l_from_x",
+        1,
+        "l_from_x(10 Ω, -60 Hz)",
+        "a frequency is a positive real number",
+        "-60 Hz",
+    ),
+    (
+        "c_from_x",
+        0,
+        "c_from_x(10 Ω, 60 Hz)",
+        "a positive one is an inductor's",
+        "10 Ω",
+    ),
+    (
+        "c_from_x",
+        1,
+        "c_from_x(-10 Ω, 0 Hz)",
+        "a frequency is a positive real number",
+        "0 Hz",
+    ),
+    (
+        "f_res",
+        0,
+        "f_res(-1 mH, 1 uF)",
+        "an inductance is a positive real number",
+        "-1 mH",
+    ),
+    (
+        "f_res",
+        1,
+        "f_res(1 mH, -1 uF)",
+        "a capacitance is a positive real number",
+        "-1 uF",
+    ),
+    (
+        "q_series",
+        0,
+        "q_series(-1 Ω, 1 mH, 1 uF)",
+        "resistance of a resonant circuit",
+        "-1 Ω",
+    ),
+    (
+        "q_series",
+        1,
+        "q_series(1 Ω, -1 mH, 1 uF)",
+        "an inductance is a positive",
+        "-1 mH",
+    ),
+    (
+        "q_series",
+        2,
+        "q_series(1 Ω, 1 mH, -1 uF)",
+        "a capacitance is a positive",
+        "-1 uF",
+    ),
+    (
+        "q_parallel",
+        0,
+        "q_parallel(-1 kΩ, 1 mH, 1 uF)",
+        "resistance of a resonant circuit",
+        "-1 kΩ",
+    ),
+    (
+        "q_parallel",
+        1,
+        "q_parallel(1 kΩ, -1 mH, 1 uF)",
+        "an inductance is a positive",
+        "-1 mH",
+    ),
+    (
+        "q_parallel",
+        2,
+        "q_parallel(1 kΩ, 1 mH, -1 uF)",
+        "a capacitance is a positive",
+        "-1 uF",
+    ),
+    (
+        "q_of",
+        0,
+        "q_of((-1 + j5) Ω)",
+        "needs a finite impedance with R > 0",
+        "(-1 + j5) Ω",
+    ),
+    (
+        "p_max",
+        1,
+        "p_max(480 V, (-1 + j2) Ω)",
+        "Re Zth must be positive",
+        "(-1 + j2) Ω",
+    ),
+    (
+        "cap_delta",
+        0,
+        "cap_delta(-100 kvar, 480 V, 60 Hz)",
+        "a bank's rating is a finite real number ≥ 0",
+        "-100 kvar",
+    ),
+    (
+        "cap_delta",
+        1,
+        "cap_delta(100 kvar, 0 V, 60 Hz)",
+        "a bank's voltage cannot be 0",
+        "0 V",
+    ),
+    (
+        "cap_delta",
+        2,
+        "cap_delta(100 kvar, 480 V, -60 Hz)",
+        "a frequency is a positive real number",
+        "-60 Hz",
+    ),
+    (
+        "cap_wye",
+        0,
+        "cap_wye(-100 kvar, 480 V, 60 Hz)",
+        "a bank's rating is a finite real number ≥ 0",
+        "-100 kvar",
+    ),
+    (
+        "cap_wye",
+        1,
+        "cap_wye(100 kvar, 0 V, 60 Hz)",
+        "a bank's voltage cannot be 0",
+        "0 V",
+    ),
+    (
+        "cap_wye",
+        2,
+        "cap_wye(100 kvar, 480 V, 0 Hz)",
+        "a frequency is a positive real number",
+        "0 Hz",
+    ),
+    (
+        "cap_1ph",
+        0,
+        "cap_1ph(-10 kvar, 240 V, 60 Hz)",
+        "a bank's rating is a finite real number ≥ 0",
+        "-10 kvar",
+    ),
+    (
+        "cap_1ph",
+        1,
+        "cap_1ph(10 kvar, 0 V, 60 Hz)",
+        "a bank's voltage cannot be 0",
+        "0 V",
+    ),
+    (
+        "cap_1ph",
+        2,
+        "cap_1ph(10 kvar, 240 V, -60 Hz)",
+        "a frequency is a positive real number",
+        "-60 Hz",
+    ),
     ("z_base", 0, "z_base(0 V, 1 MVA)", "a base voltage cannot be 0", "0 V"),
     ("z_base", 1, "z_base(13.8 kV, 0 VA)", "a base power cannot be 0", "0 VA"),
     ("i_base", 0, "i_base(0 V, 1 MVA)", "a base voltage cannot be 0", "0 V"),
     ("i_base", 1, "i_base(13.8 kV, 0 VA)", "a base power cannot be 0", "0 VA"),
-    ("pu_to_ohm", 1, "pu_to_ohm(0.05 pu, 0 V, 1 MVA)", "a base voltage cannot be 0", "0 V"),
-    ("pu_to_ohm", 2, "pu_to_ohm(0.05 pu, 480 V, 0 VA)", "a base power cannot be 0", "0 VA"),
-    ("ohm_to_pu", 1, "ohm_to_pu(1 Ω, 0 V, 1 MVA)", "a base voltage cannot be 0", "0 V"),
-    ("ohm_to_pu", 2, "ohm_to_pu(1 Ω, 480 V, 0 VA)", "a base power cannot be 0", "0 VA"),
-    ("rebase", 1, "rebase(0.05 pu, 0 V, 1 MVA, 480 V, 2 MVA)", "a base voltage cannot be 0", "0 V"),
-    ("rebase", 2, "rebase(0.05 pu, 480 V, 0 VA, 480 V, 2 MVA)", "a base power cannot be 0", "0 VA"),
-    ("rebase", 3, "rebase(0.05 pu, 480 V, 1 MVA, 0 V, 2 MVA)", "a base voltage cannot be 0", "0 V"),
-    ("rebase", 4, "rebase(0.05 pu, 480 V, 1 MVA, 480 V, 0 VA)", "a base power cannot be 0", "0 VA"),
+    (
+        "pu_to_ohm",
+        1,
+        "pu_to_ohm(0.05 pu, 0 V, 1 MVA)",
+        "a base voltage cannot be 0",
+        "0 V",
+    ),
+    (
+        "pu_to_ohm",
+        2,
+        "pu_to_ohm(0.05 pu, 480 V, 0 VA)",
+        "a base power cannot be 0",
+        "0 VA",
+    ),
+    (
+        "ohm_to_pu",
+        1,
+        "ohm_to_pu(1 Ω, 0 V, 1 MVA)",
+        "a base voltage cannot be 0",
+        "0 V",
+    ),
+    (
+        "ohm_to_pu",
+        2,
+        "ohm_to_pu(1 Ω, 480 V, 0 VA)",
+        "a base power cannot be 0",
+        "0 VA",
+    ),
+    (
+        "rebase",
+        1,
+        "rebase(0.05 pu, 0 V, 1 MVA, 480 V, 2 MVA)",
+        "a base voltage cannot be 0",
+        "0 V",
+    ),
+    (
+        "rebase",
+        2,
+        "rebase(0.05 pu, 480 V, 0 VA, 480 V, 2 MVA)",
+        "a base power cannot be 0",
+        "0 VA",
+    ),
+    (
+        "rebase",
+        3,
+        "rebase(0.05 pu, 480 V, 1 MVA, 0 V, 2 MVA)",
+        "a base voltage cannot be 0",
+        "0 V",
+    ),
+    (
+        "rebase",
+        4,
+        "rebase(0.05 pu, 480 V, 1 MVA, 480 V, 0 VA)",
+        "a base power cannot be 0",
+        "0 VA",
+    ),
     (
         "line_rlgc",
         0,
@@ -98,7 +332,13 @@ const RANGE_CASES: &[(&str, usize, &str, &str, &str)] = &[
         "-60 Hz",
     ),
     ("return_loss", 0, "return_loss(1.5)", "|Γ| > 1", "1.5"),
-    ("sc_peak", 2, "sc_peak(480 V, (0.002 + j0.01) Ω, -1.1)", "`c` must be a real factor > 0", "-1.1"),
+    (
+        "sc_peak",
+        2,
+        "sc_peak(480 V, (0.002 + j0.01) Ω, -1.1)",
+        "`c` must be a real factor > 0",
+        "-1.1",
+    ),
 ];
 
 #[test]
@@ -146,7 +386,10 @@ fn the_edges_of_the_ranges_keep_their_limits() {
     // a lossless line: Zc = √(L/C) = √(1e-3/10e-9) = 316.23 Ω, real
     // (telegrapher's equations, from memory)
     let zc = value(&e, "line.Zc");
-    assert!((zc.re - (1e-3f64 / 10e-9).sqrt()).abs() < 1e-9 && zc.im.abs() < 1e-9, "{zc}");
+    assert!(
+        (zc.re - (1e-3f64 / 10e-9).sqrt()).abs() < 1e-9 && zc.im.abs() < 1e-9,
+        "{zc}"
+    );
     // a total reflection, |Γ| = 1 (an open or a short), is 0 dB
     assert_eq!(value(&e, "rl").re, 0.0);
     assert_eq!(value(&e, "rm").re, 0.0);
@@ -189,7 +432,12 @@ fn a_batch_refuses_negative_ratings_row_by_row() {
     std::fs::write(&cases_path, cases).unwrap();
     let out = dir.path().join("r.csv");
     ohmsheet()
-        .args(["batch", sheet.to_str().unwrap(), "--cases", cases_path.to_str().unwrap()])
+        .args([
+            "batch",
+            sheet.to_str().unwrap(),
+            "--cases",
+            cases_path.to_str().unwrap(),
+        ])
         .args(["--out", out.to_str().unwrap(), "--quiet"])
         .assert()
         .code(1);
@@ -205,5 +453,9 @@ fn a_batch_refuses_negative_ratings_row_by_row() {
         }
     }
     let errs = std::fs::read_to_string(dir.path().join("r.errors.csv")).unwrap();
-    assert_eq!(errs.matches("a bank's rating is a finite real number ≥ 0").count(), 10, "{errs}");
+    assert_eq!(
+        errs.matches("a bank's rating is a finite real number ≥ 0").count(),
+        10,
+        "{errs}"
+    );
 }
