@@ -85,6 +85,8 @@ pub struct Document {
     in_place_since_compile: usize,
     /// The files of the last whole compile (the main file first).
     pub files: Vec<SheetFile>,
+    /// Library values this sheet's `@override` lines replace.
+    pub overrides: Vec<crate::sheet::Override>,
     has_network: bool,
     opts: LoadOptions,
     pub counts: EditCounts,
@@ -121,6 +123,7 @@ impl Document {
             edited: HashMap::new(),
             in_place_since_compile: 0,
             files: Vec::new(),
+            overrides: Vec::new(),
             has_network: false,
             opts,
             counts: EditCounts::default(),
@@ -323,6 +326,7 @@ impl Document {
         model.diagnostics.extend(load_error);
         self.main = sheet.main;
         self.files = sheet.files;
+        self.overrides = sheet.overrides;
         self.has_network = sheet.stmts.iter().any(|s| matches!(s.kind, StmtKind::Network(_)));
         self.engine = Engine::new(model);
         let bom = if self.text.starts_with('\u{FEFF}') { 3 } else { 0 };

@@ -18,8 +18,12 @@
 //! - `values.rs`: values as people read them (shared with the session).
 
 pub mod document;
+pub mod explain;
 pub mod hints;
+pub mod hover;
+pub mod navigate;
 pub mod problems;
+pub mod symbols;
 pub mod values;
 
 pub use document::{Document, Located, Place};

@@ -8,7 +8,9 @@
 //! - `mod.rs`: the loop, documents, settings, dispatch, cancellation;
 //! - `convert.rs`: positions, ranges, `file:` URIs;
 //! - `diagnostics.rs`: problems published on open and on every change;
-//! - `hints.rs`: inlay hints (values and check verdicts).
+//! - `hints.rs`: inlay hints (values and check verdicts);
+//! - `hover.rs`: hover on cells, functions, units, directives;
+//! - `navigate.rs`: go to definition, find references.
 //!
 //! The server is synchronous (one thread does the analysis; the protocol
 //! crate reads and writes on two more). It never writes a file, never
@@ -35,6 +37,8 @@ use crate::sheet::LoadOptions;
 pub mod convert;
 pub mod diagnostics;
 pub mod hints;
+pub mod hover;
+pub mod navigate;
 
 /// An open document.
 pub struct Open {
@@ -79,6 +83,9 @@ pub fn capabilities() -> ServerCapabilities {
         position_encoding: Some(PositionEncodingKind::UTF16),
         text_document_sync: Some(TextDocumentSyncCapability::Kind(TextDocumentSyncKind::INCREMENTAL)),
         inlay_hint_provider: Some(lsp_types::OneOf::Left(true)),
+        hover_provider: Some(lsp_types::HoverProviderCapability::Simple(true)),
+        definition_provider: Some(lsp_types::OneOf::Left(true)),
+        references_provider: Some(lsp_types::OneOf::Left(true)),
         ..ServerCapabilities::default()
     }
 }
@@ -209,6 +216,18 @@ impl Server {
             request::InlayHintRequest::METHOD => {
                 let p = params::<lsp_types::InlayHintParams>(req.params)?;
                 Ok(serde_json::to_value(hints::inlay_hints(self, &p)).unwrap_or(Value::Null))
+            }
+            request::HoverRequest::METHOD => {
+                let p = params::<lsp_types::HoverParams>(req.params)?;
+                Ok(serde_json::to_value(hover::hover(self, &p)).unwrap_or(Value::Null))
+            }
+            request::GotoDefinition::METHOD => {
+                let p = params::<lsp_types::GotoDefinitionParams>(req.params)?;
+                Ok(serde_json::to_value(navigate::definition(self, &p)).unwrap_or(Value::Null))
+            }
+            request::References::METHOD => {
+                let p = params::<lsp_types::ReferenceParams>(req.params)?;
+                Ok(serde_json::to_value(navigate::references(self, &p)).unwrap_or(Value::Null))
             }
             _ => Err((
                 ErrorCode::MethodNotFound,

@@ -1,13 +1,12 @@
 //! How a session shows things: values, changes, the cell list, the
 //! dependency tree of `/why`, the users of `/feeds`, `/about` and `/help`.
 
-use std::collections::BTreeSet;
-
 use super::journal::Entry;
-use super::state::{plural, Session, Shown, COMMANDS};
+use super::state::{Session, Shown, COMMANDS};
+use crate::analysis::explain::{self, Context};
 pub use crate::analysis::values::{cell_label, cell_vals, value};
 use crate::engine::model::signature;
-use crate::engine::{CellId, Role};
+use crate::engine::CellId;
 use crate::units::format::{base_symbol, fmt_sig};
 
 /// The most lines `/why` and a change report print.
@@ -111,123 +110,29 @@ pub fn cells(s: &Session, filter: &str) -> String {
     out
 }
 
-fn node(s: &Session, id: CellId) -> String {
-    let c = &s.engine.model.cells[id as usize];
-    let v = s.cell_value(id);
-    let f = c.formula.trim();
-    let m = &s.engine.model;
-    // A library value this sheet overrides: both places.
-    if let Some(lib) = s
-        .doc
-        .overrides
-        .iter()
-        .find(|o| o.name == c.name)
-        .and_then(|o| o.library)
-    {
-        // The main sheet as the prompt names it; a library by its path
-        // from the sheet's folder.
-        let name = |f: crate::diag::FileId| match s.doc.files.iter().find(|x| x.id == f) {
-            _ if f == s.doc.main => s.display_name(),
-            Some(x) => x.rel.clone(),
-            None => m.sources.get(f).name.clone(),
-        };
-        let place = |sp: crate::diag::Span| format!("{}:{}", name(sp.file), m.sources.line_of(sp));
-        return format!(
-            "{} = {f}  ⇒ {v}   · @override at {}, of the library value at {}",
-            c.name,
-            place(c.name_span),
-            place(lib)
-        );
-    }
-    if c.input {
-        if f == v {
-            format!("{} = {f}   · input", c.name)
-        } else {
-            format!("{} = {f}  ⇒ {v}   · input", c.name)
-        }
-    } else {
-        format!("{} = {f}  ⇒ {v}", c.name)
+/// What `/why` and `/feeds` see of the session.
+fn context(s: &Session) -> Context<'_> {
+    Context {
+        engine: &s.engine,
+        display: crate::analysis::Display {
+            style: s.style,
+            polar: s.polar,
+        },
+        overrides: &s.doc.overrides,
+        files: &s.doc.files,
+        main: s.doc.main,
+        main_name: s.display_name(),
     }
 }
 
-/// `/why NAME`: the cell's formula and value, and under it every cell it
-/// uses, recursively down to the inputs. A cell met a second time is not
-/// expanded again.
+/// `/why NAME` (see `analysis::explain::why`).
 pub fn why(s: &Session, root: CellId) -> String {
-    let m = &s.engine.model;
-    let mut out = String::new();
-    let mut lines = 0usize;
-    let mut expanded: BTreeSet<CellId> = BTreeSet::new();
-    // (cell, prefix for its children, its own branch text)
-    let mut stack: Vec<(CellId, String, String)> = vec![(root, String::new(), String::new())];
-    while let Some((id, prefix, branch)) = stack.pop() {
-        if lines >= MAX_LINES {
-            out.push_str("… (the tree goes on; ask /why for a cell further down)\n");
-            break;
-        }
-        lines += 1;
-        let c = &m.cells[id as usize];
-        let again = !c.deps.is_empty() && expanded.contains(&id);
-        if again {
-            out.push_str(&format!("{branch}{} ⇒ {}   (shown above)\n", c.name, s.cell_value(id)));
-            continue;
-        }
-        out.push_str(&format!("{branch}{}\n", node(s, id)));
-        expanded.insert(id);
-        let n = c.deps.len();
-        for (k, &d) in c.deps.iter().enumerate().rev() {
-            let last = k + 1 == n;
-            let b = format!("{prefix}{}", if last { "└─ " } else { "├─ " });
-            let p = format!("{prefix}{}", if last { "   " } else { "│  " });
-            stack.push((d, p, b));
-        }
-    }
-    if m.cells[root as usize].input {
-        out.push_str("  (an input: its formula uses no other cell)\n");
-    }
-    out
+    explain::why(&context(s), root, MAX_LINES)
 }
 
-/// `/feeds NAME`: every cell whose value depends on this one, in the
-/// order they are computed.
+/// `/feeds NAME` (see `analysis::explain::feeds`).
 pub fn feeds(s: &Session, id: CellId) -> String {
-    let m = &s.engine.model;
-    let direct: BTreeSet<CellId> = m.dependents[id as usize].iter().copied().collect();
-    let mut all: BTreeSet<CellId> = BTreeSet::new();
-    let mut todo: Vec<CellId> = direct.iter().copied().collect();
-    while let Some(d) = todo.pop() {
-        if all.insert(d) {
-            todo.extend(m.dependents[d as usize].iter().copied());
-        }
-    }
-    let name = &m.cells[id as usize].name;
-    if all.is_empty() {
-        return format!("no other cell uses {name}\n");
-    }
-    let mut v: Vec<CellId> = all.into_iter().collect();
-    v.sort_by_key(|&d| (m.rank[d as usize], d));
-    let mut out = format!(
-        "{name} feeds {} cell{} ({} directly):\n",
-        v.len(),
-        plural(v.len()),
-        direct.len()
-    );
-    for &d in v.iter().take(MAX_LINES) {
-        let c = &m.cells[d as usize];
-        let mark = if direct.contains(&d) { "•" } else { " " };
-        let text = if c.role == Role::Check {
-            // The check's formula reads `check a ~= b …` already.
-            format!("{}  {}", c.formula.trim(), s.cell_value(d))
-        } else {
-            format!("{} = {}  ⇒ {}", c.name, c.formula.trim(), s.cell_value(d))
-        };
-        out.push_str(&format!("  {mark} {text}\n"));
-    }
-    if v.len() > MAX_LINES {
-        out.push_str(&format!("  … and {} more\n", v.len() - MAX_LINES));
-    }
-    out.push_str("  (• uses it directly)\n");
-    out
+    explain::feeds(&context(s), id, MAX_LINES)
 }
 
 /// `/about NAME`: a function's signature, a unit's meaning, or a cell.
@@ -264,7 +169,7 @@ pub fn about(s: &Session, name: &str) -> String {
     let m = &s.engine.model;
     if let Some(id) = m.id(name) {
         let c = &m.cells[id as usize];
-        out.push_str(&format!("cell {}\n", node(s, id)));
+        out.push_str(&format!("cell {}\n", explain::node(&context(s), id)));
         if let Some(cm) = &c.comment {
             out.push_str(&format!("  note: {cm}\n"));
         }

@@ -232,6 +232,57 @@ impl Client {
         r.as_array().cloned().unwrap_or_default()
     }
 
+    /// A request at a position of a document (`textDocument/hover`,
+    /// `textDocument/definition`, …); its result.
+    pub fn at(&mut self, method: &str, uri: &str, line: u32, character: u32) -> Value {
+        self.call(
+            method,
+            json!({"textDocument": {"uri": uri}, "position": {"line": line, "character": character}}),
+        )
+    }
+
+    /// The hover text at a position ("" when there is none).
+    pub fn hover(&mut self, uri: &str, line: u32, character: u32) -> String {
+        let r = self.at("textDocument/hover", uri, line, character);
+        match &r["contents"] {
+            Value::Object(o) => o.get("value").and_then(Value::as_str).unwrap_or("").to_string(),
+            Value::String(s) => s.clone(),
+            _ => String::new(),
+        }
+    }
+
+    /// Every reference to the name at a position, as (uri, line, start
+    /// character, end character).
+    pub fn references(
+        &mut self,
+        uri: &str,
+        line: u32,
+        character: u32,
+        declaration: bool,
+    ) -> Vec<(String, u64, u64, u64)> {
+        let r = self.call(
+            "textDocument/references",
+            json!({"textDocument": {"uri": uri}, "position": {"line": line, "character": character},
+                   "context": {"includeDeclaration": declaration}}),
+        );
+        let mut v: Vec<(String, u64, u64, u64)> = r
+            .as_array()
+            .cloned()
+            .unwrap_or_default()
+            .iter()
+            .map(|l| {
+                (
+                    l["uri"].as_str().unwrap_or("").to_string(),
+                    l["range"]["start"]["line"].as_u64().unwrap_or(0),
+                    l["range"]["start"]["character"].as_u64().unwrap_or(0),
+                    l["range"]["end"]["character"].as_u64().unwrap_or(0),
+                )
+            })
+            .collect();
+        v.sort();
+        v
+    }
+
     /// `shutdown` then `exit`; the server's exit status.
     pub fn shutdown(mut self) -> Option<i32> {
         let r = self.request("shutdown", Value::Null);

@@ -213,6 +213,12 @@ const META_LABELS: &[(&str, &str)] = &[
 
 /// The manifest the sheet hash is taken over: `sha256sum`-style lines,
 /// one per file, then one per override.
+/// The formula `e` with the values of the cells it names put in, as a
+/// report writes it (the language server's hover shows it too).
+pub fn substituted(engine: &Engine, style: Style, e: &Expr) -> String {
+    Substituter { engine, style }.expr(e, Pos::Top)
+}
+
 pub fn hash_manifest(sheet: &Sheet, overrides: &[String]) -> String {
     let mut m = String::new();
     for f in &sheet.files {
