@@ -33,6 +33,8 @@ ENTRIES = [
     ("network-shape", "A network whose shape leaves its equations without a solution whatever the values: a node with no "
      "path to ground, nodes hanging on current sources, a loop of ideal voltage sources, or no elements.",
      "network feed at 50 Hz\n  E1 = emf(a, ground, 1 V)\n  E2 = emf(a, ground, 2 V)\nend\n", None),
+    ("network-too-large", "A network with more than 10,000 nodes besides `ground`, or more than 20,000 elements "
+     "(docs/limits.md).", None, "A generated network block of 10,001 branches in a chain."),
     ("bad-number", "A number beyond the range of a double once its prefix and unit scale it to SI units: too large, "
      "or so small it would read as 0; or a unit whose scale is beyond a double (see docs/limits.md).", "x = 1e999\n", None),
     ("unknown-unit", "A unit word the table does not know.", "R = 20 ohms\n", None),

@@ -18,7 +18,7 @@ secs="${1:-240}"
 shift || true
 targets=("$@")
 if [ ${#targets[@]} -eq 0 ]; then
-    targets=(parse eval units cases session)
+    targets=(parse eval units cases session network)
 fi
 export RUSTC_BOOTSTRAP=1
 seeds_of() {
@@ -26,6 +26,7 @@ seeds_of() {
         units) echo fuzz/seeds/units ;;
         cases) echo fuzz/seeds/cases ;;
         session) echo fuzz/seeds/session ;;
+        network) echo fuzz/seeds/network ;;
         *) echo fuzz/seeds/sheets ;;
     esac
 }

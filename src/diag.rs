@@ -207,6 +207,7 @@ error_codes! {
     NetworkBlock => "network-block",
     NetworkElement => "network-element",
     NetworkShape => "network-shape",
+    NetworkTooLarge => "network-too-large",
     BadNumber => "bad-number",
     UnknownUnit => "unknown-unit",
     AmbiguousUnit => "ambiguous-unit",

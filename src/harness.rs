@@ -256,3 +256,143 @@ pub fn session_bytes(data: &[u8]) {
         }
     }
 }
+
+/// Network blocks built from arbitrary bytes: each byte picks the next
+/// part of a block — its frequency, element forms, node and element names
+/// (mistyped ones among them), values (shorts, opens, ∞, NaN, wrong units,
+/// per-unit), results asked of it — so a fuzzer reaches the network's
+/// shape checks, lowering and solve far more often than random text would.
+/// The sheet then goes through `eval_text`, and every NaN is explained
+/// (the path that re-solves a failing case).
+pub fn network_bytes(data: &[u8]) {
+    explain_text(&network_text(data));
+}
+
+/// `eval_text`, then every NaN of the sheet explained as `run` explains it
+/// (for a network, the failing case solved again and put in words).
+pub fn explain_text(text: &str) {
+    eval_text(text);
+    let model = compile(&Sheet::from_text("fuzz.ohm", text));
+    if model.has_errors() {
+        return;
+    }
+    let engine = Engine::new(model);
+    for id in engine.nan_origins() {
+        let d = engine.nan_diagnostic(id);
+        check_diagnostic(&d, &engine.model.sources);
+    }
+}
+
+/// The sheet `network_bytes` builds from `data`.
+pub fn network_text(data: &[u8]) -> String {
+    const FREQS: &[&str] = &[
+        "50 Hz",
+        "1 kHz",
+        "314 rad/s",
+        "0 Hz",
+        "-5 Hz",
+        "1e300 Hz",
+        "5 V",
+        "f",
+        "(0/0) Hz",
+    ];
+    const NODES: &[&str] = &["ground", "a", "b", "c", "bus", "n1", "bsu", "R1", "end"];
+    const FORMS: &[&str] = &[
+        "branch", "emf", "inject", "vgain", "transadm", "transimp", "igain", "xformer", "mutual", "brnch",
+    ];
+    const VALUES: &[&str] = &[
+        "1 Ω",
+        "0 Ω",
+        "(1/0) Ω",
+        "0 S",
+        "10 mH",
+        "1 µF",
+        "0 F",
+        "-3 Ω",
+        "j5 Ω",
+        "(2 - j3) Ω",
+        "1 V",
+        "230 V ∠ -30°",
+        "2 A",
+        "0.5",
+        "2 ∠ 30°",
+        "1e308 Ω",
+        "1e-300 Ω",
+        "(0/0) Ω",
+        "0.1 pu",
+        "x",
+        "3 mS",
+        "-1",
+        "0",
+        "f",
+    ];
+    let mut k = 0usize;
+    let mut next = |n: usize| -> usize {
+        let b = data.get(k).copied().unwrap_or(0) as usize;
+        k += 1;
+        b % n
+    };
+    let mut s = String::from("f = 50 Hz\nx = 2 Ω\n");
+    let blocks = 1 + next(2);
+    for net in 0..blocks {
+        s += &format!("network n{net} at {}\n", FREQS[next(FREQS.len())]);
+        let count = next(8);
+        let mut names: Vec<String> = Vec::new();
+        for e in 0..count {
+            let form = FORMS[next(FORMS.len())];
+            let name = if next(12) == 0 && !names.is_empty() {
+                names[0].clone()
+            } else {
+                format!("E{net}_{e}")
+            };
+            let node = |i: usize| NODES[i % NODES.len()].to_string();
+            let elem = |i: usize, names: &[String]| {
+                if names.is_empty() || i.is_multiple_of(5) {
+                    "Lx".to_string()
+                } else {
+                    names[i % names.len()].clone()
+                }
+            };
+            let mut args: Vec<String> = match form {
+                "vgain" | "transadm" | "xformer" => (0..4).map(|_| node(next(NODES.len()))).collect(),
+                "transimp" | "igain" => vec![node(next(NODES.len())), node(next(NODES.len())), elem(next(64), &names)],
+                "mutual" => vec![elem(next(64), &names), elem(next(64), &names)],
+                _ => vec![node(next(NODES.len())), node(next(NODES.len()))],
+            };
+            args.push(VALUES[next(VALUES.len())].to_string());
+            if matches!(form, "emf" | "inject") && next(2) == 0 {
+                args.push(VALUES[next(VALUES.len())].to_string());
+            }
+            if next(16) == 0 {
+                args.pop();
+            }
+            s += &format!("  {name} = {form}({})\n", args.join(", "));
+            names.push(name);
+        }
+        if next(10) != 0 {
+            s += "end\n";
+        }
+        let pick = |i: usize, names: &[String]| {
+            if names.is_empty() {
+                "E".to_string()
+            } else {
+                names[i % names.len()].clone()
+            }
+        };
+        for r in 0..next(5) {
+            let (p, q) = (NODES[next(NODES.len())], NODES[next(NODES.len())]);
+            let line = match next(8) {
+                0 => format!("net_v(n{net}, {p})"),
+                1 => format!("net_v(n{net}, {p}, {q})"),
+                2 => format!("net_i(n{net}, {})", pick(next(64), &names)),
+                3 => format!("net_s(n{net}, {})", pick(next(64), &names)),
+                4 => format!("net_thevenin(n{net}, {p}, {q})"),
+                5 => format!("net_z(n{net}, {p}, {q})"),
+                6 => format!("net_y(n{net}, {q}, {p})"),
+                _ => format!("net_balance(n{net})"),
+            };
+            s += &format!("r{net}_{r} = {line}\n");
+        }
+    }
+    s
+}

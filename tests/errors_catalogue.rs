@@ -156,3 +156,21 @@ fn control_character() {
             .stderr(predicate::str::contains("error[control-character]"));
     }
 }
+
+/// `network-too-large`: a generated network one node past the limit.
+#[test]
+fn network_too_large() {
+    let n = ohmsheet::network::MAX_NODES + 1;
+    let mut s = String::from("network big at 50 Hz\n  E = emf(n1, ground, 1 V, 1 Ω)\n");
+    for k in 1..n {
+        s += &format!("  R{k} = branch(n{k}, n{}, 1 Ω)\n", k + 1);
+    }
+    s += &format!("  R{n} = branch(n{n}, ground, 1 Ω)\nend\n");
+    let m = ohmsheet::engine::compile(&ohmsheet::sheet::Sheet::from_text("t.ohm", &s));
+    assert_eq!(
+        m.diagnostics[0].code,
+        ErrorCode::NetworkTooLarge,
+        "{}",
+        m.diagnostics[0].message
+    );
+}

@@ -53,16 +53,28 @@ fn cases_regressions() {
 }
 
 #[test]
+fn network_regressions() {
+    replay("network", ohmsheet::harness::network_bytes);
+}
+
+#[test]
 fn session_regressions() {
     replay("session", ohmsheet::harness::session_bytes);
 }
 
 #[test]
 fn seed_corpus_passes_every_check() {
-    let n = each_file(&repo("fuzz/seeds/sheets"), |_, data| {
-        ohmsheet::harness::parse_bytes(data);
-        ohmsheet::harness::eval_bytes(data);
+    let mut broken = Vec::new();
+    let n = each_file(&repo("fuzz/seeds/sheets"), |p, data| {
+        let r = std::panic::catch_unwind(|| {
+            ohmsheet::harness::parse_bytes(data);
+            ohmsheet::harness::eval_bytes(data);
+        });
+        if r.is_err() {
+            broken.push(p.display().to_string());
+        }
     });
+    assert!(broken.is_empty(), "seeds that break an invariant: {broken:#?}");
     assert!(n >= 50, "only {n} seeds");
     let n = each_file(&repo("fuzz/seeds/units"), |_, data| ohmsheet::harness::unit_bytes(data));
     assert!(n >= 20, "only {n} unit seeds");
@@ -74,6 +86,10 @@ fn seed_corpus_passes_every_check() {
         ohmsheet::harness::session_bytes(data)
     });
     assert!(n >= 4, "only {n} session seeds");
+    let n = each_file(&repo("fuzz/seeds/network"), |_, data| {
+        ohmsheet::harness::network_bytes(data)
+    });
+    assert!(n >= 20, "only {n} network seeds");
 }
 
 /// The harness does catch a broken invariant: a diagnostic whose span

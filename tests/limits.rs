@@ -55,6 +55,8 @@ fn documented_limits_match_the_code() {
         ("scan points", MAX_SCAN),
         ("search iterations", search::DEFAULT_MAX_ITER as usize),
         ("function arguments", ohmsheet::funcs::MAX_CALL_ARGS),
+        ("network nodes", ohmsheet::network::MAX_NODES),
+        ("network elements", ohmsheet::network::MAX_ELEMENTS),
     ] {
         let row = doc
             .lines()
@@ -166,6 +168,36 @@ fn number_of_cells() {
     assert!(!compile_limited(&sheet, 3).has_errors());
     let m = compile_limited(&sheet, 2);
     assert_eq!(m.diagnostics[0].code, ErrorCode::TooManyCells);
+}
+
+/// A network of MAX_NODES nodes (a chain) and one of MAX_ELEMENTS
+/// elements (in parallel) compile; one more node or element is refused
+/// at the network's head.
+#[test]
+fn network_size() {
+    use ohmsheet::network::{MAX_ELEMENTS, MAX_NODES};
+    let chain = |n: usize| {
+        let mut s = String::from("network big at 50 Hz\n  E = emf(n1, ground, 1 V, 1 Ω)\n");
+        for k in 1..n {
+            s += &format!("  R{k} = branch(n{k}, n{}, 1 Ω)\n", k + 1);
+        }
+        s + &format!("  R{n} = branch(n{n}, ground, 1 Ω)\nend\n")
+    };
+    let wide = |n: usize| {
+        let mut s = String::from("network wide at 50 Hz\n  E = emf(a, ground, 1 V, 1 Ω)\n");
+        for k in 1..n {
+            s += &format!("  R{k} = branch(a, ground, 1 kΩ)\n");
+        }
+        s + "end\n"
+    };
+    let codes = |src: String| -> Vec<ErrorCode> {
+        let m = ohmsheet::engine::compile(&Sheet::from_text("t.ohm", &src));
+        m.diagnostics.iter().filter(|d| d.is_error()).map(|d| d.code).collect()
+    };
+    assert_eq!(codes(chain(MAX_NODES)), []);
+    assert_eq!(codes(chain(MAX_NODES + 1)), [ErrorCode::NetworkTooLarge]);
+    assert_eq!(codes(wide(MAX_ELEMENTS)), []);
+    assert_eq!(codes(wide(MAX_ELEMENTS + 1)), [ErrorCode::NetworkTooLarge]);
 }
 
 /// Literals must be doubles once their prefix or unit scales them to SI.

@@ -7,7 +7,7 @@ pub mod netlist;
 pub mod solve;
 pub mod topology;
 
-pub use netlist::{CouplingBy, Elem, ElemKind, Given, Net, GROUND};
+pub use netlist::{CouplingBy, Elem, ElemKind, Given, Net, GROUND, MAX_ELEMENTS, MAX_NODES};
 pub use solve::{solve, Failure, Request, Solution};
 pub use topology::{check as check_topology, TopoError};
 pub mod program;

@@ -109,6 +109,17 @@ pub struct Net {
 /// The name of the reference node.
 pub const GROUND: &str = "ground";
 
+/// The most nodes (besides `ground`) one network may have. Each case
+/// factors one matrix of the node voltages and the currents the modified
+/// nodal equations add; kept dense it needs 16·n² bytes (1.6 GB at
+/// 10,000 unknowns), so past this a sheet is refused rather than left to
+/// exhaust memory (docs/limits.md).
+pub const MAX_NODES: usize = 10_000;
+
+/// The most elements one network may have (docs/limits.md): twice the
+/// nodes, as many as a square mesh of MAX_NODES nodes has branches.
+pub const MAX_ELEMENTS: usize = 20_000;
+
 impl Net {
     /// An empty network with only the reference node; element values start
     /// after ω.

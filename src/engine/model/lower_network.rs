@@ -167,6 +167,19 @@ impl Lowerer<'_> {
             )
             .with_hint(format!("add element lines before `end`: {FORMS}")));
         }
+        if decl.elems.len() > network::MAX_ELEMENTS {
+            return Err(Diagnostic::error(
+                ErrorCode::NetworkTooLarge,
+                decl.head_span,
+                format!(
+                    "network `{}` has {} elements; a network may have at most {}",
+                    head.name.name,
+                    decl.elems.len(),
+                    network::MAX_ELEMENTS
+                ),
+            )
+            .with_hint("split it into networks joined by Thevenin equivalents (docs/limits.md)"));
+        }
         // Frequency.
         let (f, fq) = self.scalar(em, &head.freq)?;
         crate::funcs::want_frequency(&[fq], 0, "the network's frequency").map_err(|ae| {
@@ -406,6 +419,19 @@ impl Lowerer<'_> {
                 unreachable!("ground is node 0: {k}");
             }
         }
+        if net.nodes.len() - 1 > network::MAX_NODES {
+            return Err(Diagnostic::error(
+                ErrorCode::NetworkTooLarge,
+                decl.head_span,
+                format!(
+                    "network `{}` has {} nodes besides `ground`; a network may have at most {}",
+                    head.name.name,
+                    net.nodes.len() - 1,
+                    network::MAX_NODES
+                ),
+            )
+            .with_hint("split it into networks joined by Thevenin equivalents (docs/limits.md)"));
+        }
         if let Some(t) = network::check_topology(&net).into_iter().next() {
             let mut d = Diagnostic::error(
                 ErrorCode::NetworkShape,
@@ -416,12 +442,39 @@ impl Lowerer<'_> {
                 network::TopoError::VoltageLoop { elems } | network::TopoError::CurrentCut { sources: elems, .. } => {
                     elems.clone()
                 }
-                network::TopoError::Floating { .. } => Vec::new(),
+                // The elements that reach the floating nodes.
+                network::TopoError::Floating { nodes } => net
+                    .elems
+                    .iter()
+                    .filter(|e| !matches!(e.kind, ElemKind::Coupling { .. }))
+                    .filter(|e| nodes.contains(&net.nodes[e.a]) || nodes.contains(&net.nodes[e.b]))
+                    .map(|e| e.name.clone())
+                    .collect(),
             };
             for n in named {
                 if let Some(e) = decl.elems.iter().find(|e| e.name.name == n) {
                     d = d.with_secondary(e.name.span, "here");
                 }
+            }
+            // A node that floats may be a slip for another node's name.
+            let stranded = match &t {
+                network::TopoError::Floating { nodes } | network::TopoError::CurrentCut { nodes, .. } => nodes.clone(),
+                network::TopoError::VoltageLoop { .. } => Vec::new(),
+            };
+            let slips: Vec<String> = stranded
+                .iter()
+                .filter_map(|n| {
+                    let others = net
+                        .nodes
+                        .iter()
+                        .map(String::as_str)
+                        .filter(|o| !stranded.iter().any(|s| s == o));
+                    did_you_mean(n, others).map(|s| format!("`{n}`: did you mean `{s}`?"))
+                })
+                .collect();
+            if !slips.is_empty() {
+                d = d.with_hint(slips.join("; "));
+                return Err(d);
             }
             let hint = match t {
                 network::TopoError::Floating { .. } => {
