@@ -84,6 +84,9 @@ ENTRIES = [
     ("tolerance-unit", "An input's tolerance in a unit that does not fit the input (kW for a kvar input, a "
      "plain number for volts), or an angle band not in degrees or radians.",
      "P = 1.2 MW within 50 kvar\n", None),
+    ("no-tolerances", "`ohmsheet spread` on a sheet that states no tolerance on any input, or with nothing to "
+     "analyse.", None,
+     "`ohmsheet spread feeder.ohm` where no input has `within …` or `among …` (tested in tests/spread.rs)."),
     ("unknown-directive", "An `@word` the language does not know.", "@titel \"Feeder 3\"\nx = 1\n", None),
     ("bad-directive", "A directive with a wrong value.", "@amplitude average\nx = 1\n", None),
     ("not-a-number", "A cell evaluated to NaN. When a function's argument lies outside its domain the "

@@ -234,6 +234,7 @@ error_codes! {
     ToleranceNotOnInput => "tolerance-not-on-input",
     BadInputTolerance => "bad-input-tolerance",
     ToleranceUnit => "tolerance-unit",
+    NoTolerances => "no-tolerances",
     UnknownDirective => "unknown-directive",
     BadDirective => "bad-directive",
     NotANumber => "not-a-number",

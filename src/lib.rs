@@ -20,6 +20,7 @@ pub mod output;
 pub mod plot;
 pub mod session;
 pub mod sheet;
+pub mod spread;
 pub mod sweep;
 pub mod syntax;
 pub mod units;

@@ -49,6 +49,7 @@ mod report_browser;
 mod scale_sheet;
 mod search_sheet;
 mod session_pty;
+mod spread;
 mod sweep;
 mod tolerances;
 mod two_ports;

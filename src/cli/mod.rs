@@ -22,6 +22,7 @@ mod batch;
 mod check;
 mod report;
 mod run;
+mod spread;
 mod sweep;
 mod watch;
 
@@ -102,6 +103,8 @@ ohmsheet watch feeder.ohm --set \"Vs=415 V\" --digits 6")]
     Sweep(sweep::SweepArgs),
     /// Find the input value that brings an expression to a target, or to its largest or smallest value
     Solve(sweep::SolveArgs),
+    /// How far the shown cells can move over the inputs' tolerances: worst case, Monte Carlo, sensitivities
+    Spread(spread::SpreadArgs),
     /// List the built-in functions with their units
     #[command(after_help = "Examples:\n  \
 ohmsheet functions\n  \
@@ -282,6 +285,7 @@ pub fn main_with(args: Vec<OsString>) -> i32 {
             }
         },
         Command::Solve(a) => sweep::solve(&a),
+        Command::Spread(a) => spread::spread(&a),
         Command::Functions => {
             out!("{}", run::functions_listing());
             EXIT_OK

@@ -165,9 +165,9 @@ impl Spread {
         }
     }
 
-    /// The tolerance in words, in the SI unit `unit` for an absolute band
-    /// (for tables and reports): `−0 % / +10 %`, `±7.5 %, normal (3σ)`.
-    pub fn describe(&self, unit: &str) -> String {
+    /// The tolerance in words, an absolute amount written by `abs` (for
+    /// tables and reports): `−0 % / +10 %`, `±7.5 %, normal (3σ)`.
+    pub fn describe(&self, abs: &dyn Fn(f64) -> String) -> String {
         let pct = |x: f64| fmt_num(x * 100.0);
         let band = |b: Band, f: &dyn Fn(f64) -> String, u: &str| {
             if b.symmetric() {
@@ -183,7 +183,7 @@ impl Spread {
                 if let Some(m) = self.mag {
                     parts.push(match m {
                         MagBand::Relative(b) => band(b, &pct, " %"),
-                        MagBand::Absolute(b) => band(b, &|x| fmt_num(x), &format!(" {unit}")),
+                        MagBand::Absolute(b) => band(b, abs, ""),
                     });
                 }
                 if let Some(a) = self.angle {
@@ -253,12 +253,12 @@ mod tests {
     #[test]
     fn descriptions() {
         let s = sp(Some(MagBand::Relative(Band { lo: -0.0, hi: 0.1 })), None, Law::Uniform);
-        assert_eq!(s.describe(""), "−0 % / +10 %");
+        assert_eq!(s.describe(&|x| format!("{x} V")), "−0 % / +10 %");
         let s = sp(
             Some(MagBand::Relative(Band { lo: -0.075, hi: 0.075 })),
             None,
             Law::Normal { k: 3.0 },
         );
-        assert_eq!(s.describe(""), "±7.5 %, normal (3σ)");
+        assert_eq!(s.describe(&|x| format!("{x} V")), "±7.5 %, normal (3σ)");
     }
 }

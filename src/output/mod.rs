@@ -4,6 +4,7 @@
 
 pub mod checks;
 pub mod report;
+pub mod spread;
 pub mod sweep;
 pub mod table;
 
