@@ -222,8 +222,12 @@ fn many_inputs_take_the_guided_corners() {
     let p = plan(&src, &["Rt", "G"]);
     let w = worst_case(&p);
     assert!(matches!(w.method, Method::GuidedCorners(n) if n == 8192.0));
-    let hi: f64 = (1..=13).map(|k| k as f64 * 100.0 * (1.0 + (k % 4 + 1) as f64 / 100.0)).sum();
-    let lo: f64 = (1..=13).map(|k| k as f64 * 100.0 * (1.0 - (k % 4 + 1) as f64 / 100.0)).sum();
+    let hi: f64 = (1..=13)
+        .map(|k| k as f64 * 100.0 * (1.0 + (k % 4 + 1) as f64 / 100.0))
+        .sum();
+    let lo: f64 = (1..=13)
+        .map(|k| k as f64 * 100.0 * (1.0 - (k % 4 + 1) as f64 / 100.0))
+        .sum();
     assert!((w.cells[0].max.value - hi).abs() < 1e-9 * hi);
     assert!((w.cells[0].min.value - lo).abs() < 1e-9 * lo);
     assert!((w.cells[1].max.value - 1.0 / lo).abs() < 1e-9 / lo);
