@@ -27,6 +27,7 @@ mod language;
 mod limits;
 mod lines_rf;
 mod local_override;
+mod lsp_edits;
 mod lsp_navigate;
 mod lsp_protocol;
 mod matching_pi_t;
