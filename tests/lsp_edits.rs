@@ -96,10 +96,13 @@ fn apply(text: &str, c: &Change) -> String {
     t
 }
 
+/// Each cell's key (its name, or `check …`) and the bits of its values.
+type Values = Vec<(String, Vec<(u64, u64)>)>;
+
 /// Everything an editor sees of a document, comparable across documents.
-fn snapshot(d: &Document) -> (Vec<(String, Vec<(u64, u64)>)>, String, String) {
+fn snapshot(d: &Document) -> (Values, String, String) {
     let m = &d.engine.model;
-    let mut vals: Vec<(String, Vec<(u64, u64)>)> = m
+    let mut vals: Values = m
         .cells
         .iter()
         .enumerate()
