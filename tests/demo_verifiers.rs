@@ -4,10 +4,9 @@
 //! {cell: [re, im]} in SI units; every cell it names must agree with
 //! ohmsheet's value for the sheet. (demos.rs runs the sheets' own checks.)
 //!
-//! Every verifier in sheets-demo/verify/ is run here: those with a
-//! `--json` mode are compared value by value (`PAIRS`); the older ones,
-//! which print their values for a reader, must run to the end without an
-//! error (`RUN_ONLY`). Python with numpy and mpmath is an outside program
+//! Every verifier in sheets-demo/verify/ is run here and compared value
+//! by value (`PAIRS`); a script that is neither in `PAIRS` nor a helper
+//! fails the suite. Python with numpy and mpmath is an outside program
 //! (tests/common/outside.rs): under CI=true a missing one fails the tests,
 //! elsewhere they are skipped and the skip is shown.
 
@@ -15,7 +14,7 @@ use std::path::PathBuf;
 
 use num_complex::Complex64 as C64;
 
-use crate::common::{close, engine, repo, value};
+use crate::common::{close, repo, value};
 
 /// (sheet, verifier) pairs whose verifier has a `--json` mode.
 const PAIRS: &[(&str, &str)] = &[
@@ -24,11 +23,6 @@ const PAIRS: &[(&str, &str)] = &[
     ("sawmill-bank-fault-duty.ohm", "sawmill.py"),
     ("harbour-vhf-feeder.ohm", "harbour_vhf.py"),
     ("quarry-crusher-feeder.ohm", "quarry.py"),
-];
-
-/// (sheet, verifier) pairs whose verifier prints its values for a reader
-/// (no `--json` mode): it must run to the end and print them.
-const RUN_ONLY: &[(&str, &str)] = &[
     ("beacon-antenna-match.ohm", "beacon.py"),
     ("unbalanced-cold-store.ohm", "cold_store.py"),
     ("pf-correction-feed-mill.ohm", "feed_mill.py"),
@@ -47,13 +41,12 @@ fn python(test: &str) -> Option<PathBuf> {
     crate::common::outside::need_python(test, &["numpy", "mpmath"])
 }
 
-fn run_verifier(py: &PathBuf, script: &str, json: bool) -> Vec<u8> {
-    let mut cmd = std::process::Command::new(py);
-    cmd.arg(repo(&format!("sheets-demo/verify/{script}")));
-    if json {
-        cmd.arg("--json");
-    }
-    let out = cmd.output().expect("python runs");
+fn run_verifier(py: &PathBuf, script: &str) -> Vec<u8> {
+    let out = std::process::Command::new(py)
+        .arg(repo(&format!("sheets-demo/verify/{script}")))
+        .arg("--json")
+        .output()
+        .expect("python runs");
     assert!(
         out.status.success(),
         "{script} failed ({}):\n{}",
@@ -64,7 +57,7 @@ fn run_verifier(py: &PathBuf, script: &str, json: bool) -> Vec<u8> {
 }
 
 fn verifier_values(py: &PathBuf, script: &str) -> Vec<(String, C64)> {
-    let out = run_verifier(py, script, true);
+    let out = run_verifier(py, script);
     let map: serde_json::Map<String, serde_json::Value> = serde_json::from_slice(&out).expect("json");
     map.into_iter()
         .map(|(k, v)| {
@@ -81,8 +74,10 @@ fn demo_sheets_agree_with_their_verifiers() {
         return;
     };
     for (sheet, script) in PAIRS {
-        let text = std::fs::read_to_string(repo(&format!("sheets-demo/{sheet}"))).unwrap();
-        let e = engine(&text);
+        // loaded from its file, so that its library sheets are included
+        let s = ohmsheet::sheet::Sheet::load(&repo(&format!("sheets-demo/{sheet}"))).expect(sheet);
+        let e = ohmsheet::engine::Engine::new(ohmsheet::engine::compile(&s));
+        assert!(!e.model.has_errors(), "{sheet}");
         let want = verifier_values(&py, script);
         assert!(want.len() >= 5, "{script} gave {} values", want.len());
         let mut bad = Vec::new();
@@ -96,36 +91,21 @@ fn demo_sheets_agree_with_their_verifiers() {
     }
 }
 
-#[test]
-fn the_older_verifiers_run_to_the_end() {
-    let Some(py) = python("demo_verifiers::the_older_verifiers_run_to_the_end") else {
-        return;
-    };
-    for (_, script) in RUN_ONLY {
-        let out = run_verifier(&py, script, false);
-        let text = String::from_utf8(out).expect("UTF-8");
-        assert!(
-            text.chars().any(|c| c.is_ascii_digit()),
-            "{script} printed no values:\n{text}"
-        );
-    }
-}
-
 /// No verifier is left out, and each names a demo sheet that exists.
 #[test]
 fn every_verifier_is_run_by_the_tests() {
-    let mut listed: Vec<&str> = PAIRS.iter().chain(RUN_ONLY).map(|p| p.1).collect();
+    let mut listed: Vec<&str> = PAIRS.iter().map(|p| p.1).collect();
     listed.extend(HELPERS);
     for entry in std::fs::read_dir(repo("sheets-demo/verify")).unwrap() {
         let name = entry.unwrap().file_name().to_string_lossy().to_string();
         if name.ends_with(".py") {
             assert!(
                 listed.contains(&name.as_str()),
-                "{name} is run by no test: add it to PAIRS or RUN_ONLY"
+                "{name} is run by no test: add it to PAIRS"
             );
         }
     }
-    for (sheet, script) in PAIRS.iter().chain(RUN_ONLY) {
+    for (sheet, script) in PAIRS {
         assert!(repo(&format!("sheets-demo/{sheet}")).is_file(), "{sheet} ({script})");
         let text = std::fs::read_to_string(repo(&format!("sheets-demo/verify/{script}"))).unwrap();
         assert!(

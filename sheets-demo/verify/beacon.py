@@ -2,7 +2,14 @@
 """Independent check of sheets-demo/beacon-antenna-match.ohm with Python's
 cmath/math, written from the textbook formulas (not from ohmsheet). Prints
 the values the sheet's `check` lines record. The scenario and numbers are
-invented."""
+invented.
+
+With `--json`, the values as {cell: [re, im]} in SI units, which
+tests/demo_verifiers.rs compares with ohmsheet's results for the sheet."""
+import contextlib
+import io
+import json
+import sys
 import math
 
 
@@ -29,6 +36,22 @@ def beacon():
     eta = R / (R + r_loss)
     print(f"coil loss {r_loss:.6g} Ω, efficiency {eta:.6g}, {10 * math.log10(eta):.6g} dB")
 
+    return {
+        "gamma": g,
+        "mismatch": ml,
+        "m.Xs": Xs,
+        "m.Xp": Xp,
+        "L_coil": Xs / w,
+        "C_shunt": -1 / (w * Xp),
+        "R_loss": r_loss,
+        "R_ant_share": eta,
+        "loss": 10 * math.log10(eta),
+    }
 
 if __name__ == "__main__":
-    beacon()
+    if "--json" in sys.argv:
+        with contextlib.redirect_stdout(io.StringIO()):
+            r = beacon()
+        print(json.dumps({k: [complex(v).real, complex(v).imag] for k, v in r.items()}))
+    else:
+        beacon()

@@ -1,8 +1,15 @@
 #!/usr/bin/env python3
 """Independent check of sheets-demo/unbalanced-cold-store.ohm with Python's cmath/math,
 written from the textbook formulas (not from ohmsheet). Prints the values
-the sheet's `check` lines record. The scenario and numbers are invented."""
+the sheet's `check` lines record. The scenario and numbers are invented.
+
+With `--json`, the values as {cell: [re, im]} in SI units, which
+tests/demo_verifiers.rs compares with ohmsheet's results for the sheet."""
 import cmath
+import contextlib
+import io
+import json
+import sys
 import math
 
 from formulas import J, SQ3, par, tanphi  # noqa: F401
@@ -28,6 +35,25 @@ def cold_store():
     S = Vab * Iab.conjugate() + Vbc * Ibc.conjugate() + Vca * Ica.conjugate()
     print(f"S = {S.real:.6g} W + j{S.imag:.6g} var")
 
+    return {
+        "Vbc": Vbc,
+        "Vca": Vca,
+        "Iab": Iab,
+        "Ibc": Ibc,
+        "Ica": Ica,
+        "Ia": Ia,
+        "Ib": Ib,
+        "Ic": Ic,
+        "seq.pos": I1,
+        "seq.neg": I2,
+        "unbalance": abs(I2) / abs(I1),
+        "S": S,
+    }
 
 if __name__ == "__main__":
-    cold_store()
+    if "--json" in sys.argv:
+        with contextlib.redirect_stdout(io.StringIO()):
+            r = cold_store()
+        print(json.dumps({k: [complex(v).real, complex(v).imag] for k, v in r.items()}))
+    else:
+        cold_store()

@@ -1,8 +1,15 @@
 #!/usr/bin/env python3
 """Independent check of sheets-demo/pf-correction-feed-mill.ohm with Python's cmath/math,
 written from the textbook formulas (not from ohmsheet). Prints the values
-the sheet's `check` lines record. The scenario and numbers are invented."""
+the sheet's `check` lines record. The scenario and numbers are invented.
+
+With `--json`, the values as {cell: [re, im]} in SI units, which
+tests/demo_verifiers.rs compares with ohmsheet's results for the sheet."""
 import cmath
+import contextlib
+import io
+import json
+import sys
 import math
 
 from formulas import J, SQ3, par, tanphi  # noqa: F401
@@ -24,6 +31,23 @@ def feed_mill():
     print(f"with 150 kvar: pf {Sa.real / abs(Sa):.6f}, I = {abs(Sa) / (SQ3 * V):.6g} A")
     print(f"C per phase of 150 kvar = {150e3 / (3 * w * V * V):.6g} F")
 
+    return {
+        "S_tot": S,
+        "pf_before": pf1,
+        "Qc": Qc,
+        "C_exact": Qc / (3 * w * V * V),
+        "I_before": S.real / (SQ3 * V * pf1),
+        "I_target": S.real / (SQ3 * V * 0.95),
+        "S_after": Sa,
+        "pf_after": Sa.real / abs(Sa),
+        "I_after": abs(Sa) / (SQ3 * V),
+        "C_bank": 150e3 / (3 * w * V * V),
+    }
 
 if __name__ == "__main__":
-    feed_mill()
+    if "--json" in sys.argv:
+        with contextlib.redirect_stdout(io.StringIO()):
+            r = feed_mill()
+        print(json.dumps({k: [complex(v).real, complex(v).imag] for k, v in r.items()}))
+    else:
+        feed_mill()

@@ -1,8 +1,15 @@
 #!/usr/bin/env python3
 """Independent check of sheets-demo/induction-heater-match.ohm with Python's cmath/math,
 written from the textbook formulas (not from ohmsheet). Prints the values
-the sheet's `check` lines record. The scenario and numbers are invented."""
+the sheet's `check` lines record. The scenario and numbers are invented.
+
+With `--json`, the values as {cell: [re, im]} in SI units, which
+tests/demo_verifiers.rs compares with ohmsheet's results for the sheet."""
 import cmath
+import contextlib
+import io
+import json
+import sys
 import math
 
 from formulas import J, SQ3, par, tanphi  # noqa: F401
@@ -30,6 +37,21 @@ def forge():
     print(f"coil current for {P} W: {math.sqrt(P / R):.6g} A; Q of coil {w * L / R:.6g}")
     print(f"inverter current {math.sqrt(P / Rs):.6g} A")
 
+    return {
+        "m.Xs": Xs,
+        "m.Xp": Xp,
+        "C_series": -1 / (w * Xs),
+        "C_shunt": -1 / (w * Xp),
+        "Z_in": zin,
+        "Q_coil": w * L / R,
+        "I_inv": math.sqrt(P / Rs),
+        "I_coil": math.sqrt(P / R),
+    }
 
 if __name__ == "__main__":
-    forge()
+    if "--json" in sys.argv:
+        with contextlib.redirect_stdout(io.StringIO()):
+            r = forge()
+        print(json.dumps({k: [complex(v).real, complex(v).imag] for k, v in r.items()}))
+    else:
+        forge()

@@ -1,8 +1,15 @@
 #!/usr/bin/env python3
 """Independent check of sheets-demo/pump-feeder-p3.ohm with Python's cmath/math,
 written from the textbook formulas (not from ohmsheet). Prints the values
-the sheet's `check` lines record. The scenario and numbers are invented."""
+the sheet's `check` lines record. The scenario and numbers are invented.
+
+With `--json`, the values as {cell: [re, im]} in SI units, which
+tests/demo_verifiers.rs compares with ohmsheet's results for the sheet."""
 import cmath
+import contextlib
+import io
+import json
+import sys
 import math
 
 SQ3 = math.sqrt(3)
@@ -38,6 +45,27 @@ def pump_feeder_p3():
     print(f"I_sc      = {i_sc / 1e3:.6g} kA")
     print(f"load      = {i_fl / i_rating * 100:.6g} %")
 
+    return {
+        "V_ph": v_ph,
+        "Z_src": z_src,
+        "P_in": p_in,
+        "I_fl": i_fl,
+        "I_run": i_run,
+        "Z_cab": z_cab,
+        "V_mot": v_mot,
+        "drop": drop,
+        "drop_est": drop_est,
+        "I_st": i_st,
+        "V_mot_st": v_mot_st,
+        "dip_st": dip_st,
+        "I_sc": i_sc,
+        "load_frac": i_fl / i_rating,
+    }
 
 if __name__ == "__main__":
-    pump_feeder_p3()
+    if "--json" in sys.argv:
+        with contextlib.redirect_stdout(io.StringIO()):
+            r = pump_feeder_p3()
+        print(json.dumps({k: [complex(v).real, complex(v).imag] for k, v in r.items()}))
+    else:
+        pump_feeder_p3()

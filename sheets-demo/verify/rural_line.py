@@ -1,8 +1,15 @@
 #!/usr/bin/env python3
 """Independent check of sheets-demo/rural-feeder-capacitor.ohm with Python's cmath/math,
 written from the textbook formulas (not from ohmsheet). Prints the values
-the sheet's `check` lines record. The scenario and numbers are invented."""
+the sheet's `check` lines record. The scenario and numbers are invented.
+
+With `--json`, the values as {cell: [re, im]} in SI units, which
+tests/demo_verifiers.rs compares with ohmsheet's results for the sheet."""
 import cmath
+import contextlib
+import io
+import json
+import sys
 import math
 
 from formulas import J, SQ3, par, tanphi  # noqa: F401
@@ -25,6 +32,21 @@ def rural_line():
     print(f"|V_end| without bank = {abs(v1):.6g} pu, with 600 kvar = {abs(v2):.6g} pu")
     print(f"drop without = {(1 - abs(v1)):.6g}, with = {(1 - abs(v2)):.6g}")
 
+    return {
+        "z_t": zt,
+        "z_line": zl,
+        "z_load": zload,
+        "v_end": v1,
+        "v_end_c": v2,
+        "drop": 1 - abs(v1),
+        "drop_c": 1 - abs(v2),
+        "C_bank": C,
+    }
 
 if __name__ == "__main__":
-    rural_line()
+    if "--json" in sys.argv:
+        with contextlib.redirect_stdout(io.StringIO()):
+            r = rural_line()
+        print(json.dumps({k: [complex(v).real, complex(v).imag] for k, v in r.items()}))
+    else:
+        rural_line()
