@@ -239,6 +239,45 @@ pub fn unit_hint_for(word: &str, name: &str, want: Quantity) -> String {
     }
 }
 
+/// An unknown-unit error in a value given to `name`, a quantity `want` (a
+/// session edit, `--set`, `--vary`): its did-you-mean replaced by units of
+/// that dimension (`unit_hint_for`), its other hints kept.
+pub fn hint_units_by_dimension(mut d: Diagnostic, name: &str, want: Quantity) -> Diagnostic {
+    if d.code != ErrorCode::UnknownUnit {
+        return d;
+    }
+    let Some(word) = d
+        .message
+        .strip_prefix("unknown unit `")
+        .and_then(|w| w.strip_suffix('`'))
+    else {
+        return d;
+    };
+    let mut hint = vec![unit_hint_for(word, name, want)];
+    let old = d.hint.take().unwrap_or_default();
+    hint.extend(
+        old.split("; ")
+            .filter(|h| !h.is_empty() && !h.starts_with("did you mean"))
+            .map(str::to_string),
+    );
+    d.hint = Some(hint.join("; "));
+    d
+}
+
+/// `hint_units_by_dimension` for a `NAME=…` or `NAME = …` text given to a
+/// cell of `model`; the diagnostic unchanged when the name is no scalar
+/// cell.
+pub fn hint_units_for_assignment(d: Diagnostic, text: &str, model: &crate::engine::Model) -> Diagnostic {
+    let Some((name, _)) = text.split_once('=') else {
+        return d;
+    };
+    let name = name.trim();
+    match model.cell(name).and_then(|c| c.shape.clone()) {
+        Some(crate::funcs::Shape::Scalar(want)) => hint_units_by_dimension(d, name, want),
+        _ => d,
+    }
+}
+
 /// A unit error worded for an input of quantity `want`: a did-you-mean
 /// only among units of its dimension, else a few such units.
 pub(crate) fn unit_error_for(text: &str, e: UnitError, name: &str, want: Quantity) -> String {

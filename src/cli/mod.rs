@@ -329,6 +329,12 @@ pub fn load_sheet(path: &Path, sets: &[String], opts: &LoadOptions) -> Result<(S
     };
     for s in sets {
         if let Err(d) = sheet.set_override(s) {
+            // a mistyped unit: units of the cell's dimension are suggested
+            let d = if d.code == crate::diag::ErrorCode::UnknownUnit {
+                crate::batch::hint_units_for_assignment(d, s, &compile(&sheet))
+            } else {
+                d
+            };
             report(&sheet.sources, &[d]);
             return Err(Reported);
         }

@@ -240,36 +240,8 @@ impl Session {
     /// An unknown unit in a new value for a cell the sheet has
     /// (`t = 6 mn`): the hint suggests units of that cell's dimension, as
     /// batch does for a cases column, not any unit spelt alike.
-    fn unit_hint_by_dimension(&self, text: &str, mut d: Diagnostic) -> Diagnostic {
-        if d.code != crate::diag::ErrorCode::UnknownUnit {
-            return d;
-        }
-        let Some(word) = d
-            .message
-            .strip_prefix("unknown unit `")
-            .and_then(|w| w.strip_suffix('`'))
-        else {
-            return d;
-        };
-        let Some((name, _)) = text.split_once('=') else {
-            return d;
-        };
-        let name = name.trim();
-        let Some(c) = self.engine.model.cell(name) else {
-            return d;
-        };
-        let Some(crate::funcs::Shape::Scalar(want)) = c.shape else {
-            return d;
-        };
-        let mut hint = vec![crate::batch::unit_hint_for(word, name, want)];
-        let old = d.hint.take().unwrap_or_default();
-        hint.extend(
-            old.split("; ")
-                .filter(|h| !h.is_empty() && !h.starts_with("did you mean"))
-                .map(str::to_string),
-        );
-        d.hint = Some(hint.join("; "));
-        d
+    fn unit_hint_by_dimension(&self, text: &str, d: Diagnostic) -> Diagnostic {
+        crate::batch::hint_units_for_assignment(d, text, &self.engine.model)
     }
 
     fn render(&self, d: &Diagnostic) -> String {

@@ -293,7 +293,11 @@ impl Study {
         log: bool,
     ) -> Result<Axis, Failure> {
         let mut sources = self.engine.model.sources.clone();
-        let r = parse_range(&mut sources, origin, text).map_err(|d| Failure::one(&sources, d))?;
+        let r = parse_range(&mut sources, origin, text).map_err(|d| {
+            // a mistyped unit: units of the input's dimension are suggested
+            let d = crate::batch::hint_units_for_assignment(d, text, &self.engine.model);
+            Failure::one(&sources, d)
+        })?;
         let step = match step {
             Some(s) => {
                 let file = sources.add(SourceFile::new("--step", None, s.to_string()));

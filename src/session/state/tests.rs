@@ -611,6 +611,13 @@ fn a_mistyped_unit_is_answered_with_units_of_the_cells_dimension() {
     assert!(!r.text.contains("`min`"), "{}", r.text);
     let r = s.handle("k = 6 vv");
     assert!(r.refused && r.text.contains("`k` is a plain number"), "{}", r.text);
+    // `mi` is the mile now: a length takes it
+    ok(&mut s, "L = 6 mi");
+    assert_eq!(
+        val(&s, "L"),
+        C64::new(6.0 * 1609.344, 0.0),
+        "6 mi is 9656.064 m (1609.344 m each)"
+    );
     // a new name has no dimension yet: the general suggestion stands
     let r = s.handle("u = 6 mn");
     assert!(r.refused && r.text.contains("did you mean"), "{}", r.text);
