@@ -67,6 +67,11 @@ fn hover_shows_a_cells_value_formula_tree_and_users() {
     assert!(h.contains("1 kV = 1000 V"), "{h}");
     // Nothing under the cursor in a comment.
     assert_eq!(c.hover(&u, 0, 3), "");
+    // On a check line away from any name: the verdict, |I| = 46 A
+    // against 46 A.
+    let h = c.hover(&u, 6, 1);
+    assert!(h.contains("`check abs(I) ~= 46 A +- 1%`"), "{h}");
+    assert!(h.contains("holds") && h.contains("computed 46 A, stated 46 A"), "{h}");
 
     // After an edit made in place, hover reads the new values:
     // 230 V / 5 Ω = 46 A.

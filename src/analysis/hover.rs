@@ -35,7 +35,10 @@ pub struct Hover {
 pub fn hover(doc: &Document, display: Display, offset: usize) -> Option<Hover> {
     let line = doc.line_of(offset);
     let lr = doc.line_range(line);
-    let occ = symbols::at(doc.text(), lr.start, doc.line_text(line), (line + 1) as u32, offset)?;
+    let Some(occ) = symbols::at(doc.text(), lr.start, doc.line_text(line), (line + 1) as u32, offset) else {
+        // Elsewhere on a check line (`check`, `~=`, a number): its verdict.
+        return check_hover(doc, display, line);
+    };
     let markdown = match occ.kind {
         SymKind::Name => match occ.name.as_str() {
             "pi" => "constant **pi** = π = 3.14159…\n".to_string(),
@@ -51,6 +54,42 @@ pub fn hover(doc: &Document, display: Display, offset: usize) -> Option<Hover> {
     Some(Hover {
         range: occ.range,
         markdown,
+    })
+}
+
+/// A check's verdict: the two sides as computed, the difference and what
+/// is allowed.
+fn check_hover(doc: &Document, display: Display, line: usize) -> Option<Hover> {
+    let m = &doc.engine.model;
+    let (id, c, at) = m.checks().find_map(|(id, c)| {
+        let at = doc.locate(c.stmt_span)?;
+        (at.place == super::Place::Main && doc.line_of(at.range.start) == line).then_some((id, c, at))
+    })?;
+    let mut out = format!("`{}`\n\n", c.formula.trim());
+    if c.error.is_some() {
+        out.push_str("no verdict: see the problem reported on its line, or on a line it uses\n");
+    } else {
+        let vals = doc.engine.values(id);
+        let r = crate::engine::check_result(m, id, vals);
+        let q = c.checked_quantity();
+        let show = |z| {
+            let f = format_value(z, q, c.display.as_ref(), display.style);
+            if display.polar {
+                f.polar
+            } else {
+                f.rect
+            }
+        };
+        out.push_str(&format!(
+            "{}\n\ncomputed {}, stated {}\n",
+            crate::analysis::values::cell_vals(m, id, vals, display.style, display.polar),
+            show(r.lhs),
+            show(r.rhs)
+        ));
+    }
+    Some(Hover {
+        range: at.range,
+        markdown: out,
     })
 }
 
