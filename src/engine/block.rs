@@ -270,17 +270,28 @@ impl Block {
         let base = ins.a as usize;
         let width = prog.call_args[base] as usize;
         let n = ins.b as usize;
-        let mut args = vec![C64::new(0.0, 0.0); n];
-        let mut out = vec![C64::new(0.0, 0.0); width];
-        for l in 0..LANES {
-            for (i, a) in args.iter_mut().enumerate() {
-                *a = self.get(prog.call_args[base + 1 + i], l);
+        let arg_slots = &prog.call_args[base + 1..base + 1 + n];
+        // One workspace for the whole block: the 64 solves reuse its
+        // buffers and allocate nothing.
+        crate::network::with_workspace(|ws| {
+            let mut args = std::mem::take(&mut ws.args);
+            let mut out = std::mem::take(&mut ws.out);
+            args.clear();
+            args.resize(n, C64::new(0.0, 0.0));
+            out.clear();
+            out.resize(width, C64::new(0.0, 0.0));
+            for l in 0..LANES {
+                for (a, &s) in args.iter_mut().zip(arg_slots) {
+                    *a = self.get(s, l);
+                }
+                let _ = net.run_in(ws, &args, &mut out);
+                for (i, v) in out.iter().enumerate() {
+                    self.set(ins.dst + i as u32, l, *v);
+                }
             }
-            let _ = net.run(&args, &mut out);
-            for (i, v) in out.iter().enumerate() {
-                self.set(ins.dst + i as u32, l, *v);
-            }
-        }
+            ws.args = args;
+            ws.out = out;
+        });
     }
 
     fn call(&mut self, fid: u16, ins: &Instr, prog: &Program) {

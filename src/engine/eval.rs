@@ -69,11 +69,18 @@ pub(super) fn network(k: u16, ins: &Instr, prog: &Program, s: &mut [C64]) {
     let net = &prog.networks[k as usize];
     let base = ins.a as usize;
     let width = prog.call_args[base] as usize;
-    let args: Vec<C64> = (0..ins.b as usize)
-        .map(|i| s[prog.call_args[base + 1 + i] as usize])
-        .collect();
     let dst = ins.dst as usize;
-    let _ = net.run(&args, &mut s[dst..dst + width]);
+    crate::network::with_workspace(|ws| {
+        let mut args = std::mem::take(&mut ws.args);
+        args.clear();
+        args.extend(
+            prog.call_args[base + 1..base + 1 + ins.b as usize]
+                .iter()
+                .map(|&a| s[a as usize]),
+        );
+        let _ = net.run_in(ws, &args, &mut s[dst..dst + width]);
+        ws.args = args;
+    });
 }
 
 /// A cell's values: one for most cells, kept inline (no allocation);

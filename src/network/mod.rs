@@ -8,7 +8,7 @@ pub mod solve;
 pub mod topology;
 
 pub use netlist::{CouplingBy, Elem, ElemKind, Given, Net, GROUND, MAX_ELEMENTS, MAX_NODES};
-pub use solve::{solve, Failure, Request, Solution};
+pub use solve::{solve, solve_by, Failure, Method, Request, Solution, Workspace, SPARSE_FROM};
 pub use topology::{check as check_topology, TopoError};
 pub mod program;
-pub use program::{Field, NetProgram};
+pub use program::{with_workspace, Field, NetProgram};

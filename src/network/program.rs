@@ -5,7 +5,7 @@
 use num_complex::Complex64 as C64;
 
 use super::netlist::{ElemKind, Net};
-use super::solve::{solve, Failure, Request};
+use super::solve::{Failure, Method, Request, Workspace};
 
 /// One network of a compiled sheet.
 #[derive(Clone, Debug, Default, PartialEq)]
@@ -58,10 +58,17 @@ impl NetProgram {
     }
 
     /// Solve one case; on failure every result is NaN and the reason is
-    /// returned.
+    /// returned. Uses this thread's workspace (see `with_workspace`).
     pub fn run(&self, args: &[C64], out: &mut [C64]) -> Result<(), Failure> {
-        match solve(&self.net, args, &self.requests) {
-            Ok(sol) => {
+        with_workspace(|ws| self.run_in(ws, args, out))
+    }
+
+    /// `run` with the caller's workspace: no allocation once its buffers
+    /// have grown to this network's size.
+    pub fn run_in(&self, ws: &mut Workspace, args: &[C64], out: &mut [C64]) -> Result<(), Failure> {
+        match ws.solve(&self.net, args, &self.requests, Method::Auto) {
+            Ok(()) => {
+                let sol = &ws.sol;
                 let nn = self.net.nodes.len();
                 let ne = self.net.elems.len();
                 let k = if self.peak { 0.5 } else { 1.0 };
@@ -99,4 +106,19 @@ impl NetProgram {
             }
         }
     }
+}
+
+thread_local! {
+    static WORKSPACE: std::cell::RefCell<Workspace> = std::cell::RefCell::new(Workspace::default());
+}
+
+/// Run `f` with this thread's network workspace (kept between calls, so
+/// solving case after case allocates nothing once it has grown).
+pub fn with_workspace<R>(f: impl FnOnce(&mut Workspace) -> R) -> R {
+    WORKSPACE.with(|w| match w.try_borrow_mut() {
+        Ok(mut ws) => f(&mut ws),
+        // Not expected (a solve does not call back into a solve), but a
+        // fresh workspace is always correct.
+        Err(_) => f(&mut Workspace::default()),
+    })
 }

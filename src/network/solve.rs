@@ -15,8 +15,14 @@
 //! the network, and its power is the power it delivers, V(a,b)·I*. (Both are halved for peak phasors by
 //! the caller.)
 
+use faer::dyn_stack::{MemBuffer, MemStack, StackReq};
+use faer::linalg::lu::partial_pivoting::factor::{lu_in_place, lu_in_place_scratch};
+use faer::linalg::lu::partial_pivoting::solve::{solve_in_place, solve_in_place_scratch};
 use faer::linalg::solvers::{PartialPivLu, SolveCore};
-use faer::{Conj, Mat};
+use faer::perm::PermRef;
+use faer::sparse::linalg::solvers::Lu as SparseLu;
+use faer::sparse::{SparseColMat, Triplet};
+use faer::{Conj, Mat, MatMut, MatRef, Par};
 use num_complex::Complex64 as C64;
 
 use super::netlist::{CouplingBy, ElemKind, Given, Net};
@@ -123,11 +129,16 @@ enum Form0 {
     Driven,
 }
 
-struct Assembly {
-    n: usize,
-    forms: Vec<Form0>,
-    /// Impedance of each branch at this frequency (for coupled branches).
-    z: Vec<C64>,
+/// Above this many unknowns a case is solved with faer's sparse LU, below
+/// it with the dense LU (benches/network.rs measures both sides of it).
+pub const SPARSE_FROM: usize = 100;
+
+/// Which factorisation to use; `Auto` chooses by size (`SPARSE_FROM`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Method {
+    Auto,
+    Dense,
+    Sparse,
 }
 
 fn value(net: &Net, vals: &[C64], e: usize, k: usize) -> C64 {
@@ -142,287 +153,508 @@ fn is_inf(z: C64) -> bool {
     z.re.is_infinite() || z.im.is_infinite()
 }
 
+/// The equations of one case and their factors. The buffers are kept from
+/// case to case, so a solve allocates nothing once they have grown.
+struct Sys {
+    n: usize,
+    dense: bool,
+    /// Dense: the matrix, column-major, factored in place.
+    a: Vec<C64>,
+    /// Sparse: the entries (duplicates add up).
+    trip: Vec<Triplet<usize, usize, C64>>,
+    rhs: Vec<C64>,
+    perm: Vec<usize>,
+    perm_inv: Vec<usize>,
+    mem: MemBuffer,
+    mem_n: usize,
+    sparse: Option<SparseLu<usize, C64>>,
+}
+
+impl Default for Sys {
+    fn default() -> Sys {
+        Sys {
+            n: 0,
+            dense: true,
+            a: Vec::new(),
+            trip: Vec::new(),
+            rhs: Vec::new(),
+            perm: Vec::new(),
+            perm_inv: Vec::new(),
+            mem: MemBuffer::new(StackReq::EMPTY),
+            mem_n: 0,
+            sparse: None,
+        }
+    }
+}
+
+impl Sys {
+    fn reset(&mut self, n: usize, dense: bool) {
+        self.n = n;
+        self.dense = dense;
+        self.a.clear();
+        self.trip.clear();
+        self.sparse = None;
+        if dense {
+            self.a.resize(n * n, ZERO);
+        }
+        self.rhs.clear();
+        self.rhs.resize(n, ZERO);
+    }
+
+    #[inline]
+    fn put(&mut self, r: usize, c: usize, v: C64) {
+        if self.dense {
+            self.a[c * self.n + r] += v;
+        } else {
+            self.trip.push(Triplet::new(r, c, v));
+        }
+    }
+
+    /// The row of the first entry that is not finite.
+    fn non_finite_row(&self) -> Option<usize> {
+        if self.dense {
+            // Row by row, as the rows name the unknowns in messages.
+            let n = self.n;
+            (0..n).find(|&r| (0..n).any(|c| !finite(self.a[c * n + r])))
+        } else {
+            self.trip.iter().filter(|t| !finite(t.val)).map(|t| t.row).min()
+        }
+    }
+
+    /// Factor the matrix; on a (numerically) singular one, the unknown of
+    /// the smallest pivot.
+    fn factor(&mut self) -> Result<(), usize> {
+        let n = self.n;
+        if n == 0 {
+            return Ok(());
+        }
+        if !self.dense {
+            let m = SparseColMat::<usize, C64>::try_new_from_triplets(n, n, &self.trip).map_err(|_| 0usize)?;
+            self.sparse = Some(m.sp_lu().map_err(|_| 0usize)?);
+            return Ok(());
+        }
+        let scale = self.a.iter().map(|&z| ops::abs(z)).fold(0.0f64, f64::max);
+        if self.mem_n < n {
+            let req = lu_in_place_scratch::<usize, C64>(n, n, Par::Seq, Default::default())
+                .or(solve_in_place_scratch::<usize, C64>(n, 1, Par::Seq));
+            self.mem = MemBuffer::new(req);
+            self.mem_n = n;
+        }
+        self.perm.resize(n, 0);
+        self.perm_inv.resize(n, 0);
+        let a = MatMut::from_column_major_slice_mut(&mut self.a, n, n);
+        lu_in_place(
+            a,
+            &mut self.perm,
+            &mut self.perm_inv,
+            Par::Seq,
+            MemStack::new(&mut self.mem),
+            Default::default(),
+        );
+        let mut worst = (0, f64::INFINITY);
+        let mut ok = true;
+        for k in 0..n {
+            let p = ops::abs(self.a[k * n + k]);
+            // A NaN pivot fails too.
+            if p.partial_cmp(&(PIVOT_TOL * scale)) != Some(std::cmp::Ordering::Greater) {
+                ok = false;
+            }
+            if p < worst.1 {
+                worst = (k, p);
+            }
+        }
+        if ok {
+            Ok(())
+        } else {
+            Err(worst.0)
+        }
+    }
+
+    /// Solve in place with the factors.
+    fn solve(&mut self, b: &mut [C64]) {
+        let n = self.n;
+        if n == 0 {
+            return;
+        }
+        let rhs = MatMut::from_column_major_slice_mut(b, n, 1);
+        if let Some(lu) = &self.sparse {
+            lu.solve_in_place_with_conj(Conj::No, rhs);
+            return;
+        }
+        let lu = MatRef::from_column_major_slice(&self.a, n, n);
+        // SAFETY: `lu_in_place` filled `perm` and `perm_inv` with a
+        // permutation of 0..n and its inverse.
+        let perm = unsafe { PermRef::new_unchecked(&self.perm[..n], &self.perm_inv[..n], n) };
+        solve_in_place(lu, lu, perm, rhs, Par::Seq, MemStack::new(&mut self.mem));
+    }
+
+    /// Whether x solves the sparse system: no entry is NaN or infinite and
+    /// the residual is small beside the sizes involved (the sparse factors
+    /// are not checked pivot by pivot). Returns the unknown to blame.
+    fn check_sparse(&self, x: &[C64], b: &[C64]) -> Result<(), usize> {
+        if let Some(i) = x.iter().position(|z| !finite(*z)) {
+            return Err(i);
+        }
+        let mut r = b.to_vec();
+        let mut amax = 0.0f64;
+        for t in &self.trip {
+            r[t.row] -= t.val * x[t.col];
+            amax = amax.max(ops::abs(t.val));
+        }
+        let xmax = x.iter().map(|z| ops::abs(*z)).fold(0.0f64, f64::max);
+        let bmax = b.iter().map(|z| ops::abs(*z)).fold(0.0f64, f64::max);
+        let tol = 1e-9 * (amax * xmax + bmax);
+        match r
+            .iter()
+            .enumerate()
+            .map(|(i, z)| (i, ops::abs(*z)))
+            .find(|&(_, e)| e.is_nan() || e > tol)
+        {
+            Some((i, _)) => Err(i),
+            None => Ok(()),
+        }
+    }
+}
+
+/// Everything one solve needs, kept from case to case: a block of 64
+/// cases (or a batch's chunk) solves with no allocation once the buffers
+/// have grown to the network's size.
+#[derive(Default)]
+pub struct Workspace {
+    coupled: Vec<bool>,
+    forms: Vec<Form0>,
+    /// Impedance of each branch at this frequency (for coupled branches).
+    z: Vec<C64>,
+    cur: Vec<Form>,
+    built: Vec<bool>,
+    scratch: Vec<(usize, C64)>,
+    sys: Sys,
+    x: Vec<C64>,
+    b: Vec<C64>,
+    /// Columns of the bus impedance matrix asked for so far in this case:
+    /// `zcol_at[j]` is the offset of column j in `zcols` (or `NONE`).
+    zcol_at: Vec<usize>,
+    zcol_used: Vec<usize>,
+    zcols: Vec<C64>,
+    /// The last case's outcome.
+    pub sol: Solution,
+    /// Buffers for callers gathering one case's arguments and results.
+    pub args: Vec<C64>,
+    pub out: Vec<C64>,
+}
+
+const NONE: usize = usize::MAX;
+
 /// Solve one case. `vals[0]` is ω in rad/s; the rest are the element
 /// values in the order `Net::add` gave them.
 pub fn solve(net: &Net, vals: &[C64], requests: &[Request]) -> Result<Solution, Failure> {
-    let w = vals[0].re;
-    let nn = net.nodes.len();
-    let nv = nn - 1;
-    let coupled: Vec<bool> = {
-        let mut c = vec![false; net.elems.len()];
+    solve_by(net, vals, requests, Method::Auto)
+}
+
+/// `solve` with the factorisation chosen.
+pub fn solve_by(net: &Net, vals: &[C64], requests: &[Request], how: Method) -> Result<Solution, Failure> {
+    let mut ws = Workspace::default();
+    ws.solve(net, vals, requests, how)?;
+    Ok(std::mem::take(&mut ws.sol))
+}
+
+impl Workspace {
+    /// Solve one case into `self.sol`.
+    pub fn solve(&mut self, net: &Net, vals: &[C64], requests: &[Request], how: Method) -> Result<(), Failure> {
+        let w = vals[0].re;
+        let nn = net.nodes.len();
+        let nv = nn - 1;
+        let ne = net.elems.len();
+        self.coupled.clear();
+        self.coupled.resize(ne, false);
         for e in &net.elems {
             if let ElemKind::Coupling { l1, l2, .. } = e.kind {
-                c[l1] = true;
-                c[l2] = true;
+                self.coupled[l1] = true;
+                self.coupled[l2] = true;
             }
         }
-        c
-    };
-    // Decide each element's form and number the extra unknowns.
-    let mut asm = Assembly {
-        n: nv,
-        forms: Vec::with_capacity(net.elems.len()),
-        z: vec![ZERO; net.elems.len()],
-    };
-    for (ei, e) in net.elems.iter().enumerate() {
-        let f = match &e.kind {
-            ElemKind::Branch(g) => {
-                let v = value(net, vals, ei, 0);
+        // Decide each element's form and number the extra unknowns.
+        let mut n = nv;
+        self.forms.clear();
+        self.z.clear();
+        self.z.resize(ne, ZERO);
+        for (ei, e) in net.elems.iter().enumerate() {
+            let f = match &e.kind {
+                ElemKind::Branch(g) => {
+                    let v = value(net, vals, ei, 0);
+                    if v.re.is_nan() || v.im.is_nan() {
+                        return Err(Failure::BadValue {
+                            elem: e.name.clone(),
+                            why: "its value is not a number".into(),
+                        });
+                    }
+                    let z = g.impedance(v, w);
+                    self.z[ei] = z;
+                    if self.coupled[ei] {
+                        if !finite(z) {
+                            return Err(Failure::BadValue {
+                                elem: e.name.clone(),
+                                why: "a coupled branch cannot be open (infinite impedance)".into(),
+                            });
+                        }
+                        n += 1;
+                        Form0::Current(n - 1)
+                    } else if z == ZERO {
+                        n += 1;
+                        Form0::Current(n - 1)
+                    } else if is_inf(z) {
+                        Form0::Admittance(ZERO)
+                    } else {
+                        Form0::Admittance(ops::div(ONE, z))
+                    }
+                }
+                ElemKind::VSource { .. }
+                | ElemKind::VoltageGain { .. }
+                | ElemKind::Transimpedance { .. }
+                | ElemKind::Transformer { .. } => {
+                    n += 1;
+                    Form0::Current(n - 1)
+                }
+                ElemKind::ISource { .. }
+                | ElemKind::Transadmittance { .. }
+                | ElemKind::CurrentGain { .. }
+                | ElemKind::Coupling { .. } => Form0::Driven,
+            };
+            self.forms.push(f);
+        }
+        for (ei, e) in net.elems.iter().enumerate() {
+            for k in 0..e.kind.n_values() {
+                let v = value(net, vals, ei, k);
                 if v.re.is_nan() || v.im.is_nan() {
                     return Err(Failure::BadValue {
                         elem: e.name.clone(),
-                        why: "its value is not a number".into(),
+                        why: "a value is not a number".into(),
                     });
                 }
-                let z = g.impedance(v, w);
-                asm.z[ei] = z;
-                if coupled[ei] {
-                    if !finite(z) {
-                        return Err(Failure::BadValue {
-                            elem: e.name.clone(),
-                            why: "a coupled branch cannot be open (infinite impedance)".into(),
-                        });
-                    }
-                    asm.n += 1;
-                    Form0::Current(asm.n - 1)
-                } else if z == ZERO {
-                    asm.n += 1;
-                    Form0::Current(asm.n - 1)
-                } else if is_inf(z) {
-                    Form0::Admittance(ZERO)
-                } else {
-                    Form0::Admittance(ops::div(ONE, z))
-                }
             }
-            ElemKind::VSource { .. }
-            | ElemKind::VoltageGain { .. }
-            | ElemKind::Transimpedance { .. }
-            | ElemKind::Transformer { .. } => {
-                asm.n += 1;
-                Form0::Current(asm.n - 1)
-            }
-            ElemKind::ISource { .. }
-            | ElemKind::Transadmittance { .. }
-            | ElemKind::CurrentGain { .. }
-            | ElemKind::Coupling { .. } => Form0::Driven,
+        }
+        let dense = match how {
+            Method::Dense => true,
+            Method::Sparse => false,
+            Method::Auto => n < SPARSE_FROM,
         };
-        asm.forms.push(f);
-    }
-    for (ei, e) in net.elems.iter().enumerate() {
-        for k in 0..e.kind.n_values() {
-            let v = value(net, vals, ei, k);
-            if v.re.is_nan() || v.im.is_nan() {
-                return Err(Failure::BadValue {
-                    elem: e.name.clone(),
-                    why: "a value is not a number".into(),
-                });
-            }
+        self.sys.reset(n, dense);
+        // Linear forms of each element's current, built lazily (current
+        // gains may refer to other elements' currents).
+        self.cur.resize_with(ne, Form::default);
+        self.built.clear();
+        self.built.resize(ne, false);
+        for ei in 0..ne {
+            current_form(net, vals, &self.forms, ei, &mut self.cur, &mut self.built, 0)?;
         }
-    }
-    let n = asm.n;
-    let mut a = Mat::<C64>::zeros(n, n);
-    let mut rhs = vec![ZERO; n];
-    // Linear forms of each element's current, built lazily (current gains
-    // may refer to other elements' currents).
-    let mut cur: Vec<Option<Form>> = vec![None; net.elems.len()];
-    for ei in 0..net.elems.len() {
-        current_form(net, vals, &asm, ei, &mut cur, 0)?;
-    }
-    let add = |a: &mut Mat<C64>, r: usize, c: usize, v: C64| {
-        a[(r, c)] += v;
-    };
-    // KCL rows: current leaving each node into its elements is zero.
-    // A form's constant goes to the right-hand side.
-    let kcl = |a: &mut Mat<C64>, rhs: &mut [C64], node: usize, f: &Form, sign: f64| {
-        if node == 0 {
-            return;
-        }
-        let r = node - 1;
-        for &(c, v) in &f.terms {
-            add(a, r, c, v * sign);
-        }
-        rhs[r] -= f.k * sign;
-    };
-    for (ei, e) in net.elems.iter().enumerate() {
-        let f = cur[ei].as_ref().expect("form built");
-        match &e.kind {
-            ElemKind::Coupling { .. } => {}
-            ElemKind::VSource { .. } | ElemKind::VoltageGain { .. } | ElemKind::Transimpedance { .. } => {
-                // Delivered out of `a`: it enters node a.
-                kcl(&mut a, &mut rhs, e.a, f, -1.0);
-                kcl(&mut a, &mut rhs, e.b, f, 1.0);
+        let sys = &mut self.sys;
+        // KCL rows: current leaving each node into its elements is zero.
+        // A form's constant goes to the right-hand side.
+        let kcl = |sys: &mut Sys, node: usize, terms: &[(usize, C64)], k: C64, sign: f64| {
+            if node == 0 {
+                return;
             }
-            ElemKind::ISource { .. } | ElemKind::Transadmittance { .. } | ElemKind::CurrentGain { .. } => {
-                kcl(&mut a, &mut rhs, e.a, f, -1.0);
-                kcl(&mut a, &mut rhs, e.b, f, 1.0);
+            let r = node - 1;
+            for &(c, v) in terms {
+                sys.put(r, c, v * sign);
             }
-            ElemKind::Transformer { c, d } => {
-                kcl(&mut a, &mut rhs, e.a, f, 1.0);
-                kcl(&mut a, &mut rhs, e.b, f, -1.0);
-                // Secondary current into c: −conj(n)·I₁.
-                let nr = value(net, vals, ei, 0);
-                let mut fs = f.clone();
-                for t in &mut fs.terms {
-                    t.1 *= -nr.conj();
+            sys.rhs[r] -= k * sign;
+        };
+        for (ei, e) in net.elems.iter().enumerate() {
+            let f = &self.cur[ei];
+            match &e.kind {
+                ElemKind::Coupling { .. } => {}
+                ElemKind::VSource { .. }
+                | ElemKind::VoltageGain { .. }
+                | ElemKind::Transimpedance { .. }
+                | ElemKind::ISource { .. }
+                | ElemKind::Transadmittance { .. }
+                | ElemKind::CurrentGain { .. } => {
+                    // Delivered out of `a`: it enters node a.
+                    kcl(sys, e.a, &f.terms, f.k, -1.0);
+                    kcl(sys, e.b, &f.terms, f.k, 1.0);
                 }
-                kcl(&mut a, &mut rhs, *c, &fs, 1.0);
-                kcl(&mut a, &mut rhs, *d, &fs, -1.0);
-            }
-            _ => {
-                kcl(&mut a, &mut rhs, e.a, f, 1.0);
-                kcl(&mut a, &mut rhs, e.b, f, -1.0);
-            }
-        }
-    }
-    // Constraint rows of the elements with a current unknown.
-    let vrow = |a: &mut Mat<C64>, r: usize, node: usize, c: C64| {
-        if node != 0 {
-            a[(r, node - 1)] += c;
-        }
-    };
-    for (ei, e) in net.elems.iter().enumerate() {
-        let Form0::Current(r) = asm.forms[ei] else { continue };
-        vrow(&mut a, r, e.a, ONE);
-        vrow(&mut a, r, e.b, -ONE);
-        match &e.kind {
-            ElemKind::Branch(_) => {
-                a[(r, r)] -= asm.z[ei];
-            }
-            ElemKind::VSource { internal } => {
-                rhs[r] += value(net, vals, ei, 0);
-                if let Some(g) = internal {
-                    let z = g.impedance(value(net, vals, ei, 1), w);
-                    if !finite(z) {
-                        return Err(Failure::BadValue {
-                            elem: e.name.clone(),
-                            why: "the internal impedance of a voltage source cannot be open (infinite)".into(),
-                        });
-                    }
-                    a[(r, r)] += z;
+                ElemKind::Transformer { c, d } => {
+                    kcl(sys, e.a, &f.terms, f.k, 1.0);
+                    kcl(sys, e.b, &f.terms, f.k, -1.0);
+                    // Secondary current into c: −conj(n)·I₁.
+                    let nr = value(net, vals, ei, 0);
+                    self.scratch.clear();
+                    self.scratch.extend(f.terms.iter().map(|&(i, v)| (i, v * -nr.conj())));
+                    kcl(sys, *c, &self.scratch, f.k, 1.0);
+                    kcl(sys, *d, &self.scratch, f.k, -1.0);
+                }
+                _ => {
+                    kcl(sys, e.a, &f.terms, f.k, 1.0);
+                    kcl(sys, e.b, &f.terms, f.k, -1.0);
                 }
             }
-            ElemKind::VoltageGain { c, d } => {
-                let mu = value(net, vals, ei, 0);
-                vrow(&mut a, r, *c, -mu);
-                vrow(&mut a, r, *d, mu);
-            }
-            ElemKind::Transimpedance { ctrl } => {
-                let rr = value(net, vals, ei, 0);
-                let f = cur[*ctrl].as_ref().expect("form");
-                for &(col, v) in &f.terms {
-                    a[(r, col)] -= rr * v;
-                }
-                rhs[r] += rr * f.k;
-            }
-            ElemKind::Transformer { c, d } => {
-                let nr = value(net, vals, ei, 0);
-                vrow(&mut a, r, *c, -nr);
-                vrow(&mut a, r, *d, nr);
-            }
-            _ => {}
         }
-    }
-    // Mutual impedances between coupled branches.
-    for (ei, e) in net.elems.iter().enumerate() {
-        if let ElemKind::Coupling { l1, l2, by } = e.kind {
-            let x = value(net, vals, ei, 0);
-            let zm = match by {
-                CouplingBy::Coefficient => x * ops::sqrt(asm.z[l1] * asm.z[l2]),
-                CouplingBy::MutualImpedance => x,
-                CouplingBy::MutualInductance => Given::Inductance.impedance(x, w),
-            };
-            let (Form0::Current(r1), Form0::Current(r2)) = (asm.forms[l1], asm.forms[l2]) else {
-                unreachable!("coupled branches have current unknowns")
-            };
-            a[(r1, r2)] -= zm;
-            a[(r2, r1)] -= zm;
-        }
-    }
-    for r in 0..n {
-        for c in 0..n {
-            if !finite(a[(r, c)]) {
-                return Err(Failure::BadValue {
-                    elem: owner_name(net, &asm, r),
-                    why: "an element value is infinite where it has no limit".into(),
-                });
+        // Constraint rows of the elements with a current unknown.
+        let vrow = |sys: &mut Sys, r: usize, node: usize, c: C64| {
+            if node != 0 {
+                sys.put(r, node - 1, c);
             }
-        }
-    }
-    let lu = factor(&a, net, &asm)?;
-    let x = lu.solve(&rhs);
-    let mut sol = Solution {
-        v: vec![ZERO; nn],
-        i: vec![ZERO; net.elems.len()],
-        extra: Vec::new(),
-    };
-    sol.v[1..].copy_from_slice(&x[..nn - 1]);
-    for (i, f) in sol.i.iter_mut().zip(&cur) {
-        *i = f.as_ref().map_or(ZERO, |f| f.eval(&x));
-    }
-    // Requests: with independent sources zeroed only the right-hand side
-    // changes, so the same factors serve.
-    let mut zcol_cache: Vec<Option<Vec<C64>>> = vec![None; nn];
-    let mut zcol = |j: usize| -> Vec<C64> {
-        if let Some(c) = &zcol_cache[j] {
-            return c.clone();
-        }
-        let mut r = vec![ZERO; n];
-        if j != 0 {
-            r[j - 1] = ONE;
-        }
-        let x = lu.solve(&r);
-        let mut v = vec![ZERO; nn];
-        v[1..].copy_from_slice(&x[..nn - 1]);
-        zcol_cache[j] = Some(v.clone());
-        v
-    };
-    for req in requests {
-        match *req {
-            Request::Thevenin(p, q) => {
-                let voc = sol.v[p] - sol.v[q];
-                // 1 A into p and out at q, sources zeroed.
-                let vp = zcol(p);
-                let vq = zcol(q);
-                let zth = (vp[p] - vp[q]) - (vq[p] - vq[q]);
-                sol.extra.push(voc);
-                sol.extra.push(zth);
-                sol.extra.push(ops::div(voc, zth));
-            }
-            Request::ZEntry(i, j) => {
-                let v = zcol(j);
-                sol.extra.push(v[i]);
-            }
-            Request::YEntry(i, j) => {
-                // Invert the node block of Z (sources zeroed).
-                let mut z = Mat::<C64>::zeros(nv, nv);
-                for col in 1..nn {
-                    let v = zcol(col);
-                    for row in 1..nn {
-                        z[(row - 1, col - 1)] = v[row];
+        };
+        for (ei, e) in net.elems.iter().enumerate() {
+            let Form0::Current(r) = self.forms[ei] else { continue };
+            vrow(sys, r, e.a, ONE);
+            vrow(sys, r, e.b, -ONE);
+            match &e.kind {
+                ElemKind::Branch(_) => sys.put(r, r, -self.z[ei]),
+                ElemKind::VSource { internal } => {
+                    sys.rhs[r] += value(net, vals, ei, 0);
+                    if let Some(g) = internal {
+                        let z = g.impedance(value(net, vals, ei, 1), w);
+                        if !finite(z) {
+                            return Err(Failure::BadValue {
+                                elem: e.name.clone(),
+                                why: "the internal impedance of a voltage source cannot be open (infinite)".into(),
+                            });
+                        }
+                        sys.put(r, r, z);
                     }
                 }
-                // Where an ideal element (a voltage gain, a transimpedance,
-                // a transformer, a 0 Ω branch) ties node voltages together,
-                // the bus impedance matrix is singular and the admittance
-                // matrix does not exist: that entry alone is NaN, the rest
-                // of the network stands.
-                let Some(zl) = factor_plain(&z) else {
-                    sol.extra.push(C64::new(f64::NAN, f64::NAN));
-                    continue;
+                ElemKind::VoltageGain { c, d } => {
+                    let mu = value(net, vals, ei, 0);
+                    vrow(sys, r, *c, -mu);
+                    vrow(sys, r, *d, mu);
+                }
+                ElemKind::Transimpedance { ctrl } => {
+                    let rr = value(net, vals, ei, 0);
+                    let f = &self.cur[*ctrl];
+                    for &(col, v) in &f.terms {
+                        sys.put(r, col, -(rr * v));
+                    }
+                    sys.rhs[r] += rr * f.k;
+                }
+                ElemKind::Transformer { c, d } => {
+                    let nr = value(net, vals, ei, 0);
+                    vrow(sys, r, *c, -nr);
+                    vrow(sys, r, *d, nr);
+                }
+                _ => {}
+            }
+        }
+        // Mutual impedances between coupled branches.
+        for (ei, e) in net.elems.iter().enumerate() {
+            if let ElemKind::Coupling { l1, l2, by } = e.kind {
+                let x = value(net, vals, ei, 0);
+                let zm = match by {
+                    CouplingBy::Coefficient => x * ops::sqrt(self.z[l1] * self.z[l2]),
+                    CouplingBy::MutualImpedance => x,
+                    CouplingBy::MutualInductance => Given::Inductance.impedance(x, w),
                 };
-                let mut e = vec![ZERO; nv];
-                if j == 0 || i == 0 {
-                    // The reference row and column: minus the sum of the others.
-                    sol.extra.push(y_ref_entry(&zl, nv, i, j));
-                    continue;
-                }
-                e[j - 1] = ONE;
-                let col = zl.solve(&e);
-                sol.extra.push(col[i - 1]);
+                let (Form0::Current(r1), Form0::Current(r2)) = (self.forms[l1], self.forms[l2]) else {
+                    unreachable!("coupled branches have current unknowns")
+                };
+                sys.put(r1, r2, -zm);
+                sys.put(r2, r1, -zm);
             }
         }
+        if let Some(r) = sys.non_finite_row() {
+            return Err(Failure::BadValue {
+                elem: owner_name(net, &self.forms, r),
+                why: "an element value is infinite where it has no limit".into(),
+            });
+        }
+        if let Err(k) = sys.factor() {
+            return Err(Failure::Singular(owner_name(net, &self.forms, k)));
+        }
+        self.x.clear();
+        self.x.extend_from_slice(&sys.rhs);
+        sys.solve(&mut self.x);
+        if !sys.dense {
+            if let Err(k) = sys.check_sparse(&self.x, &sys.rhs) {
+                return Err(Failure::Singular(owner_name(net, &self.forms, k)));
+            }
+        }
+        let sol = &mut self.sol;
+        sol.v.clear();
+        sol.v.push(ZERO);
+        sol.v.extend_from_slice(&self.x[..nv]);
+        sol.i.clear();
+        sol.i.extend(self.cur[..ne].iter().map(|f| f.eval(&self.x)));
+        sol.extra.clear();
+        // Requests: with independent sources zeroed only the right-hand
+        // side changes, so the same factors serve.
+        for &j in &self.zcol_used {
+            self.zcol_at[j] = NONE;
+        }
+        self.zcol_used.clear();
+        self.zcols.clear();
+        self.zcol_at.resize(nn, NONE);
+        for req in requests {
+            match *req {
+                Request::Thevenin(p, q) => {
+                    let voc = self.sol.v[p] - self.sol.v[q];
+                    // 1 A into p and out at q, sources zeroed.
+                    let vp = self.zcol(p, nn);
+                    let vq = self.zcol(q, nn);
+                    let zc = &self.zcols;
+                    let zth = (zc[vp + p] - zc[vp + q]) - (zc[vq + p] - zc[vq + q]);
+                    self.sol.extra.push(voc);
+                    self.sol.extra.push(zth);
+                    self.sol.extra.push(ops::div(voc, zth));
+                }
+                Request::ZEntry(i, j) => {
+                    let v = self.zcol(j, nn);
+                    self.sol.extra.push(self.zcols[v + i]);
+                }
+                Request::YEntry(i, j) => {
+                    // Invert the node block of Z (sources zeroed).
+                    let mut z = Mat::<C64>::zeros(nv, nv);
+                    for col in 1..nn {
+                        let v = self.zcol(col, nn);
+                        for row in 1..nn {
+                            z[(row - 1, col - 1)] = self.zcols[v + row];
+                        }
+                    }
+                    // Where an ideal element (a voltage gain, a transimpedance,
+                    // a transformer, a 0 Ω branch) ties node voltages together,
+                    // the bus impedance matrix is singular and the admittance
+                    // matrix does not exist: that entry alone is NaN, the rest
+                    // of the network stands.
+                    let Some(zl) = factor_plain(&z) else {
+                        self.sol.extra.push(C64::new(f64::NAN, f64::NAN));
+                        continue;
+                    };
+                    let mut e = vec![ZERO; nv];
+                    if j == 0 || i == 0 {
+                        // The reference row and column: minus the sum of the others.
+                        self.sol.extra.push(y_ref_entry(&zl, nv, i, j));
+                        continue;
+                    }
+                    e[j - 1] = ONE;
+                    let col = zl.solve(&e);
+                    self.sol.extra.push(col[i - 1]);
+                }
+            }
+        }
+        Ok(())
     }
-    Ok(sol)
+
+    /// Column j of the bus impedance matrix (node voltages, ground's
+    /// included, for 1 A injected at node j with the sources zeroed): its
+    /// offset in `zcols`.
+    fn zcol(&mut self, j: usize, nn: usize) -> usize {
+        if self.zcol_at[j] != NONE {
+            return self.zcol_at[j];
+        }
+        let n = self.sys.n;
+        self.b.clear();
+        self.b.resize(n, ZERO);
+        if j != 0 {
+            self.b[j - 1] = ONE;
+        }
+        self.sys.solve(&mut self.b);
+        let at = self.zcols.len();
+        self.zcols.push(ZERO);
+        self.zcols.extend_from_slice(&self.b[..nn - 1]);
+        self.zcol_at[j] = at;
+        self.zcol_used.push(j);
+        at
+    }
 }
 
 fn y_ref_entry(zl: &Lu, nv: usize, i: usize, j: usize) -> C64 {
@@ -453,12 +685,12 @@ fn y_ref_entry(zl: &Lu, nv: usize, i: usize, j: usize) -> C64 {
 }
 
 /// Name of the unknown a row belongs to, for messages.
-fn owner_name(net: &Net, asm: &Assembly, r: usize) -> String {
+fn owner_name(net: &Net, forms: &[Form0], r: usize) -> String {
     let nv = net.nodes.len() - 1;
     if r < nv {
         return format!("node `{}`", net.nodes[r + 1]);
     }
-    for (ei, f) in asm.forms.iter().enumerate() {
+    for (ei, f) in forms.iter().enumerate() {
         if *f == Form0::Current(r) {
             return format!("the current of `{}`", net.elems[ei].name);
         }
@@ -466,7 +698,8 @@ fn owner_name(net: &Net, asm: &Assembly, r: usize) -> String {
     "an unknown".into()
 }
 
-/// An LU factorisation with its pivots checked.
+/// An LU factorisation with its pivots checked (for the bus impedance
+/// matrix that `net_y` inverts).
 struct Lu {
     lu: PartialPivLu<C64>,
     n: usize,
@@ -500,35 +733,17 @@ fn factor_plain(a: &Mat<C64>) -> Option<Lu> {
     Some(Lu { lu, n })
 }
 
-fn factor(a: &Mat<C64>, net: &Net, asm: &Assembly) -> Result<Lu, Failure> {
-    if a.nrows() == 0 {
-        return Ok(Lu {
-            lu: a.partial_piv_lu(),
-            n: 0,
-        });
-    }
-    factor_plain(a).ok_or_else(|| {
-        // Name the unknown of the smallest pivot's column (after the
-        // permutation) as the place to look.
-        let lu = a.partial_piv_lu();
-        let u = lu.U();
-        let (k, _) = (0..a.nrows())
-            .map(|k| (k, ops::abs(u[(k, k)])))
-            .fold((0, f64::INFINITY), |m, x| if x.1 < m.1 { x } else { m });
-        Failure::Singular(owner_name(net, asm, k))
-    })
-}
-
 /// Build the linear form of element `ei`'s current.
 fn current_form(
     net: &Net,
     vals: &[C64],
-    asm: &Assembly,
+    forms: &[Form0],
     ei: usize,
-    cur: &mut Vec<Option<Form>>,
+    cur: &mut [Form],
+    built: &mut [bool],
     depth: usize,
 ) -> Result<(), Failure> {
-    if cur[ei].is_some() {
+    if built[ei] {
         return Ok(());
     }
     if depth > net.elems.len() {
@@ -539,8 +754,10 @@ fn current_form(
     }
     let e = &net.elems[ei];
     let nn = net.nodes.len();
-    let mut f = Form::default();
-    match (&e.kind, asm.forms[ei]) {
+    let mut f = std::mem::take(&mut cur[ei]);
+    f.terms.clear();
+    f.k = ZERO;
+    match (&e.kind, forms[ei]) {
         (_, Form0::Current(k)) => f.terms.push((k, ONE)),
         (ElemKind::Branch(_), Form0::Admittance(y)) => {
             if y != ZERO {
@@ -570,15 +787,16 @@ fn current_form(
         }
         (ElemKind::CurrentGain { ctrl }, _) => {
             let b = value(net, vals, ei, 0);
-            current_form(net, vals, asm, *ctrl, cur, depth + 1)?;
-            let cf = cur[*ctrl].as_ref().expect("built");
+            current_form(net, vals, forms, *ctrl, cur, built, depth + 1)?;
+            let cf = &cur[*ctrl];
             f.k = b * cf.k;
-            f.terms = cf.terms.iter().map(|&(i, c)| (i, b * c)).collect();
+            f.terms.extend(cf.terms.iter().map(|&(i, c)| (i, b * c)));
         }
         (ElemKind::Coupling { .. }, _) => {}
         (k, f0) => unreachable!("{k:?} as {f0:?}"),
     }
-    cur[ei] = Some(f);
+    cur[ei] = f;
+    built[ei] = true;
     Ok(())
 }
 
