@@ -31,6 +31,7 @@ const PAIRS: &[(&str, &str)] = &[
     ("pump-feeder-p3.ohm", "pump_feeder_p3.py"),
     ("rural-feeder-capacitor.ohm", "rural_line.py"),
     ("station-max-power.ohm", "station_max_power.py"),
+    ("geophone-hum-notch.ohm", "twin_t.py"),
 ];
 
 /// Helpers the verifiers import, not verifiers themselves.

@@ -881,6 +881,7 @@ fn block_evaluator_agrees_on_the_function_demos() {
         "harbour-vhf-feeder.ohm",
         "quarry-crusher-feeder.ohm",
         "plant-bus-two-sources.ohm",
+        "geophone-hum-notch.ohm",
     ] {
         let text = std::fs::read_to_string(crate::common::repo(&format!("sheets-demo/{name}"))).unwrap();
         let e = engine(&text);
