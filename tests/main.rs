@@ -39,6 +39,7 @@ mod network_fuzz;
 mod network_properties;
 mod network_reference;
 mod network_solver;
+mod network_sparse;
 mod networks;
 mod output_options;
 mod plot_render;
