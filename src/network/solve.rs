@@ -213,6 +213,11 @@ impl Sys {
     /// The row of the first entry that is not finite.
     fn non_finite_row(&self) -> Option<usize> {
         if self.dense {
+            // One flat pass (it vectorises) before the search row by row,
+            // which only a case with an infinite value needs.
+            if self.a.iter().all(|z| (z.re + z.im).abs() < f64::INFINITY) {
+                return None;
+            }
             // Row by row, as the rows name the unknowns in messages.
             let n = self.n;
             (0..n).find(|&r| (0..n).any(|c| !finite(self.a[c * n + r])))
@@ -233,7 +238,14 @@ impl Sys {
             self.sparse = Some(m.sp_lu().map_err(|_| 0usize)?);
             return Ok(());
         }
-        let scale = self.a.iter().map(|&z| ops::abs(z)).fold(0.0f64, f64::max);
+        // The largest magnitude, from squares (one square root, no hypot
+        // per entry) unless they overflow or underflow.
+        let m2 = self.a.iter().map(|z| z.re * z.re + z.im * z.im).fold(0.0f64, f64::max);
+        let scale = if (f64::MIN_POSITIVE..f64::INFINITY).contains(&m2) {
+            m2.sqrt()
+        } else {
+            self.a.iter().map(|&z| ops::abs(z)).fold(0.0f64, f64::max)
+        };
         if self.mem_n < n {
             let req = lu_in_place_scratch::<usize, C64>(n, n, Par::Seq, Default::default())
                 .or(solve_in_place_scratch::<usize, C64>(n, 1, Par::Seq));
