@@ -11,7 +11,8 @@
 //!       a generated mesh of NODES nodes: compile the sheet and solve it
 //!       once (CPU time), and this process's peak memory.
 //!   cargo bench --bench network -- meshes
-//!       `mesh` for 1,250 to 10,000 nodes, each in a fresh process.
+//!       `mesh` for 1,250 to 6,000 nodes (the mesh has three elements a
+//!       node; a network may have 20,000), each in a fresh process.
 //!   cargo bench --bench network -- crossover
 //!       one solve of a grid network by faer's dense and sparse LU at
 //!       sizes around `SPARSE_FROM`.
@@ -404,7 +405,7 @@ fn mesh(nodes: usize) {
 
 fn meshes() {
     let exe = std::env::current_exe().expect("this program");
-    for n in [1250, 2500, 5000, 10000] {
+    for n in [1250, 2500, 5000, 6000] {
         let mut times = Vec::new();
         let mut last = String::new();
         for _ in 0..3 {
