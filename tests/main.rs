@@ -52,6 +52,7 @@ mod scale_sheet;
 mod search_sheet;
 mod session_pty;
 mod spread;
+mod spread_reference;
 mod sweep;
 mod tolerances;
 mod two_ports;
