@@ -44,6 +44,7 @@ fn energised_equipment_sheets_carry_the_caution() {
         "harbour-vhf-feeder.ohm",
         "quarry-crusher-feeder.ohm",
         "plant-bus-two-sources.ohm",
+        "paper-mill-bank-spread.ohm",
     ] {
         let text = std::fs::read_to_string(repo(&format!("sheets-demo/{name}"))).unwrap();
         assert!(text.contains("# CAUTION"), "{name}");

@@ -23,6 +23,7 @@ const PAIRS: &[(&str, &str)] = &[
     ("sawmill-bank-fault-duty.ohm", "sawmill.py"),
     ("harbour-vhf-feeder.ohm", "harbour_vhf.py"),
     ("quarry-crusher-feeder.ohm", "quarry.py"),
+    ("paper-mill-bank-spread.ohm", "paper_mill.py"),
     ("beacon-antenna-match.ohm", "beacon.py"),
     ("unbalanced-cold-store.ohm", "cold_store.py"),
     ("pf-correction-feed-mill.ohm", "feed_mill.py"),
@@ -90,6 +91,41 @@ fn demo_sheets_agree_with_their_verifiers() {
         }
         assert!(bad.is_empty(), "{}", bad.join("\n"));
     }
+}
+
+/// The capacitor-bank demo states tolerances: its report's spread section
+/// (worst case, Monte Carlo, sensitivities) is checked by its verifier
+/// against brute force over the box, numpy's own sampling with stated
+/// statistical bounds, and central differences with the GUM's law of
+/// propagation (see sheets-demo/verify/paper_mill.py).
+#[test]
+fn the_spread_demo_report_agrees_with_its_verifier() {
+    let Some(py) = python("demo_verifiers::the_spread_demo_report_agrees_with_its_verifier") else {
+        return;
+    };
+    let dir = tempfile::tempdir().unwrap();
+    let json = dir.path().join("paper-mill.json");
+    crate::common::ohmsheet()
+        .args(["report", "--format", "json", "--samples", "20000", "--seed", "7", "-o"])
+        .arg(&json)
+        .arg(repo("sheets-demo/paper-mill-bank-spread.ohm"))
+        .assert()
+        .success();
+    let report: serde_json::Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
+    assert_eq!(report["spread"]["data"]["monte_carlo"]["seed"], 7);
+    assert_eq!(report["spread"]["data"]["monte_carlo"]["samples"], 20000);
+    let out = std::process::Command::new(&py)
+        .arg(repo("sheets-demo/verify/paper_mill.py"))
+        .arg("--spread")
+        .arg(&json)
+        .output()
+        .expect("python runs");
+    assert!(
+        out.status.success(),
+        "paper_mill.py --spread disagrees:\n{}{}",
+        String::from_utf8_lossy(&out.stdout),
+        String::from_utf8_lossy(&out.stderr)
+    );
 }
 
 /// No verifier is left out, and each names a demo sheet that exists.

@@ -48,6 +48,7 @@ mod readme;
 mod reference;
 mod report;
 mod report_browser;
+mod report_spread;
 mod scale_sheet;
 mod search_sheet;
 mod session_pty;

@@ -33,6 +33,12 @@ pub struct ReportArgs {
     /// Complex values as a + jb (rect), m ∠ θ (polar) or both
     #[arg(long, value_enum, default_value_t = super::ComplexArg::Both)]
     pub complex: super::ComplexArg,
+    /// Monte Carlo samples for the spread section (a sheet with tolerances)
+    #[arg(long, default_value_t = 10_000, value_name = "N")]
+    pub samples: usize,
+    /// Monte Carlo seed for the spread section: the same seed gives the same samples
+    #[arg(long, default_value_t = 1, value_name = "N")]
+    pub seed: u64,
     #[command(flatten)]
     pub load: LoadArgs,
 }
@@ -90,6 +96,43 @@ pub fn report(a: &ReportArgs) -> i32 {
     };
     let mut r = report::build(&sheet, &engine, &a.set, style);
     r.in_form(a.complex);
+    if !engine.model.spreads.is_empty() {
+        if a.samples == 0 || a.samples > super::spread::DEFAULT_MAX_SAMPLES {
+            eprintln!(
+                "error: --samples {} is {}\n  hint: give 1 to {} samples",
+                a.samples,
+                if a.samples == 0 { "none" } else { "more than allowed" },
+                super::spread::DEFAULT_MAX_SAMPLES
+            );
+            return EXIT_ERROR;
+        }
+        let plan = match crate::spread::plan_for(sheet.clone(), None) {
+            Ok(p) => p,
+            Err(f) => {
+                super::report(&f.sources, &f.diagnostics);
+                return EXIT_ERROR;
+            }
+        };
+        let worst = crate::spread::worst_case(&plan);
+        let mc = crate::spread::monte_carlo(
+            &plan,
+            &crate::spread::McOptions {
+                samples: a.samples,
+                seed: a.seed,
+                bins: 40,
+                coverage: 0.95,
+            },
+        );
+        let sens = crate::spread::sensitivities(&plan);
+        let an = crate::output::spread::Analyses {
+            plan: &plan,
+            worst: Some(&worst),
+            mc: Some(&mc),
+            sens: Some(&sens),
+            style,
+        };
+        r.spread = Some(report::spread::section(&an, &a.sheet.display().to_string()));
+    }
     // Markdown written to a file takes its plots from SVG files beside it,
     // which Markdown viewers show (few show `data:` images).
     // `names[k]` is the file of plot `k`, or empty when it has no picture.
@@ -105,6 +148,19 @@ pub fn report(a: &ReportArgs) -> i32 {
                 continue;
             };
             let name = format!("{stem}.plot-{}.svg", k + 1);
+            let p = dir.join(&name);
+            if let Err(e) = crate::fsutil::write_atomic(&p, svg.as_bytes()) {
+                eprintln!("error: cannot write `{}`: {e}", p.display());
+                return EXIT_ERROR;
+            }
+            names.push(name);
+        }
+        for (k, f) in r.spread.iter().flat_map(|s| &s.figures).enumerate() {
+            let Some(svg) = &f.svg else {
+                names.push(String::new());
+                continue;
+            };
+            let name = format!("{stem}.spread-{}.svg", k + 1);
             let p = dir.join(&name);
             if let Err(e) = crate::fsutil::write_atomic(&p, svg.as_bytes()) {
                 eprintln!("error: cannot write `{}`: {e}", p.display());

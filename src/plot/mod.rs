@@ -14,6 +14,7 @@
 //! library entry point (used by `ohmsheet sweep --plot` and by reports).
 
 pub mod chart;
+pub mod spread;
 
 use plotters::coord::ranged1d::{AsRangedCoord, ValueFormatter};
 use plotters::coord::Shift;
@@ -371,7 +372,7 @@ fn segments(points: &[(f64, f64)]) -> Vec<Vec<(f64, f64)>> {
 type Area<'a> = DrawingArea<SVGBackend<'a>, Shift>;
 
 /// A rectangle in picture pixels: left, top, right, bottom.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct Rect {
     pub x0: i32,
     pub y0: i32,

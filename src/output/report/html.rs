@@ -274,6 +274,10 @@ pub fn html(r: &Report) -> String {
         o.push_str("</section>\n");
     }
 
+    if let Some(sp) = &r.spread {
+        spread_html(&mut o, sp, if r.plots.is_empty() { 4 } else { 5 });
+    }
+
     o.push_str(&format!(
         "<section class=\"caution\" id=\"caution\"><strong>Caution.</strong> {}</section>\n",
         esc(r.caution)
@@ -284,6 +288,156 @@ pub fn html(r: &Report) -> String {
         esc(&r.sha256)
     ));
     o
+}
+
+fn table(o: &mut String, head: &[&str], rows: &[Vec<String>]) {
+    o.push_str("<table>\n<thead><tr>");
+    for h in head {
+        o.push_str(&format!("<th>{}</th>", esc(h)));
+    }
+    o.push_str("</tr></thead>\n<tbody>\n");
+    for r in rows {
+        o.push_str("<tr>");
+        for c in r {
+            o.push_str(&format!("<td>{}</td>", esc(c)));
+        }
+        o.push_str("</tr>\n");
+    }
+    o.push_str("</tbody>\n</table>\n");
+}
+
+/// The spread section, numbered `n`, its figures inline.
+fn spread_html(o: &mut String, sp: &super::spread::SpreadSection, n: usize) {
+    let figure = |o: &mut String, k: Option<usize>| {
+        if let Some(f) = k.and_then(|k| sp.figures.get(k)) {
+            if let Some(svg) = &f.svg {
+                o.push_str(&format!(
+                    "<figure class=\"plot\">\n{svg}\n<figcaption class=\"small\">{} — {}</figcaption>\n</figure>\n",
+                    esc(&f.title),
+                    esc(&f.caption)
+                ));
+            }
+        }
+    };
+    o.push_str(&format!(
+        "<section id=\"spread\">\n<h2>{n}. Spread over the tolerances</h2>\n<p class=\"caution\"><strong>Caution.</strong> {}</p>\n<p>{}</p>\n",
+        esc(sp.caution),
+        esc(super::spread::SPREAD_INTRO)
+    ));
+    let rows: Vec<Vec<String>> = sp
+        .inputs
+        .iter()
+        .map(|i| vec![i.name.clone(), i.stated.clone(), i.tolerance.clone()])
+        .collect();
+    table(o, &["Input", "Stated", "Tolerance"], &rows);
+    let mut sub = 0;
+    if let Some(w) = &sp.worst {
+        sub += 1;
+        o.push_str(&format!(
+            "<h3>{n}.{sub} Worst case</h3>\n<p>Found over {}.</p>\n",
+            esc(&w.method)
+        ));
+        let rows: Vec<Vec<String>> = w
+            .rows
+            .iter()
+            .map(|r| {
+                vec![
+                    r.cell.clone(),
+                    r.stated.clone(),
+                    r.smallest.clone(),
+                    r.smallest_at.clone(),
+                    r.largest.clone(),
+                    r.largest_at.clone(),
+                ]
+            })
+            .collect();
+        table(o, &["Cell", "Stated", "Smallest", "at", "Largest", "at"], &rows);
+    }
+    if let Some(mc) = &sp.monte_carlo {
+        sub += 1;
+        o.push_str(&format!(
+            "<h3>{n}.{sub} Monte Carlo</h3>\n<p>{}.</p>\n",
+            esc(&mc.method)
+        ));
+        let rows: Vec<Vec<String>> = mc
+            .rows
+            .iter()
+            .map(|r| {
+                vec![
+                    r.cell.clone(),
+                    r.stated.clone(),
+                    r.mean.clone(),
+                    r.std_dev.clone(),
+                    r.interval.clone(),
+                    r.p1_p99.clone(),
+                ]
+            })
+            .collect();
+        table(
+            o,
+            &["Cell", "Stated", "Mean", "Std dev", "Coverage interval", "1 % … 99 %"],
+            &rows,
+        );
+        for r in &mc.rows {
+            if r.undefined > 0 {
+                o.push_str(&format!(
+                    "<p>{}: {} samples gave no number and are left out.</p>\n",
+                    esc(&r.cell),
+                    r.undefined
+                ));
+            }
+        }
+        for r in &mc.rows {
+            figure(o, r.figure);
+        }
+    }
+    if let Some(sens) = &sp.sensitivities {
+        sub += 1;
+        o.push_str(&format!(
+            "<h3>{n}.{sub} Sensitivities</h3>\n<p>The change of each cell per change of each input at the stated values \
+             (per % of the input's magnitude, or per degree of its angle), largest first; the cell with the input at each \
+             end of its band, the others stated; and the first-order standard deviation by the law of propagation of \
+             uncertainty, JCGM 100:2008 §5.1.2.</p>\n"
+        ));
+        for c in sens {
+            o.push_str(&format!(
+                "<p><strong>{}</strong> — stated {}; first-order standard deviation {}</p>\n",
+                esc(&c.cell),
+                esc(&c.stated),
+                esc(&c.first_order_std_dev)
+            ));
+            let rows: Vec<Vec<String>> = c
+                .rows
+                .iter()
+                .map(|r| {
+                    let mut v = vec![r.input.clone(), r.per.clone()];
+                    if c.complex {
+                        v.push(r.angle.clone());
+                    }
+                    v.push(r.low.clone());
+                    v.push(r.high.clone());
+                    v
+                })
+                .collect();
+            if c.complex {
+                table(
+                    o,
+                    &[
+                        "Input",
+                        "Cell magnitude",
+                        "Cell angle",
+                        "Input at low end",
+                        "Input at high end",
+                    ],
+                    &rows,
+                );
+            } else {
+                table(o, &["Input", "Cell", "Input at low end", "Input at high end"], &rows);
+            }
+            figure(o, c.figure);
+        }
+    }
+    o.push_str("</section>\n");
 }
 
 #[cfg(test)]

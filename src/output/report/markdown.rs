@@ -240,11 +240,177 @@ pub fn markdown_with_plot_files(r: &Report, plot_files: &[String]) -> String {
         }
     }
 
+    if let Some(sp) = &r.spread {
+        let n = if r.plots.is_empty() { 4 } else { 5 };
+        spread_md(&mut o, sp, n, plot_files.get(r.plots.len()..).unwrap_or(&[]));
+    }
+
     p(&mut o, "");
     p(&mut o, "## Caution");
     p(&mut o, "");
     p(&mut o, &format!("> {}", md_text(r.caution)));
     o
+}
+
+/// The spread section, numbered `n`; figure `k` from the file `files[k]`
+/// where one is given, else as a `data:` image.
+fn spread_md(o: &mut String, sp: &super::spread::SpreadSection, n: usize, files: &[String]) {
+    let mut p = |s: &str| {
+        o.push_str(s);
+        o.push('\n');
+    };
+    let figure = |k: Option<usize>| -> String {
+        let Some(k) = k else { return String::new() };
+        let Some(f) = sp.figures.get(k) else {
+            return String::new();
+        };
+        match (&f.svg, files.get(k).filter(|x| !x.is_empty())) {
+            (Some(_), Some(file)) => format!(
+                "![{}]({})\n\n{}",
+                md_text(&f.title),
+                file.replace(' ', "%20"),
+                md_text(&f.caption)
+            ),
+            (Some(svg), None) => format!(
+                "![{}]({})\n\n{}",
+                md_text(&f.title),
+                svg_data_uri(svg),
+                md_text(&f.caption)
+            ),
+            (None, _) => String::new(),
+        }
+    };
+    p("");
+    p(&format!("## {n}. Spread over the tolerances"));
+    p("");
+    p(&format!("> **Caution.** {}", md_text(sp.caution)));
+    p("");
+    p(&md_text(super::spread::SPREAD_INTRO));
+    p("");
+    p("| Input | Stated | Tolerance |");
+    p("|---|--:|---|");
+    for i in &sp.inputs {
+        p(&format!(
+            "| {} | {} | {} |",
+            md_code(&i.name),
+            md_text(&i.stated),
+            md_text(&i.tolerance)
+        ));
+    }
+    let mut sub = 0;
+    if let Some(w) = &sp.worst {
+        sub += 1;
+        p("");
+        p(&format!("### {n}.{sub} Worst case"));
+        p("");
+        p(&format!("Found over {}.", md_text(&w.method)));
+        p("");
+        p("| Cell | Stated | Smallest | at | Largest | at |");
+        p("|---|--:|--:|---|--:|---|");
+        for r in &w.rows {
+            p(&format!(
+                "| {} | {} | {} | {} | {} | {} |",
+                md_text(&r.cell),
+                md_text(&r.stated),
+                md_text(&r.smallest),
+                md_text(&r.smallest_at),
+                md_text(&r.largest),
+                md_text(&r.largest_at)
+            ));
+        }
+    }
+    if let Some(mc) = &sp.monte_carlo {
+        sub += 1;
+        p("");
+        p(&format!("### {n}.{sub} Monte Carlo"));
+        p("");
+        p(&format!("{}.", md_text(&mc.method)));
+        p("");
+        p("| Cell | Stated | Mean | Std dev | Coverage interval | 1 % … 99 % |");
+        p("|---|--:|--:|--:|--:|--:|");
+        for r in &mc.rows {
+            p(&format!(
+                "| {} | {} | {} | {} | {} | {} |",
+                md_text(&r.cell),
+                md_text(&r.stated),
+                md_text(&r.mean),
+                md_text(&r.std_dev),
+                md_text(&r.interval),
+                md_text(&r.p1_p99)
+            ));
+        }
+        for r in &mc.rows {
+            if r.undefined > 0 {
+                p("");
+                p(&format!(
+                    "{}: {} samples gave no number and are left out.",
+                    md_text(&r.cell),
+                    r.undefined
+                ));
+            }
+        }
+        for r in &mc.rows {
+            let f = figure(r.figure);
+            if !f.is_empty() {
+                p("");
+                p(&f);
+            }
+        }
+    }
+    if let Some(sens) = &sp.sensitivities {
+        sub += 1;
+        p("");
+        p(&format!("### {n}.{sub} Sensitivities"));
+        p("");
+        p(
+            "The change of each cell per change of each input at the stated values (per % of the input's \
+             magnitude, or per degree of its angle), largest first; the cell with the input at each end of its \
+             band, the others stated; and the first-order standard deviation by the law of propagation of \
+             uncertainty, JCGM 100:2008 §5.1.2.",
+        );
+        for c in sens {
+            p("");
+            p(&format!(
+                "**{}** — stated {}; first-order standard deviation {}",
+                md_text(&c.cell),
+                md_text(&c.stated),
+                md_text(&c.first_order_std_dev)
+            ));
+            p("");
+            if c.complex {
+                p("| Input | Cell magnitude | Cell angle | Input at low end | Input at high end |");
+                p("|---|--:|--:|--:|--:|");
+            } else {
+                p("| Input | Cell | Input at low end | Input at high end |");
+                p("|---|--:|--:|--:|");
+            }
+            for r in &c.rows {
+                if c.complex {
+                    p(&format!(
+                        "| {} | {} | {} | {} | {} |",
+                        md_code(&r.input),
+                        md_text(&r.per),
+                        md_text(&r.angle),
+                        md_text(&r.low),
+                        md_text(&r.high)
+                    ));
+                } else {
+                    p(&format!(
+                        "| {} | {} | {} | {} |",
+                        md_code(&r.input),
+                        md_text(&r.per),
+                        md_text(&r.low),
+                        md_text(&r.high)
+                    ));
+                }
+            }
+            let f = figure(c.figure);
+            if !f.is_empty() {
+                p("");
+                p(&f);
+            }
+        }
+    }
 }
 
 /// `SVG` as a `data:` URI, for Markdown viewers that show images.

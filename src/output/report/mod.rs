@@ -7,6 +7,7 @@
 mod html;
 mod layout;
 mod markdown;
+pub mod spread;
 mod subst;
 
 use std::collections::HashMap;
@@ -60,6 +61,9 @@ pub struct Report {
     pub steps: Vec<Step>,
     pub checks: Vec<CheckLine>,
     pub plots: Vec<Plot>,
+    /// The analyses over the inputs' tolerances, for a sheet that states
+    /// any (`spread::section`); set by the caller after `build`.
+    pub spread: Option<spread::SpreadSection>,
     pub caution: &'static str,
     /// `ohmsheet 0.1.0`
     pub generator: String,
@@ -456,6 +460,7 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
         steps,
         checks,
         plots: plots(m, style),
+        spread: None,
         caution: CAUTION,
         form: crate::output::Form::Both,
         generator: format!("ohmsheet {}", env!("CARGO_PKG_VERSION")),
