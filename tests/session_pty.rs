@@ -537,3 +537,27 @@ fn feeds_lists_a_check_once() {
     t.line("/done");
     t.eof();
 }
+
+/// The small slips of issue 15, as a session shows them: `2 ** 3` is
+/// answered with `^`, and a line cut short says so, never "unexpected the
+/// end of the line".
+#[test]
+fn a_double_star_and_a_line_cut_short_read_well() {
+    let env = Env::new();
+    let sheet = env.sheet(DIVIDER);
+    let mut t = env.spawn(Some(&sheet));
+    t.prompt();
+    t.line("x = 2 ** 3");
+    t.expect("error[syntax]");
+    t.expect("a power is written with `^`: `2^3`");
+    t.expect("the sheet is as it was");
+    t.prompt();
+    t.line("x = 3 +");
+    let out = t.expect("the sheet is as it was");
+    assert!(out.contains("the line ends too soon"), "{out}");
+    assert!(!out.contains("unexpected the"), "{out}");
+    t.prompt();
+    t.line("/done");
+    t.eof();
+    assert_eq!(std::fs::read_to_string(&sheet).unwrap(), DIVIDER);
+}
