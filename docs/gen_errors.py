@@ -95,6 +95,17 @@ ENTRIES = [
      "where the NaN first appeared. `run`, `check`, `report`, `watch`, sweeps, the session and the "
      "batch errors file say the same.",
      "a = 0 V\nb = a / a\n", None),
+    ("infinite-value", "A current, voltage, power, plain ratio or level came out infinite: it has no physical "
+     "reading. The message names the operation where the infinity was born — a division by zero with the "
+     "divisor's value, a function at its pole with its domain's reason, or the open or short element the "
+     "cell uses — on that operation, once for a chain of cells. An infinite impedance or admittance is an "
+     "element, not an error (see `infinite-element`).",
+     "V = 10 V\nR = 0 Ω\nI = V / R\n", None),
+    ("infinite-element", "A warning, not an error: an impedance or admittance is infinite — an open (∞ Ω) or "
+     "a short (∞ S), which `||`, `--` and the network functions take to its limit. It says which, and where "
+     "it came from, in the cell where it was born; the run goes on and exits 0.", None,
+     "`Zc = z_cap(0 F, 50 Hz)` runs, and prints `warning[infinite-element]: `Zc` is -j∞ Ω, an open (infinite "
+     "impedance): `z_cap(C = 0 F, f = 50 Hz)` is infinite there`."),
     ("bad-override", "`--set` names no cell, or is not `NAME=EXPR`; or an `@override` line names no value "
      "of an included library sheet, overrides one twice, overrides its own sheet's value, or gives a value "
      "of another dimension than the library's.", None,

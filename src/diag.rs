@@ -238,6 +238,8 @@ error_codes! {
     UnknownDirective => "unknown-directive",
     BadDirective => "bad-directive",
     NotANumber => "not-a-number",
+    InfiniteValue => "infinite-value",
+    InfiniteElement => "infinite-element",
     BadOverride => "bad-override",
     BadCases => "bad-cases",
     IncludePath => "include-path",

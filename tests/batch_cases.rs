@@ -215,11 +215,16 @@ fn digits_rounds_the_written_values() {
     // 120 V / 7 Ω = 17.142857… A; the constant 2π·50 Hz · 1 H = 314.159… Ω.
     let sheet = "V = 120 V\nR = 10 Ω\nI = abs(V / R)\nw = 2 * pi * 50 Hz\nX = w * 1 H\n";
     let (out, a) = batch(dir.path(), sheet, "R [Ω]\n7\n0\n", &["--digits", "4"]);
-    a.code(0);
+    a.code(1);
     let rows = read_csv(&out);
     assert_eq!(rows[1][1..], ["17.14", "314.2"]);
-    // 120 V / 0 Ω is infinite, written as `inf` whatever the digits.
-    assert_eq!(rows[2][1..], ["inf", "314.2"]);
+    // 120 V / 0 Ω is an infinite current (a short across an ideal source):
+    // not computed, whatever the digits; the rest of the row is written.
+    assert_eq!(rows[2][1..], ["", "314.2"]);
+    // an open element is written `inf` whatever the digits
+    let (out, a) = batch(dir.path(), "R = 10 Ω\nY = 1 / R\n", "R [Ω]\n0\n", &["--digits", "4"]);
+    a.code(0);
+    assert_eq!(read_csv(&out)[1][1..], ["inf", "0"]);
     // Without --digits every number reads back to the same bits.
     let (out, a) = batch(dir.path(), sheet, "R [Ω]\n7\n", &[]);
     a.code(0);

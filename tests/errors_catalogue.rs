@@ -61,6 +61,16 @@ fn every_sheet_example_produces_its_code() {
     assert!(n >= 20, "only {n} sheet examples found");
 }
 
+/// An open element (a bank of 0 F, an open by IEC 60050-131's
+/// definition of a capacitor's impedance −j/(ωC)) is a warning, and the
+/// run succeeds.
+#[test]
+fn infinite_element_is_a_warning() {
+    run_sheet_bytes("Zc = z_cap(0 F, 50 Hz)\n".as_bytes())
+        .code(0)
+        .stderr(predicate::str::contains("warning[infinite-element]"));
+}
+
 #[test]
 fn trig_radians_is_a_note() {
     run_sheet_bytes(b"x = cos(30)\n")

@@ -220,8 +220,10 @@ fn number_range() {
     }
 }
 
-/// A computed overflow follows IEEE 754: ±∞, shown as ∞, like an open
-/// circuit from 1/0 S; it is not an error. What it leads to that has no
+/// A computed overflow follows IEEE 754: ±∞, shown as ∞. An infinite
+/// impedance is an open element (a warning); an infinite plain number has
+/// no physical reading and is an error on the operation that overflowed
+/// (docs/grammar.md, "Infinite values"). What it leads to that has no
 /// value (∞ − ∞) is NaN, which is an error naming where it was born.
 #[test]
 fn computed_overflow_is_infinite_and_shown() {
@@ -231,8 +233,17 @@ fn computed_overflow_is_infinite_and_shown() {
     ohmsheet()
         .args(["run", p.to_str().unwrap()])
         .assert()
+        .code(2)
+        .stdout(predicate::str::contains("∞"))
+        .stderr(predicate::str::contains("error[infinite-value]"))
+        .stderr(predicate::str::contains("`x * 10` is beyond the range of numbers"));
+    std::fs::write(&p, "x = 1e308 Ω\ny = x * 10\n").unwrap();
+    ohmsheet()
+        .args(["run", p.to_str().unwrap()])
+        .assert()
         .code(0)
-        .stdout(predicate::str::contains("∞"));
+        .stdout(predicate::str::contains("∞"))
+        .stderr(predicate::str::contains("warning[infinite-element]"));
     std::fs::write(&p, "x = 1e308\ny = x * 10\nz = y - y\n").unwrap();
     ohmsheet()
         .args(["run", p.to_str().unwrap()])

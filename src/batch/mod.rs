@@ -88,6 +88,10 @@ pub struct Shown {
     /// Its two columns: `Rect` or `Polar` (a plan in both forms shows a
     /// complex value twice, once each way).
     pub form: ComplexForm,
+    /// An impedance or admittance: ∞ is an open or a short element and is
+    /// written `inf`; any other infinite value fails its cell, with the
+    /// reason (`engine::infinite::inf_diagnostic`).
+    pub element: bool,
 }
 
 /// Columns in, columns out, and the compiled sheet.
@@ -516,6 +520,7 @@ impl Plan {
                     unit: unit.clone(),
                     fixed: None,
                     form: f,
+                    element: crate::engine::infinite::is_element(q),
                 });
             }
         };

@@ -34,3 +34,11 @@ pub fn nan_reason(m: &Model, slots: &[C64], id: CellId) -> String {
         c.name
     )
 }
+
+/// Why cell `id` is infinite in a case whose values are `slots`: where the
+/// infinity was born and why, as `run` says it (`engine::explain`).
+pub fn inf_reason(m: &Model, slots: &[C64], id: CellId) -> String {
+    let d = crate::engine::infinite::inf_diagnostic(m, slots, id, false);
+    let at = d.span.map(|s| m.sources.location(s)).unwrap_or_default();
+    format!("{} (at {at})", d.message)
+}

@@ -364,8 +364,12 @@ impl Plan {
         let mut bad = [false; LANES];
         for s in self.shown.iter().filter(|s| s.fixed.is_none()) {
             let (re, im) = b.lanes(s.slot);
+            let inf_fails = !s.element;
             for l in 0..LANES {
-                bad[l] |= re[l].is_nan() | im[l].is_nan() | (s.real & (im[l] != 0.0));
+                bad[l] |= re[l].is_nan()
+                    | im[l].is_nan()
+                    | (s.real & (im[l] != 0.0))
+                    | (inf_fails & (re[l].is_infinite() | im[l].is_infinite()));
             }
         }
         bad.iter().enumerate().fold(0, |m, (l, &x)| m | (u64::from(x) << l))
@@ -381,7 +385,11 @@ impl Plan {
             .iter()
             .map(|s| {
                 let z = b.get(s.slot, lane);
-                s.fixed.is_none() && (z.re.is_nan() || z.im.is_nan() || (s.real && z.im != 0.0))
+                s.fixed.is_none()
+                    && (z.re.is_nan()
+                        || z.im.is_nan()
+                        || (s.real && z.im != 0.0)
+                        || (!s.element && (z.re.is_infinite() || z.im.is_infinite())))
             })
             .collect();
         let m = &*self.model;
@@ -393,7 +401,8 @@ impl Plan {
                 continue;
             }
             let z = b.get(s.slot, lane);
-            if !z.re.is_nan() && !z.im.is_nan() {
+            let infinite = !s.element && (z.re.is_infinite() || z.im.is_infinite());
+            if !z.re.is_nan() && !z.im.is_nan() && !infinite {
                 failed.push((
                     s.label.clone(),
                     format!("`{}` has an imaginary part where none was expected", s.label),
@@ -409,6 +418,43 @@ impl Plan {
                 eval::run(&prog.code, prog, &mut slots);
                 slots
             });
+            if !z.re.is_nan() && !z.im.is_nan() {
+                // infinite: the first cell of the chain of infinite
+                // non-elements, with where and why it was born
+                let origins = crate::engine::infinite::inf_origins(m, slots);
+                let origin = if origins.contains(&(s.cell, true)) {
+                    s.cell
+                } else {
+                    // the earliest error origin among the cells it uses
+                    let mut seen = vec![false; m.cells.len()];
+                    let mut stack = vec![s.cell];
+                    while let Some(c) = stack.pop() {
+                        for &d in &m.cells[c as usize].deps {
+                            if !seen[d as usize] {
+                                seen[d as usize] = true;
+                                stack.push(d);
+                            }
+                        }
+                    }
+                    origins
+                        .iter()
+                        .filter(|&&(d, err)| err && seen[d as usize])
+                        .map(|&(d, _)| d)
+                        .min_by_key(|&d| m.rank[d as usize])
+                        .unwrap_or(s.cell)
+                };
+                let why = super::reason::inf_reason(m, slots, origin);
+                let reason = if origin == s.cell {
+                    why
+                } else {
+                    format!(
+                        "not computed because it uses `{}`: {why}",
+                        m.cells[origin as usize].name
+                    )
+                };
+                failed.push((s.label.clone(), reason));
+                continue;
+            }
             let nan = |id: CellId| {
                 let c = &m.cells[id as usize];
                 slots[c.slot as usize..(c.slot + c.width) as usize]

@@ -137,6 +137,11 @@ fn nan_text(engine: &Engine) -> String {
             )),
         }
     }
+    for (id, error) in engine.inf_origins() {
+        if error {
+            out.push_str(&engine.inf_diagnostic(id, true).render_plain(&m.sources));
+        }
+    }
     out
 }
 
@@ -182,7 +187,9 @@ pub fn check(a: &CheckArgs) -> i32 {
         output::checks_in_form(&mut rows, a.complex);
         let mut error = None;
         if report_nans(&engine) {
-            say(format!("ERROR {name}: a value is not a number (shown above)"));
+            say(format!(
+                "ERROR {name}: a value is not a number or is infinite (shown above)"
+            ));
             error = Some(nan_text(&engine));
         }
         if rows.is_empty() {

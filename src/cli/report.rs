@@ -88,7 +88,7 @@ pub fn report(a: &ReportArgs) -> i32 {
     };
     let engine = Engine::new(model);
     if report_nans(&engine) {
-        eprintln!("error: no report written: a value is not a number (see above)");
+        eprintln!("error: no report written: a value is not a number or is infinite (see above)");
         return EXIT_ERROR;
     }
     let style = Style {

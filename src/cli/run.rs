@@ -54,19 +54,23 @@ pub fn run(a: &RunArgs) -> i32 {
 }
 
 /// Report each NaN where it was born, with the function whose domain was
-/// left when one explains it; true if there was one.
+/// left when one explains it, and each infinite value where it was born
+/// (an error, or a warning for an open or short element); true if there
+/// was an error.
 pub(super) fn report_nans(engine: &Engine) -> bool {
     let m = &engine.model;
-    let origins = engine.nan_origins();
-    if origins.is_empty() {
-        return false;
-    }
-    for &id in &origins {
+    let mut failed = false;
+    for id in engine.nan_origins() {
         // A search that found no answer says why.
         let d = crate::sweep::search_failure(engine, id).unwrap_or_else(|| engine.nan_diagnostic(id));
         d.eprint(&m.sources);
+        failed = true;
     }
-    true
+    for (id, error) in engine.inf_origins() {
+        engine.inf_diagnostic(id, error).eprint(&m.sources);
+        failed |= error;
+    }
+    failed
 }
 
 /// Every function with its parameters, units, a one-line description (its

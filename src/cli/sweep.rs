@@ -417,6 +417,10 @@ fn warn_undefined(engine: &Engine, count: usize, first: Option<usize>, axes: &[A
         let d = at_point.nan_diagnostic(id).warning();
         d.eprint(&at_point.model.sources);
     }
+    for (id, error) in at_point.inf_origins() {
+        let d = at_point.inf_diagnostic(id, error).warning();
+        d.eprint(&at_point.model.sources);
+    }
 }
 
 fn show_x(a: &Axis, x: f64) -> String {

@@ -69,13 +69,13 @@ fn calls<'e>(e: &'e Expr, out: &mut Vec<&'e Expr>) {
 }
 
 /// The statement of cell `id`, parsed again from its source.
-fn statement(model: &Model, id: CellId) -> Option<crate::syntax::ast::Stmt> {
+pub(super) fn statement(model: &Model, id: CellId) -> Option<crate::syntax::ast::Stmt> {
     let c = model.cells.get(id as usize)?;
     let text = model.sources.slice(c.stmt_span);
     parse_line(text, c.stmt_span.file, c.stmt_span.start as usize, c.line).ok()?
 }
 
-fn exprs(stmt: &crate::syntax::ast::Stmt) -> Vec<&Expr> {
+pub(super) fn exprs(stmt: &crate::syntax::ast::Stmt) -> Vec<&Expr> {
     match &stmt.kind {
         StmtKind::Def(d) => vec![&d.expr],
         StmtKind::Check(c) => {
@@ -95,7 +95,7 @@ fn exprs(stmt: &crate::syntax::ast::Stmt) -> Vec<&Expr> {
 /// against `model` into code of its own and run over a copy of `slots`.
 /// Neither the model nor the slots change. A record (a two-port passed
 /// whole) gives each of its fields, named; a single value has the name "".
-fn argument(model: &Model, slots: &[C64], e: &Expr) -> Option<Vec<(&'static str, Quantity, C64)>> {
+pub(super) fn argument(model: &Model, slots: &[C64], e: &Expr) -> Option<Vec<(&'static str, Quantity, C64)>> {
     let searches = std::cell::RefCell::new(Vec::new());
     let networks = std::cell::RefCell::new(Vec::new());
     let lw = Lowerer {

@@ -5,6 +5,7 @@ mod compare;
 pub mod edit;
 pub mod eval;
 pub mod explain;
+pub mod infinite;
 pub mod model;
 pub mod notes;
 pub mod ops;

@@ -377,12 +377,20 @@ impl Session {
             .into_iter()
             .filter(|&id| shown.iter().any(|s| s.name == show::cell_label(m, id)))
             .collect();
-        if hit.is_empty() {
-            return String::new();
-        }
-        hit.into_iter()
+        let inf: Vec<_> = self
+            .engine
+            .inf_origins()
+            .into_iter()
+            .filter(|&(id, _)| shown.iter().any(|s| s.name == show::cell_label(m, id)))
+            .collect();
+        let mut out: String = hit
+            .into_iter()
             .map(|id| self.render(&self.engine.nan_diagnostic(id)))
-            .collect()
+            .collect();
+        for (id, error) in inf {
+            out.push_str(&self.render(&self.engine.inf_diagnostic(id, error)));
+        }
+        out
     }
 }
 

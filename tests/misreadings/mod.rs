@@ -4,6 +4,7 @@
 
 mod angle;
 mod display;
+mod infinite;
 mod kinds;
 mod lookalikes;
 mod numerics;
