@@ -8,5 +8,6 @@ mod infinite;
 mod kinds;
 mod lookalikes;
 mod numerics;
+mod overrides;
 mod ranges;
 mod trig_note;

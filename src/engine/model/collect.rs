@@ -33,6 +33,7 @@ pub fn compile(sheet: &Sheet) -> Model {
 /// `compile` with a different cap on the number of cells (for tests of the
 /// limit).
 pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
+    let originals = original_quantities(sheet, max_cells);
     let mut diags = sheet.errors.clone();
     // Sized once: on a big sheet, growing these a doubling at a time
     // copied every cell again and rehashed every name.
@@ -428,9 +429,14 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
             // the last override of the name is the formula in place (a
             // `--set` of a value an `@override` line replaced)
             (Some(e), _) => match sheet.overrides.iter().rfind(|o| o.name == cells[i].name) {
-                Some(ov) => lw
-                    .check_override(e, ov)
-                    .and_then(|()| lw.lower_def(&mut em, e, &cells[i])),
+                Some(ov) => lw.lower_def(&mut em, e, &cells[i]).and_then(|val| {
+                    let got = match &val {
+                        Val::Scalar(_, q) => Some(*q),
+                        Val::Record(_) => None,
+                    };
+                    lw.check_override(e, ov, originals.get(&ov.name).copied(), got)
+                        .map(|()| val)
+                }),
                 None => lw.lower_def(&mut em, e, &cells[i]),
             },
             (None, Some(c)) => lw.lower_check(&mut em, c).map(|(v, tol)| {
@@ -565,6 +571,33 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
         model.diagnostics.extend(more);
     }
     model
+}
+
+/// The dimension and kind each overridden cell (`--set`, `@override`) has
+/// under the sheet's own formula: the sheet compiled with its formulas put
+/// back. So the check of an override applies whatever the formula was —
+/// a search, or one naming cells the override ranks after it.
+fn original_quantities(sheet: &Sheet, max_cells: usize) -> std::collections::HashMap<String, Quantity> {
+    let mut out = std::collections::HashMap::new();
+    if sheet.overrides.is_empty() {
+        return out;
+    }
+    let mut orig = sheet.clone();
+    orig.overrides.clear();
+    for st in &mut orig.stmts {
+        if let StmtKind::Def(d) = &mut st.kind {
+            if let Some(ov) = sheet.overrides.iter().find(|o| o.name == d.name.name) {
+                d.expr = ov.original.clone();
+            }
+        }
+    }
+    let m = compile_limited(&orig, max_cells);
+    for ov in &sheet.overrides {
+        if let Some(q) = m.id(&ov.name).and_then(|id| m.cells[id as usize].quantity()) {
+            out.insert(ov.name.clone(), q);
+        }
+    }
+    out
 }
 
 pub(in crate::engine) fn new_cell(

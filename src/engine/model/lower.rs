@@ -107,8 +107,19 @@ impl Lowerer<'_> {
     /// A `--set` must give the cell a value of the dimension and kind of the
     /// formula it replaces; a mismatch is reported at the `--set`, not at
     /// the later lines it would upset.
-    pub(super) fn check_override(&self, e: &Expr, ov: &crate::sheet::Override) -> R<()> {
-        let (Some(want), Some(got)) = (self.quantity_of(&ov.original), self.quantity_of(e)) else {
+    /// `want` is the quantity of the sheet's own formula (the sheet
+    /// compiled without overrides), `got` that of the override as lowered;
+    /// each is found here when not given.
+    pub(super) fn check_override(
+        &self,
+        e: &Expr,
+        ov: &crate::sheet::Override,
+        want: Option<Quantity>,
+        got: Option<Quantity>,
+    ) -> R<()> {
+        let want = want.or_else(|| self.quantity_of(&ov.original));
+        let got = got.or_else(|| self.quantity_of(e));
+        let (Some(want), Some(got)) = (want, got) else {
             return Ok(());
         };
         if crate::units::kind::fits_input(want, got) {

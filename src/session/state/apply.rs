@@ -212,12 +212,12 @@ impl Session {
 
     /// The error for an edit that gives an input other cells use a value of
     /// another dimension or kind (`Vs = 480` for an input in volts), at the
-    /// edit, and whether it is refused outright: a plain number for an
-    /// input with a unit (a forgotten unit), or another kind of the same
-    /// dimension (kW for kvar). A value with a unit of another dimension
-    /// (`g = 2 A` for a plain `g`) is a deliberate change, refused (with
-    /// this error, at the edit) only when it would bring errors in the
-    /// cells that use it.
+    /// edit, and whether it is refused outright (always): a plain number
+    /// for an input with a unit (a forgotten unit), another kind of the
+    /// same dimension (kW for kvar), or a unit of another dimension
+    /// (`g = 2 A` for a plain `g`), even when the cells that use it would
+    /// not break — they were written for the input's dimension. An input
+    /// nothing uses yet takes any value.
     fn input_clash(&mut self, edit: &Edit) -> Option<(Diagnostic, bool)> {
         let Edit::Replace(idx, line) = edit else { return None };
         let Some(StmtKind::Def(d)) = line.stmt.as_ref().map(|s| &s.kind) else {
@@ -249,7 +249,9 @@ impl Session {
         } else {
             ErrorCode::DimensionMismatch
         };
-        let outright = want.dim == got.dim || (got.is_plain_number() && !want.is_plain_number());
+        // Refused outright, whether or not the cells that use it would
+        // break: they were written for the input's dimension and kind.
+        let outright = true;
         Some((
             Diagnostic::error(code, e.span, message)
                 .with_label(format!("`{}` is used by {}", d.name.name, names.join(", ")))
