@@ -3,10 +3,51 @@
 
 use super::*;
 use crate::diag::{Diagnostic, ErrorCode};
-use crate::engine::ops::Op;
+use crate::engine::ops::{Instr, Op};
 use crate::engine::program::{Emitter, Operand};
 use crate::units::kind::{kind_of_product, kind_of_quotient, kind_of_sum, KindClash};
 use crate::units::{Dim, Kind, Quantity};
+use num_complex::Complex64 as C64;
+
+/// Slot `s` holds a real number whatever the inputs' present values
+/// allow: a real constant or input value, or the result of operations that
+/// keep reals real (the rules of `batch::real_slots`), found by reading
+/// back the code emitted so far. Deep chains count as not real.
+fn real_slot(em: &Emitter, s: u32) -> bool {
+    fn real(code: &[Instr], args: &[u32], init: &[C64], s: u32, upto: usize, depth: u32) -> bool {
+        if depth > 48 {
+            return false;
+        }
+        let written = |i: &Instr| {
+            if i.op.uses_arg_table() {
+                let width = args.get(i.a as usize).copied().unwrap_or(1);
+                s >= i.dst && s < i.dst + width
+            } else {
+                i.dst == s
+            }
+        };
+        let Some(k) = code[..upto].iter().rposition(written) else {
+            return init.get(s as usize).is_some_and(|z| z.im == 0.0);
+        };
+        let ins = code[k];
+        let a = || real(code, args, init, ins.a, k, depth + 1);
+        let b = || real(code, args, init, ins.b, k, depth + 1);
+        match ins.op {
+            Op::Re | Op::Im | Op::Abs | Op::Arg | Op::Atan2 | Op::Search(_) => true,
+            Op::Lt | Op::Le | Op::Gt | Op::Ge => true,
+            Op::Copy | Op::Neg | Op::Conj | Op::Recip | Op::PowI | Op::Exp | Op::Sin | Op::Cos | Op::Tan | Op::Atan => {
+                a()
+            }
+            Op::Add | Op::Sub | Op::Mul | Op::Div | Op::Par | Op::Min | Op::Max => a() && b(),
+            Op::Select => {
+                real(code, args, init, ins.b, k, depth + 1) && real(code, args, init, ins.b + 1, k, depth + 1)
+            }
+            Op::Sqrt | Op::Ln | Op::Log10 | Op::Asin | Op::Acos | Op::Pow | Op::Polar | Op::Network(_) => false,
+            Op::Call(fid) => crate::funcs::library()[fid as usize].real_result,
+        }
+    }
+    real(em.code, em.call_args, &em.slots.init, s, em.code.len(), 0)
+}
 
 impl Lowerer<'_> {
     pub(super) fn binary(&self, em: &mut Emitter, whole: &Expr, op: BinOp, a: &Expr, b: &Expr) -> R<Val> {
@@ -58,6 +99,24 @@ impl Lowerer<'_> {
                 // rad/s, and j·Q is a complex power.
                 let ca = x.konst().filter(|_| qa.dim.is_none());
                 let cb = y.konst().filter(|_| qb.dim.is_none());
+                // A plain factor that is not a constant decides the kind of
+                // a real or reactive power by whether it is real by
+                // construction (a real input, abs(…), a power factor): one
+                // that may have an imaginary part (an input holding 1 + j1,
+                // sqrt(…) of a cell) makes a complex power, as j·Q does.
+                // Stood in for by 1 + j1 when it may be complex.
+                let stand_in = |o: Operand, q: Quantity, other: Quantity, c: Option<C64>| {
+                    let scaler = matches!(q.kind, Kind::Plain | Kind::PerUnit | Kind::Percent);
+                    let power = matches!(other.kind, Kind::RealPower | Kind::ReactivePower);
+                    match (c, o) {
+                        (None, Operand::Slot(s)) if q.dim.is_none() && scaler && power && !real_slot(em, s) => {
+                            Some(C64::new(1.0, 1.0))
+                        }
+                        _ => c,
+                    }
+                };
+                let ca = stand_in(x, qa, qb, ca);
+                let cb = stand_in(y, qb, qa, cb);
                 let k = if op == BinOp::Mul {
                     kind_of_product(qa.kind, qb.kind, dim, ca, cb)
                 } else {
