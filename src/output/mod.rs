@@ -120,6 +120,18 @@ pub fn cell_rows(engine: &Engine, style: Style) -> Vec<CellRow> {
     rows
 }
 
+/// The unit the numbers of a JSON or CSV row are written in, and the
+/// factor from the stored value: coherent SI units, except a percentage,
+/// written in % as shown (`12 %` is 12 with unit `%`, not 0.12 with no
+/// unit), as batch and sweep columns write it.
+fn number_unit(q: Quantity) -> (String, f64) {
+    if q.kind == crate::units::Kind::Percent {
+        ("%".to_string(), 100.0)
+    } else {
+        (base_symbol(q), 1.0)
+    }
+}
+
 #[allow(clippy::too_many_arguments)]
 fn row(
     m: &Model,
@@ -133,12 +145,13 @@ fn row(
 ) -> CellRow {
     let c = &m.cells[id as usize];
     let f = format_value(z, q, display, style);
+    let (unit, k) = number_unit(q);
     CellRow {
         name,
         formula: c.formula.clone(),
-        unit: base_symbol(q),
-        re: z.re,
-        im: z.im,
+        unit,
+        re: z.re * k,
+        im: z.im * k,
         display: f.rect,
         polar: f.polar,
         input: c.input,
@@ -210,22 +223,23 @@ pub fn check_rows(engine: &Engine, style: Style) -> Vec<CheckRow> {
         let polar = |z: C64| format_value(z, q, c.display.as_ref(), style).polar;
         let (error_display, tolerance_display) =
             crate::units::format::check_gap(q, c.display.as_ref(), r.diff, r.tol, style);
+        let (unit, k) = number_unit(q);
         rows.push(CheckRow {
             expr: c.formula.clone(),
             file: m.sources.get(c.file).name.clone(),
             line: c.line,
             passed: r.passed,
             lhs: Complex {
-                re: r.lhs.re,
-                im: r.lhs.im,
+                re: r.lhs.re * k,
+                im: r.lhs.im * k,
             },
             rhs: Complex {
-                re: r.rhs.re,
-                im: r.rhs.im,
+                re: r.rhs.re * k,
+                im: r.rhs.im * k,
             },
-            error: r.diff,
-            tolerance: r.tol,
-            unit: base_symbol(q),
+            error: r.diff * k,
+            tolerance: r.tol * k,
+            unit,
             error_display,
             tolerance_display,
             lhs_display: show(r.lhs),

@@ -297,7 +297,10 @@ struct JsonSeries<'a> {
     name: &'a str,
     unit: String,
     re: Vec<Option<f64>>,
-    im: Vec<Option<f64>>,
+    /// Left out for a value real by construction (a power factor, a part
+    /// of a power): one number a point, as in CSV.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    im: Option<Vec<Option<f64>>>,
 }
 
 #[derive(Serialize)]
@@ -314,7 +317,8 @@ fn opt(x: f64) -> Option<f64> {
     x.is_finite().then_some(x)
 }
 
-/// A sweep as JSON, in coherent SI units, column by column. An axis's
+/// A sweep as JSON, in coherent SI units (a percentage in %), column by
+/// column; a series real by construction has `re` only. An axis's
 /// `values` lists each distinct value once; point `p` of a two-axis grid
 /// has `axes[0].values[p / axes[1].points]` and `axes[1].values[p %
 /// axes[1].points]`.
@@ -340,11 +344,19 @@ pub fn to_json(sheet: &str, r: &SweepResult) -> String {
             .series
             .iter()
             .zip(&r.values)
-            .map(|(s, col)| JsonSeries {
-                name: &s.name,
-                unit: base_symbol(s.quantity),
-                re: col.iter().map(|z| opt(z.re)).collect(),
-                im: col.iter().map(|z| opt(z.im)).collect(),
+            .map(|(s, col)| {
+                // a percentage in %, as in CSV and `run --format json`
+                let (unit, k) = if s.quantity.kind == Kind::Percent {
+                    ("%".to_string(), 100.0)
+                } else {
+                    (base_symbol(s.quantity), 1.0)
+                };
+                JsonSeries {
+                    name: &s.name,
+                    unit,
+                    re: col.iter().map(|z| opt(z.re * k)).collect(),
+                    im: (!s.real).then(|| col.iter().map(|z| opt(z.im * k)).collect()),
+                }
             })
             .collect(),
     };

@@ -385,15 +385,55 @@ fn check_difference_and_allowance_share_a_unit_everywhere() {
 // Percent and per-unit keep their display through arithmetic, a ratio of
 // two per-unit values is a plain number, and a level in dB carries dB
 // (20·log10 10 = 20 dB, IEC 60027-3) — in the table and run's CSV and JSON.
+// A percentage's number in JSON and CSV is in %, under the unit `%`.
 #[test]
 fn percent_per_unit_and_decibels_are_shown_as_such() {
     let src = "pc = 12 % + 3 %\na = 1.05 pu\nb = a / 0.95 pu\nc = a * 2\ng = db_v(10)\n";
     let rs = rows(src);
     let get = |n: &str| rs.iter().find(|r| r.name == n).unwrap().clone();
     assert_eq!(get("pc").display, "15 %");
-    assert!((get("pc").re - 0.15).abs() < 1e-15);
+    // JSON and CSV write a percentage in %, with the unit `%`, as shown
+    // (12 % + 3 % = 15 %), not the stored fraction 0.15 with no unit
+    assert!((get("pc").re - 15.0).abs() < 1e-12, "{}", get("pc").re);
+    assert_eq!(get("pc").unit, "%");
     assert_eq!(get("b").display, "1.105");
     assert_eq!(get("c").display, "2.1 pu");
     assert_eq!(get("g").display, "20 dB");
     assert_eq!(get("g").polar, "20 dB");
+}
+
+// A sweep's JSON writes one number a point for a value real by
+// construction (a power factor: cos φ is real, IEEE Std 1459), as its CSV
+// does, and a percentage in % under the unit `%`.
+#[test]
+fn sweep_json_writes_real_values_once_and_percent_in_percent() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("s.ohm");
+    std::fs::write(
+        &sheet,
+        "P = 100 kW\nQ = 50 kvar\nS = P + j*Q\nk = pf(S)\nl = 2 % * (P / 100 kW)\n",
+    )
+    .unwrap();
+    let out = ohmsheet()
+        .args([
+            "sweep",
+            sheet.to_str().unwrap(),
+            "--vary",
+            "P=50 kW..100 kW",
+            "--points",
+            "3",
+        ])
+        .args(["--show", "k,S,l", "--json", "-"])
+        .output()
+        .unwrap();
+    let doc: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let series = doc["series"].as_array().unwrap();
+    let get = |n: &str| series.iter().find(|s| s["name"] == n).unwrap();
+    assert!(get("k").get("im").is_none(), "{}", get("k"));
+    assert!(get("S").get("im").is_some(), "a complex power keeps both parts");
+    // pf at P = 100 kW, Q = 50 kvar: 100/√(100² + 50²) = 0.894427…
+    let last = get("k")["re"][2].as_f64().unwrap();
+    assert!((last - 100.0 / (100f64.powi(2) + 50f64.powi(2)).sqrt()).abs() < 1e-12);
+    assert_eq!(get("l")["unit"], "%");
+    assert!((get("l")["re"][2].as_f64().unwrap() - 2.0).abs() < 1e-12);
 }
