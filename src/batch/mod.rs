@@ -34,7 +34,7 @@ use crate::engine::program::Program;
 use crate::engine::{eval, CellId, Model, Role};
 use crate::funcs::Shape;
 use crate::units::format::base_symbol;
-use crate::units::{parse_unit_expr, Kind, Quantity, Unit, UnitError};
+use crate::units::{parse_unit_expr, Dim, Kind, Quantity, Unit, UnitError};
 
 /// How a complex value is written: two columns, or four for both.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -477,13 +477,14 @@ impl Plan {
             });
         }
 
-        // A case can make an input complex, except a real or reactive
-        // power: W and var are real numbers (a value with an imaginary
-        // part is refused as it is read, and one that slips past fails
-        // its row: "an imaginary part where none was expected").
+        // A case can make an input complex, except one real by nature
+        // (`real_by_nature`: W, var, a length, a frequency, …): a value
+        // with an imaginary part is refused as it is read, and one that
+        // slips past fails its row: "an imaginary part where none was
+        // expected". Values built from real inputs only take one column.
         let set_slots: Vec<u32> = columns
             .iter()
-            .filter(|c| !matches!(c.want.kind, Kind::RealPower | Kind::ReactivePower))
+            .filter(|c| !real_by_nature(c.want))
             .map(|c| c.slot)
             .collect();
         let real = real_slots(&m.program, &set_slots);
@@ -660,6 +661,27 @@ impl Plan {
     fn n_out_fields(&self) -> usize {
         self.shown.iter().map(|s| if s.real { 1 } else { 2 }).sum()
     }
+}
+
+/// An input that is a real number by its nature, so a cases column
+/// setting it keeps what is built from it real (one output column) and a
+/// value with an imaginary part is a bad row: a real or reactive power
+/// (P = Re S, Q = Im S), a frequency, an angle, a level in dB, a length, an
+/// area, a mass, a time, an inductance or a capacitance (element values).
+/// An impedance, a voltage or a plain factor may be complex (a phasor).
+pub fn real_by_nature(q: Quantity) -> bool {
+    matches!(
+        q.kind,
+        Kind::RealPower | Kind::ReactivePower | Kind::Hertz | Kind::RadPerSec | Kind::Angle | Kind::Decibel
+    ) || [
+        Dim::LENGTH,
+        Dim::AREA,
+        Dim::MASS,
+        Dim::TIME,
+        Dim::INDUCTANCE,
+        Dim::CAPACITANCE,
+    ]
+    .contains(&q.dim)
 }
 
 /// Which slots hold a real value whatever the cases: constants with no

@@ -254,6 +254,13 @@ fn finish(col: &CaseColumn, text: &str, z: C64, q: Quantity) -> Result<C64, Stri
     if z.re.is_nan() || z.im.is_nan() {
         return Err(format!("`{text}` is not a number (NaN)"));
     }
+    if z.im != 0.0 && super::real_by_nature(col.want) {
+        return Err(format!(
+            "`{text}` has an imaginary part, but `{}` is {}, a real number",
+            col.name,
+            col.want.describe()
+        ));
+    }
     Ok(z)
 }
 

@@ -437,3 +437,34 @@ fn sweep_json_writes_real_values_once_and_percent_in_percent() {
     assert_eq!(get("l")["unit"], "%");
     assert!((get("l")["re"][2].as_f64().unwrap() - 2.0).abs() < 1e-12);
 }
+
+// A batch input real by its nature (a length, a frequency) keeps what is
+// built from it real: one column, as docs/batch.md promises; a case value
+// with an imaginary part for it is a bad row. R = 0.2 Ω/km · 3 km = 0.6 Ω
+// and ω = 2π · 60 Hz (common practice).
+#[test]
+fn batch_takes_a_length_and_a_frequency_as_real_inputs() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("s.ohm");
+    std::fs::write(
+        &sheet,
+        "len = 2 km\nz = 0.2 Ω/km\nR = z * len\nf = 50 Hz\nw = 2 * pi * f\n",
+    )
+    .unwrap();
+    let cases = dir.path().join("c.csv");
+    std::fs::write(&cases, "len [km],f [Hz]\n3,60\n(1+j1),50\n").unwrap();
+    let out = dir.path().join("o.csv");
+    ohmsheet()
+        .args(["batch", sheet.to_str().unwrap(), "--cases", cases.to_str().unwrap()])
+        .args(["--out", out.to_str().unwrap(), "--quiet"])
+        .assert()
+        .code(1);
+    let text = std::fs::read_to_string(&out).unwrap();
+    let mut lines = text.lines();
+    assert_eq!(lines.next().unwrap(), "len [km],f [Hz],R [Ω],w [rad/s]");
+    let row: Vec<&str> = lines.next().unwrap().split(',').collect();
+    assert!((row[2].parse::<f64>().unwrap() - 0.6).abs() < 1e-15);
+    assert!((row[3].parse::<f64>().unwrap() - 2.0 * std::f64::consts::PI * 60.0).abs() < 1e-12);
+    let errs = std::fs::read_to_string(dir.path().join("o.errors.csv")).unwrap();
+    assert!(errs.contains("`len` is a length (m), a real number"), "{errs}");
+}
