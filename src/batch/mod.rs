@@ -505,7 +505,11 @@ impl Plan {
                 None if q.kind == Kind::Percent => (0.01, "%".to_string()),
                 None => (1.0, base_symbol(q)),
             };
-            let is_real = real[slot as usize];
+            // W and var are real numbers whatever the cases (P = Re S, Q = Im S):
+            // one column, and a case that gives one an imaginary part (a
+            // factor set complex) fails that cell instead of writing a
+            // complex "var" value.
+            let is_real = real[slot as usize] || matches!(q.kind, Kind::RealPower | Kind::ReactivePower);
             let forms = match form {
                 ComplexForm::Both if !is_real => vec![ComplexForm::Rect, ComplexForm::Polar],
                 ComplexForm::Both => vec![ComplexForm::Rect],

@@ -405,7 +405,10 @@ impl Plan {
             if !z.re.is_nan() && !z.im.is_nan() && !infinite {
                 failed.push((
                     s.label.clone(),
-                    format!("`{}` has an imaginary part where none was expected", s.label),
+                    format!(
+                        "`{}` has an imaginary part where none was expected: it is real by construction (a real or reactive power, a power factor, …), and this case made a value it is built from complex; if that is meant, make the sheet's own value complex too, so the sheet reads it as complex (a product of var and a complex factor is VA)",
+                        s.label
+                    ),
                 ));
                 continue;
             }

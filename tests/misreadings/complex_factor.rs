@@ -62,3 +62,46 @@ fn run_shows_va_and_a_set_decides_again() {
     let text = String::from_utf8(out.stdout).unwrap();
     assert!(text.contains("200 var"), "{text}");
 }
+
+/// A session edit that makes the factor complex decides the kinds again:
+/// `Q2` becomes 100 + j100 VA, never "100 + j100 var".
+#[test]
+fn a_session_edit_making_the_factor_complex_gives_va() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("k.ohm");
+    std::fs::write(&p, "k = 2\nQ = 100 var\nQ2 = k * Q\n").unwrap();
+    let (mut s, _) = ohmsheet::session::state::Session::open(Some(&p), Some(dir.path().join("data")), false).unwrap();
+    let r = s.handle("k = 1 + j1");
+    assert!(!r.refused, "{}", r.text);
+    assert!(r.text.contains("100 + j100 VA"), "{}", r.text);
+    assert_eq!(kind(&s.engine, "Q2"), Kind::ApparentPower);
+    assert_eq!(value(&s.engine, "Q2"), C64::new(100.0, 100.0));
+}
+
+/// In a batch the kinds are those of the sheet: a case that makes the
+/// factor of a var value complex fails that cell with the reason, and the
+/// var column stays one real number (2 · 100 var = 200 var).
+#[test]
+fn a_batch_case_making_the_factor_complex_fails_the_var_cell() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("k.ohm");
+    std::fs::write(&p, "k = 2\nQ = 100 var\nQ2 = k * Q\n").unwrap();
+    let c = dir.path().join("c.csv");
+    std::fs::write(&c, "k\n2\n(1+j1)\n").unwrap();
+    let out = dir.path().join("o.csv");
+    ohmsheet()
+        .args(["batch", p.to_str().unwrap(), "--cases", c.to_str().unwrap()])
+        .args(["--out", out.to_str().unwrap(), "--quiet"])
+        .assert()
+        .code(1);
+    let text = std::fs::read_to_string(&out).unwrap();
+    let lines: Vec<&str> = text.lines().collect();
+    assert_eq!(lines[0], "k,Q2 [var]");
+    assert_eq!(lines[1], "2,200");
+    assert_eq!(lines[2], "(1+j1),");
+    let errs = std::fs::read_to_string(dir.path().join("o.errors.csv")).unwrap();
+    assert!(
+        errs.contains("`Q2` has an imaginary part where none was expected"),
+        "{errs}"
+    );
+}

@@ -134,7 +134,19 @@ impl Session {
                 {
                     // An element line is compiled with its whole network.
                     if d.name.name == old && element_form(&d.expr).is_none() {
-                        if let Some(id) = self.engine.model.id(old) {
+                        // A value that gains an imaginary part can change
+                        // the kinds of the cells built from it (`k * Q` is
+                        // var for a real `k`, VA for `1 + j1`): those are
+                        // decided by compiling the whole document.
+                        let gains_imaginary = |this: &mut Self, id| {
+                            let was_real = this.engine.values(id).iter().all(|z| z.im == 0.0);
+                            was_real
+                                && this
+                                    .engine
+                                    .evaluate(&d.expr)
+                                    .is_ok_and(|(_, v)| v.iter().any(|z| z.im != 0.0))
+                        };
+                        if let Some(id) = self.engine.model.id(old).filter(|&id| !gains_imaginary(self, id)) {
                             let stmt = line.stmt.as_ref().expect("checked");
                             match self.engine.redefine(id, stmt, d) {
                                 Ok(changes) => {
