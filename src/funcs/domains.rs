@@ -393,6 +393,8 @@ pub const RANGES: &[(&str, &[(usize, Range)])] = &[
     ),
     ("return_loss", &[(0, UnitDisc)]),
     ("sc_peak", &[(2, Positive)]),
+    ("refl", &[(1, RePositive)]),
+    ("z_refer", &[(1, NonZero), (2, NonZero)]),
 ];
 
 /// `f` with its ranges from `RANGES`.

@@ -277,6 +277,9 @@ fn dom_z_refer(a: &[C64], _: &Ctx) -> Option<ArgError> {
         if a[i].re == 0.0 && a[i].im == 0.0 {
             return Some(ArgError::at(i, format!("`{n}` is zero: no ratio")));
         }
+        if a[i].re.is_infinite() || a[i].im.is_infinite() {
+            return Some(ArgError::at(i, format!("`{n}` is infinite: no ratio")));
+        }
     }
     None
 }

@@ -165,6 +165,12 @@ fn d_refl(a: &[C64], _: &Ctx) -> Option<ArgError> {
             "the reference impedance Z0 must be finite and non-zero",
         ));
     }
+    if !(a[1].re > 0.0) {
+        return Some(ArgError::at(
+            1,
+            "the reference impedance Z0 has a positive real part (a line's Zc, a port's resistance); with Re Z0 ≤ 0 |Γ| could exceed 1 for a passive load",
+        ));
+    }
     if !is_inf(a[0]) && a[0] + a[1] == C64::new(0.0, 0.0) {
         return Some(ArgError::whole(
             "ZL = −Z0: the reflection coefficient has a pole there (a load of negative resistance)",

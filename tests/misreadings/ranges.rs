@@ -333,6 +333,27 @@ const RANGE_CASES: &[(&str, usize, &str, &str, &str)] = &[
     ),
     ("return_loss", 0, "return_loss(1.5)", "|Γ| > 1", "1.5"),
     (
+        "refl",
+        1,
+        "refl(10 Ω, -50 Ω)",
+        "the reference impedance Z0 has a positive real part",
+        "-50 Ω",
+    ),
+    (
+        "z_refer",
+        1,
+        "z_refer(1 Ω, 0 V, 13.8 kV)",
+        "`V_from` is zero: no ratio",
+        "0 V",
+    ),
+    (
+        "z_refer",
+        2,
+        "z_refer(1 Ω, 480 V, 0 V)",
+        "`V_to` is zero: no ratio",
+        "0 V",
+    ),
+    (
         "sc_peak",
         2,
         "sc_peak(480 V, (0.002 + j0.01) Ω, -1.1)",
