@@ -114,6 +114,11 @@ pub fn problems(doc: &Document, display: Display) -> Vec<Problem> {
         let d = crate::sweep::search_failure(engine, id).unwrap_or_else(|| engine.nan_diagnostic(id));
         push(&d, &mut out);
     }
+    // An infinite value, where it was born: an error, or a warning for an
+    // open or short element (as `run` reports it).
+    for (id, error) in engine.inf_origins() {
+        push(&engine.inf_diagnostic(id, error), &mut out);
+    }
     // Failed checks: a warning with the computed and stated values.
     for (id, c) in m.checks() {
         if c.error.is_some() {
