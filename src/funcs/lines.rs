@@ -165,7 +165,7 @@ fn d_refl(a: &[C64], _: &Ctx) -> Option<ArgError> {
             "the reference impedance Z0 must be finite and non-zero",
         ));
     }
-    if !(a[1].re > 0.0) {
+    if a[1].re.is_nan() || a[1].re <= 0.0 {
         return Some(ArgError::at(
             1,
             "the reference impedance Z0 has a positive real part (a line's Zc, a port's resistance); with Re Z0 ≤ 0 |Γ| could exceed 1 for a passive load",
