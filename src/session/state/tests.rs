@@ -127,7 +127,7 @@ fn undo_walks_back_through_every_kind_of_change() {
         "R2 = 30 Ω",             // in place
         "g = 2",                 // a new cell, in place
         "h = g * Vs",            // another
-        "g = 2 A",               // h becomes a power: whole-sheet compile
+        "h = g * Vs * 1 A",      // h becomes a power: whole-sheet compile
         "@title \"Pump house\"", // a directive
         "check I ~= 12 A +- 1%", // a check
         "/remove h",             // a removal
