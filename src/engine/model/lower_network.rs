@@ -119,6 +119,16 @@ pub(super) fn element_decl<'a>(d: &'a Definition, cell: CellId) -> Result<ElemDe
 }
 
 /// Field names live as long as the program (they are few and reused).
+/// `Net::node` through a map of the numbers given so far.
+fn node_id(net: &mut network::Net, ids: &mut std::collections::HashMap<String, usize>, name: &str) -> usize {
+    if let Some(&i) = ids.get(name) {
+        return i;
+    }
+    net.nodes.push(name.to_string());
+    ids.insert(name.to_string(), net.nodes.len() - 1);
+    net.nodes.len() - 1
+}
+
 fn intern(s: String) -> &'static str {
     static NAMES: OnceLock<Mutex<HashSet<&'static str>>> = OnceLock::new();
     let mut set = NAMES
@@ -189,6 +199,10 @@ impl Lowerer<'_> {
 
         // Nodes and elements, in order.
         let mut net = network::Net::new();
+        // Node numbers by name (`Net::node` searches its list: fine for a
+        // few nodes, quadratic for thousands).
+        let mut ids: std::collections::HashMap<String, usize> =
+            net.nodes.iter().enumerate().map(|(i, n)| (n.clone(), i)).collect();
         let mut elem_index = std::collections::HashMap::new();
         for (k, e) in decl.elems.iter().enumerate() {
             if let Some(&first) = elem_index.get(e.name.name.as_str()) {
@@ -238,7 +252,9 @@ impl Lowerer<'_> {
             };
             let q = *q;
             let v = Operand::Slot(c.slot);
-            let node = |k: usize, net: &mut network::Net| net.node(&e.names[k].name);
+            let node = |k: usize, net: &mut network::Net, ids: &mut std::collections::HashMap<String, usize>| {
+                node_id(net, ids, &e.names[k].name)
+            };
             let mut want_pu = |is_pu: bool, span: Span| -> R<()> {
                 match pu {
                     None => {
@@ -339,15 +355,15 @@ impl Lowerer<'_> {
                 "vgain" => {
                     plain(q, e.value.span, "a voltage gain")?;
                     ElemKind::VoltageGain {
-                        c: node(2, &mut net),
-                        d: node(3, &mut net),
+                        c: node(2, &mut net, &mut ids),
+                        d: node(3, &mut net, &mut ids),
                     }
                 }
                 "transadm" => {
                     want(q, Dim::ADMITTANCE, e.value.span, "a transadmittance")?;
                     ElemKind::Transadmittance {
-                        c: node(2, &mut net),
-                        d: node(3, &mut net),
+                        c: node(2, &mut net, &mut ids),
+                        d: node(3, &mut net, &mut ids),
                     }
                 }
                 "transimp" => {
@@ -365,8 +381,8 @@ impl Lowerer<'_> {
                 "xformer" => {
                     plain(q, e.value.span, "a transformer's ratio")?;
                     ElemKind::Transformer {
-                        c: node(2, &mut net),
-                        d: node(3, &mut net),
+                        c: node(2, &mut net, &mut ids),
+                        d: node(3, &mut net, &mut ids),
                     }
                 }
                 "mutual" => {
@@ -408,7 +424,10 @@ impl Lowerer<'_> {
             let (a, b) = if e.form == "mutual" {
                 (0, 0)
             } else {
-                (net.node(&e.names[0].name), net.node(&e.names[1].name))
+                (
+                    node_id(&mut net, &mut ids, &e.names[0].name),
+                    node_id(&mut net, &mut ids, &e.names[1].name),
+                )
             };
             net.add(&e.name.name, kind, a, b);
             idx += 1;
