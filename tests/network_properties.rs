@@ -85,6 +85,8 @@ struct RandomNet {
     /// `branches`' admittances via `source_y`).
     sources: Vec<String>,
     source_y: Vec<(usize, usize, C64)>,
+    /// Each source's magnitude (|E| in V or |J| in A), as written.
+    source_mag: Vec<f64>,
 }
 
 fn node(k: usize) -> String {
@@ -148,6 +150,7 @@ fn random_net(seed: u64) -> RandomNet {
     }
     let mut sources = Vec::new();
     let mut source_y = Vec::new();
+    let mut source_mag = Vec::new();
     for s in 0..1 + rng.below(3) {
         let a = 1 + rng.below(nodes);
         let b = if rng.below(2) == 0 { 0 } else { rng.below(nodes + 1) };
@@ -171,10 +174,12 @@ fn random_net(seed: u64) -> RandomNet {
             ));
         }
         source_y.push((a, b, y));
+        source_mag.push(mag);
     }
     if sources.is_empty() {
         sources.push("E9 = emf(n1, ground, 1 V, 1 Ω)".to_string());
         source_y.push((1, 0, C64::new(1.0, 0.0)));
+        source_mag.push(1.0);
     }
     RandomNet {
         f,
@@ -182,6 +187,7 @@ fn random_net(seed: u64) -> RandomNet {
         branches,
         sources,
         source_y,
+        source_mag,
     }
 }
 
@@ -288,8 +294,18 @@ proptest! {
         for e in &names {
             src += &format!("s_{e} = net_s(n, {e})\n");
         }
+        for (l, &(a, b, _)) in net.sources.iter().zip(&net.source_y) {
+            let e = l.split(' ').next().unwrap();
+            src += &format!("i_{e} = net_i(n, {e})\nv_{e} = net_v(n, {}, {})\n", node(a), node(b));
+        }
         src += "bal = net_balance(n)\n";
         let e = engine(&src);
+        // The scale of the rounding: each element's power, and for a source
+        // the gross product behind its terminals — |E|·|I| for an emf, |V|·|J|
+        // for an injection — since its delivered power is what is left after
+        // its own impedance or shunt takes its share (a 20 kΩ emf feeding
+        // 5 Ω delivers a thousandth of |E|·|I|), and its rounding is of the
+        // gross size.
         let (mut sum, mut mag) = (C64::new(0.0, 0.0), 0.0);
         for name in &names {
             let s = value(&e, &format!("s_{name}"));
@@ -298,9 +314,17 @@ proptest! {
             sum += s;
             mag += s.norm();
         }
+        for (l, &m) in net.sources.iter().zip(&net.source_mag) {
+            let name = l.split(' ').next().unwrap();
+            mag += if name.starts_with('E') {
+                m * value(&e, &format!("i_{name}")).norm()
+            } else {
+                m * value(&e, &format!("v_{name}")).norm()
+            };
+        }
         prop_assert!(mag > 0.0);
         let t = tol(&net, kappa);
-        prop_assert!(sum.norm() <= t * mag, "Σ S = {sum} against Σ|S| = {mag} (κ₁ = {kappa:e})\n{src}");
+        prop_assert!(sum.norm() <= t * mag, "Σ S = {sum} against a scale of {mag} (κ₁ = {kappa:e})\n{src}");
         let d = value(&e, "bal.delivered") - value(&e, "bal.absorbed");
         prop_assert!(d.norm() <= t * mag, "balance off by {d}\n{src}");
     }
