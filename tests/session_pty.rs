@@ -561,3 +561,37 @@ fn a_double_star_and_a_line_cut_short_read_well() {
     t.eof();
     assert_eq!(std::fs::read_to_string(&sheet).unwrap(), DIVIDER);
 }
+
+/// Through the terminal: an edit giving an input a value of another
+/// dimension is refused at the edit though nothing that uses it would
+/// break (issue 13), and an edit that shorts the source (R1 = R2 = 0 Ω,
+/// I = V/0 by Ohm's law) says why the current is infinite.
+#[test]
+fn a_wrong_dimension_is_refused_and_a_short_is_explained() {
+    let env = Env::new();
+    let sheet = env.sheet(DIVIDER);
+    let mut t = env.spawn(Some(&sheet));
+    t.expect("5 cells, 0 checks");
+    t.prompt();
+
+    t.line("R2 = 30 A");
+    t.expect("`R2` is an impedance (Ω); `30 A` is a current (A)");
+    t.prompt();
+
+    t.line("R1 = 0 Ω");
+    t.expect("(was 10 Ω)");
+    t.prompt();
+    t.line("R2 = 0 Ω");
+    t.expect("`I` is infinite (∞ A): `Vs / Rt` divides by zero (`Rt` = 0 Ω)");
+    t.prompt();
+
+    t.line("/back");
+    t.expect("back to: R2 = 20 Ω");
+    t.prompt();
+    t.line("/back");
+    t.expect("back to: R1 = 10 Ω");
+    t.prompt();
+    t.line("/done");
+    t.eof();
+    assert_eq!(std::fs::read_to_string(&sheet).unwrap(), DIVIDER);
+}
