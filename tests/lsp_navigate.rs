@@ -161,3 +161,37 @@ fn an_included_sheet_open_in_the_editor_is_read_from_its_unsaved_buffer() {
     );
     assert_eq!(c.shutdown(), Some(0));
 }
+
+#[test]
+fn a_library_sheet_saved_by_another_program_is_read_again_when_the_client_says_so() {
+    let dir = tempfile::tempdir().unwrap();
+    let lib_path = dir.path().join("lib/cables.ohm");
+    let lib = write(dir.path(), "lib/cables.ohm", "Rc = 0.2 Ω\n");
+    let main_text = "@include \"lib/cables.ohm\"\nZ = Rc + j*0.1 Ω\n";
+    let u = write(dir.path(), "main.ohm", main_text);
+    let caps = json!({"workspace": {"didChangeWatchedFiles": {"dynamicRegistration": true}}});
+    let mut c = Client::start_caps(dir.path(), &[], caps, json!({}));
+    // The server asks to be told of changed sheets.
+    let reg = c.wait_for_request("client/registerCapability");
+    assert_eq!(
+        reg["registrations"][0]["method"], "workspace/didChangeWatchedFiles",
+        "{reg}"
+    );
+    assert_eq!(
+        reg["registrations"][0]["registerOptions"]["watchers"][0]["globPattern"],
+        "**/*.ohm"
+    );
+    c.open(&u, main_text);
+    c.diagnostics(&u, 1);
+    let z = |c: &mut Client| c.inlay_hints(&u, 1, 1).first().map(hint_label).unwrap_or_default();
+    assert_eq!(z(&mut c), "⇒ 200 + j100 mΩ");
+    std::fs::write(&lib_path, "Rc = 0.3 Ω\n").unwrap();
+    // FileChangeType.Changed = 2 (LSP 3.17).
+    c.notify(
+        "workspace/didChangeWatchedFiles",
+        json!({"changes": [{"uri": lib, "type": 2}]}),
+    );
+    c.diagnostics(&u, 1);
+    assert_eq!(z(&mut c), "⇒ 300 + j100 mΩ");
+    assert_eq!(c.shutdown(), Some(0));
+}

@@ -135,6 +135,38 @@ pub fn serve(connection: &Connection, allow_dirs: Vec<PathBuf>) -> i32 {
         eprintln!("ohmsheet lsp: {e}");
         return 1;
     }
+    // Sheets saved by another program (a library sheet not open in the
+    // editor): the client tells, when it can watch files for the server.
+    let watch = params
+        .capabilities
+        .workspace
+        .as_ref()
+        .and_then(|w| w.did_change_watched_files.as_ref())
+        .and_then(|d| d.dynamic_registration)
+        .unwrap_or(false);
+    if watch {
+        let register = lsp_types::RegistrationParams {
+            registrations: vec![lsp_types::Registration {
+                id: "ohmsheet-sheets".into(),
+                method: notification::DidChangeWatchedFiles::METHOD.into(),
+                register_options: serde_json::to_value(lsp_types::DidChangeWatchedFilesRegistrationOptions {
+                    watchers: vec![lsp_types::FileSystemWatcher {
+                        glob_pattern: lsp_types::GlobPattern::String("**/*.ohm".into()),
+                        kind: None,
+                    }],
+                })
+                .ok(),
+            }],
+        };
+        let req = Request::new(
+            RequestId::from("ohmsheet-watch".to_string()),
+            request::RegisterCapability::METHOD.to_string(),
+            register,
+        );
+        if connection.sender.send(req.into()).is_err() {
+            return 1;
+        }
+    }
     server.main_loop(connection)
 }
 
@@ -275,6 +307,22 @@ impl Server {
                     diagnostics::publish(self, &k);
                 }
                 self.refresh_hints();
+            }
+            notification::DidChangeWatchedFiles::METHOD => {
+                let Ok(p) = serde_json::from_value::<lsp_types::DidChangeWatchedFilesParams>(n.params) else {
+                    return;
+                };
+                for ch in p.changes {
+                    let Some(path) = convert::uri_to_path(&ch.uri) else {
+                        continue;
+                    };
+                    let canonical = canonical_of(&path);
+                    // An open buffer is what the others read, not the disk.
+                    if self.docs.values().any(|o| o.canonical.as_ref() == Some(&canonical)) {
+                        continue;
+                    }
+                    self.others_reading("", Some(&canonical));
+                }
             }
             _ => {}
         }

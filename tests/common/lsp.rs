@@ -60,6 +60,15 @@ impl Client {
     }
 
     pub fn start_with(dir: &Path, args: &[&str], init_options: Value) -> Client {
+        let caps = json!({
+            "workspace": {"inlayHint": {"refreshSupport": false}},
+            "textDocument": {"inlayHint": {}, "hover": {"contentFormat": ["markdown", "plaintext"]}}
+        });
+        Client::start_caps(dir, args, caps, init_options)
+    }
+
+    /// Start with these client capabilities.
+    pub fn start_caps(dir: &Path, args: &[&str], caps: Value, init_options: Value) -> Client {
         let bin = assert_cmd::cargo::cargo_bin("ohmsheet");
         let mut child = Command::new(bin)
             .arg("lsp")
@@ -89,10 +98,6 @@ impl Client {
             seen: Vec::new(),
             init: Value::Null,
         };
-        let caps = json!({
-            "workspace": {"inlayHint": {"refreshSupport": false}},
-            "textDocument": {"inlayHint": {}, "hover": {"contentFormat": ["markdown", "plaintext"]}}
-        });
         let r = c.request(
             "initialize",
             json!({"processId": null, "rootUri": uri(dir), "capabilities": caps, "initializationOptions": init_options}),
@@ -182,6 +187,22 @@ impl Client {
         loop {
             let m = self.next(deadline);
             if m["method"] == method && pred(&m["params"]) {
+                return m["params"].clone();
+            }
+            self.seen.push(m);
+        }
+    }
+
+    /// The params of the next request the server sends with `method`.
+    pub fn wait_for_request(&mut self, method: &str) -> Value {
+        let deadline = Instant::now() + WAIT;
+        let is = |m: &Value| m["method"] == method && m.get("id").is_some();
+        if let Some(k) = self.seen.iter().position(is) {
+            return self.seen.remove(k)["params"].clone();
+        }
+        loop {
+            let m = self.next(deadline);
+            if is(&m) {
                 return m["params"].clone();
             }
             self.seen.push(m);
