@@ -15,8 +15,10 @@
 //!   `@include` line;
 //! - `hints.rs`: each cell's value and each check's verdict at the end of
 //!   its line;
-//! - `values.rs`: values as people read them (shared with the session).
+//! - `values.rs`: values as people read them (shared with the session);
+//! - `complete.rs`: what may be typed at a place, and the call being typed.
 
+pub mod complete;
 pub mod document;
 pub mod explain;
 pub mod hints;

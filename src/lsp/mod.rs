@@ -10,7 +10,8 @@
 //! - `diagnostics.rs`: problems published on open and on every change;
 //! - `hints.rs`: inlay hints (values and check verdicts);
 //! - `hover.rs`: hover on cells, functions, units, directives;
-//! - `navigate.rs`: go to definition, find references.
+//! - `navigate.rs`: go to definition, find references;
+//! - `complete.rs`: completion and signature help.
 //!
 //! The server is synchronous (one thread does the analysis; the protocol
 //! crate reads and writes on two more). It never writes a file, never
@@ -34,6 +35,7 @@ use serde_json::Value;
 use crate::analysis::{Display, Document};
 use crate::sheet::LoadOptions;
 
+pub mod complete;
 pub mod convert;
 pub mod diagnostics;
 pub mod hints;
@@ -86,6 +88,8 @@ pub fn capabilities() -> ServerCapabilities {
         hover_provider: Some(lsp_types::HoverProviderCapability::Simple(true)),
         definition_provider: Some(lsp_types::OneOf::Left(true)),
         references_provider: Some(lsp_types::OneOf::Left(true)),
+        completion_provider: Some(complete::completion_options()),
+        signature_help_provider: Some(complete::signature_options()),
         ..ServerCapabilities::default()
     }
 }
@@ -260,6 +264,14 @@ impl Server {
             request::References::METHOD => {
                 let p = params::<lsp_types::ReferenceParams>(req.params)?;
                 Ok(serde_json::to_value(navigate::references(self, &p)).unwrap_or(Value::Null))
+            }
+            request::Completion::METHOD => {
+                let p = params::<lsp_types::CompletionParams>(req.params)?;
+                Ok(serde_json::to_value(complete::completion(self, &p)).unwrap_or(Value::Null))
+            }
+            request::SignatureHelpRequest::METHOD => {
+                let p = params::<lsp_types::SignatureHelpParams>(req.params)?;
+                Ok(serde_json::to_value(complete::signature_help(self, &p)).unwrap_or(Value::Null))
             }
             _ => Err((
                 ErrorCode::MethodNotFound,
