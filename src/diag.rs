@@ -339,6 +339,17 @@ pub struct Diagnostic {
     /// Further places, each with its own short text.
     pub secondary: Vec<(Span, String)>,
     pub hint: Option<String>,
+    /// The hint as a repair a tool may apply as it stands (an editor's
+    /// code action): replace the text at the span with this text.
+    /// (Boxed: most diagnostics have none, and a `Diagnostic` stays small.)
+    pub fix: Option<Box<Fix>>,
+}
+
+/// A machine-applicable repair: `text` in place of the text at `span`.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Fix {
+    pub span: Span,
+    pub text: String,
 }
 
 impl Diagnostic {
@@ -351,6 +362,7 @@ impl Diagnostic {
             label: String::new(),
             secondary: Vec::new(),
             hint: None,
+            fix: None,
         }
     }
     pub fn unplaced(code: ErrorCode, message: impl Into<String>) -> Diagnostic {
@@ -362,6 +374,7 @@ impl Diagnostic {
             label: String::new(),
             secondary: Vec::new(),
             hint: None,
+            fix: None,
         }
     }
     pub fn warning(mut self) -> Diagnostic {
@@ -370,6 +383,14 @@ impl Diagnostic {
     }
     pub fn with_label(mut self, label: impl Into<String>) -> Diagnostic {
         self.label = label.into();
+        self
+    }
+    /// A repair to offer with the hint: `text` in place of `span`.
+    pub fn with_fix(mut self, span: Span, text: impl Into<String>) -> Diagnostic {
+        self.fix = Some(Box::new(Fix {
+            span,
+            text: text.into(),
+        }));
         self
     }
     pub fn with_hint(mut self, hint: impl Into<String>) -> Diagnostic {

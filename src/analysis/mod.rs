@@ -16,16 +16,24 @@
 //! - `hints.rs`: each cell's value and each check's verdict at the end of
 //!   its line;
 //! - `values.rs`: values as people read them (shared with the session);
-//! - `complete.rs`: what may be typed at a place, and the call being typed.
+//! - `complete.rs`: what may be typed at a place, and the call being typed;
+//! - `rename.rs`: renaming a cell everywhere, or why not;
+//! - `outline.rs`: sections, cells, checks and networks of a sheet;
+//! - `fixes.rs`: the repairs the diagnostics suggest, as edits;
+//! - `tokens.rs`: what each piece of the text is, for highlighting.
 
 pub mod complete;
 pub mod document;
 pub mod explain;
+pub mod fixes;
 pub mod hints;
 pub mod hover;
 pub mod navigate;
+pub mod outline;
 pub mod problems;
+pub mod rename;
 pub mod symbols;
+pub mod tokens;
 pub mod values;
 
 pub use document::{Document, Located, Place};

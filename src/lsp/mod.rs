@@ -11,7 +11,11 @@
 //! - `hints.rs`: inlay hints (values and check verdicts);
 //! - `hover.rs`: hover on cells, functions, units, directives;
 //! - `navigate.rs`: go to definition, find references;
-//! - `complete.rs`: completion and signature help.
+//! - `complete.rs`: completion and signature help;
+//! - `rename.rs`: rename (and prepare rename);
+//! - `outline.rs`: document symbols;
+//! - `actions.rs`: code actions (the diagnostics' repairs);
+//! - `tokens.rs`: semantic tokens.
 //!
 //! The server is synchronous (one thread does the analysis; the protocol
 //! crate reads and writes on two more). It never writes a file, never
@@ -35,12 +39,16 @@ use serde_json::Value;
 use crate::analysis::{Display, Document};
 use crate::sheet::LoadOptions;
 
+pub mod actions;
 pub mod complete;
 pub mod convert;
 pub mod diagnostics;
 pub mod hints;
 pub mod hover;
 pub mod navigate;
+pub mod outline;
+pub mod rename;
+pub mod tokens;
 
 /// An open document.
 pub struct Open {
@@ -90,6 +98,18 @@ pub fn capabilities() -> ServerCapabilities {
         references_provider: Some(lsp_types::OneOf::Left(true)),
         completion_provider: Some(complete::completion_options()),
         signature_help_provider: Some(complete::signature_options()),
+        rename_provider: Some(lsp_types::OneOf::Right(lsp_types::RenameOptions {
+            prepare_provider: Some(true),
+            work_done_progress_options: Default::default(),
+        })),
+        document_symbol_provider: Some(lsp_types::OneOf::Left(true)),
+        code_action_provider: Some(lsp_types::CodeActionProviderCapability::Options(
+            lsp_types::CodeActionOptions {
+                code_action_kinds: Some(vec![lsp_types::CodeActionKind::QUICKFIX]),
+                ..Default::default()
+            },
+        )),
+        semantic_tokens_provider: Some(tokens::options()),
         ..ServerCapabilities::default()
     }
 }
@@ -272,6 +292,26 @@ impl Server {
             request::SignatureHelpRequest::METHOD => {
                 let p = params::<lsp_types::SignatureHelpParams>(req.params)?;
                 Ok(serde_json::to_value(complete::signature_help(self, &p)).unwrap_or(Value::Null))
+            }
+            request::PrepareRenameRequest::METHOD => {
+                let p = params::<lsp_types::TextDocumentPositionParams>(req.params)?;
+                Ok(serde_json::to_value(rename::prepare(self, &p)?).unwrap_or(Value::Null))
+            }
+            request::Rename::METHOD => {
+                let p = params::<lsp_types::RenameParams>(req.params)?;
+                Ok(serde_json::to_value(rename::rename(self, &p)?).unwrap_or(Value::Null))
+            }
+            request::DocumentSymbolRequest::METHOD => {
+                let p = params::<lsp_types::DocumentSymbolParams>(req.params)?;
+                Ok(serde_json::to_value(outline::symbols(self, &p)).unwrap_or(Value::Null))
+            }
+            request::CodeActionRequest::METHOD => {
+                let p = params::<lsp_types::CodeActionParams>(req.params)?;
+                Ok(serde_json::to_value(actions::code_actions(self, &p)).unwrap_or(Value::Null))
+            }
+            request::SemanticTokensFullRequest::METHOD => {
+                let p = params::<lsp_types::SemanticTokensParams>(req.params)?;
+                Ok(serde_json::to_value(tokens::full(self, &p)).unwrap_or(Value::Null))
             }
             _ => Err((
                 ErrorCode::MethodNotFound,

@@ -67,11 +67,14 @@ impl Lowerer<'_> {
                     d.span = Some(b.span);
                     // `6 + j10 Ω`: the unit binds to the number before it.
                     if qa.is_plain_number() && matches!(b.kind, ExprKind::Number { unit: Some(_), .. }) {
-                        d = d.with_hint(format!(
-                            "a unit applies only to the number just before it; for the whole sum write `({}) {}`",
-                            self.sources.slice(whole.span).rsplit_once(' ').map_or("", |(l, _)| l),
-                            self.sources.slice(whole.span).rsplit_once(' ').map_or("", |(_, r)| r),
-                        ));
+                        let text = self.sources.slice(whole.span);
+                        let (sum, unit) = text.rsplit_once(' ').unwrap_or(("", ""));
+                        let fixed = format!("({sum}) {unit}");
+                        d = d
+                            .with_hint(format!(
+                                "a unit applies only to the number just before it; for the whole sum write `{fixed}`"
+                            ))
+                            .with_fix(whole.span, fixed);
                     } else {
                         d = d.with_hint("both sides of + and - must have the same dimension");
                     }

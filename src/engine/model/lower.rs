@@ -310,7 +310,7 @@ impl Lowerer<'_> {
                             )
                             .with_label(format!("fields are: {}", names.join(", ")));
                             if let Some(s) = did_you_mean(&field.name, names.iter().copied()) {
-                                d = d.with_hint(format!("did you mean `.{s}`?"));
+                                d = d.with_hint(format!("did you mean `.{s}`?")).with_fix(field.span, s);
                             }
                             Err(d)
                         }
@@ -360,7 +360,7 @@ impl Lowerer<'_> {
                 .filter(|c| c.role == Role::Def)
                 .map(|c| c.name.as_str());
             if let Some(s) = did_you_mean(&id.name, names.chain(["pi", "j"])) {
-                d = d.with_hint(format!("did you mean `{s}`?"));
+                d = d.with_hint(format!("did you mean `{s}`?")).with_fix(id.span, s);
             } else if funcs::find(&id.name).is_some() {
                 d = d.with_hint(format!("`{0}` is a function: call it as `{0}(…)`", id.name));
             } else if crate::units::lookup_unit(&id.name).is_ok() {
@@ -412,7 +412,9 @@ impl Lowerer<'_> {
             )
             .with_label("no function of this name");
             d = match did_you_mean(&func.name, names) {
-                Some(s) => d.with_hint(format!("did you mean `{s}`? (`ohmsheet functions` lists them all)")),
+                Some(s) => d
+                    .with_hint(format!("did you mean `{s}`? (`ohmsheet functions` lists them all)"))
+                    .with_fix(func.span, s),
                 None => d.with_hint("`ohmsheet functions` lists every function"),
             };
             return Err(d);

@@ -212,6 +212,15 @@ impl Cx<'_> {
                 let mut d = Diagnostic::error(ErrorCode::UnknownUnit, span, format!("unknown unit `{word}`"));
                 d = d.with_label("not a unit");
                 let mut h = Vec::new();
+                // A capital K for kilo (`4.7K`, `2 KV`): the same with `k`.
+                let kilo = word.strip_prefix('K').and_then(|rest| {
+                    let k = format!("k{rest}");
+                    ((rest.is_empty() && !spaced) || (!rest.is_empty() && crate::units::lookup_unit(&k).is_ok()))
+                        .then_some(k)
+                });
+                if let Some(s) = suggestion.as_ref().or(kilo.as_ref()) {
+                    d = d.with_fix(span, text.replacen(word.as_str(), s, 1));
+                }
                 if let Some(s) = suggestion {
                     h.push(format!("did you mean `{s}`?"));
                 }

@@ -79,7 +79,10 @@ pub(super) fn syntax_error(line: &str, e: pest::error::Error<Rule>, file: FileId
     if let Some(h) = look_alike {
         d = d.with_hint(h);
     } else if rest.starts_with('*') && before.ends_with('*') {
-        d = d.with_hint(power_hint(before, rest));
+        let first = offset + before.len() - 1;
+        d = d
+            .with_hint(power_hint(before, rest))
+            .with_fix(Span::new(file, first, offset + pos + 1), "^");
     } else if rest.starts_with("=>") {
         d = d.with_hint("greater than or equal is written `>=` (or `≥`)");
     } else if rest.starts_with("=<") {
