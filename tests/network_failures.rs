@@ -163,3 +163,22 @@ fn an_undefined_admittance_entry_is_explained() {
         d.message
     );
 }
+
+/// In a session, typing a value that leaves the network without a
+/// solution shows the reason for that case at once.
+#[test]
+fn a_session_edit_that_makes_the_network_singular_says_why() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = write(dir.path(), "tie.ohm", TIE);
+    let (mut s, _) =
+        ohmsheet::session::Session::open(Some(Path::new(&sheet)), Some(dir.path().join("data")), false).unwrap();
+    let r = s.handle("Zt = 0 Ω");
+    assert!(
+        r.text.contains("network `p` is singular at this case") && r.text.contains("`Zt` = 0 Ω (a short)"),
+        "{}",
+        r.text
+    );
+    // And a value that gives it a solution again clears it.
+    let r = s.handle("Zt = 1 Ω");
+    assert!(!r.text.contains("singular"), "{}", r.text);
+}

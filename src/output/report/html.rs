@@ -1,7 +1,7 @@
 //! The report as one self-contained HTML file.
 
 use super::layout::{check_summary, file_contents, lower_first, one_form, same_text, show_substituted, steps_intro};
-use super::Report;
+use super::{Report, Value};
 
 fn esc(s: &str) -> String {
     let mut out = String::with_capacity(s.len());
@@ -221,6 +221,52 @@ pub fn html(r: &Report) -> String {
         }
         for n in &s.notes {
             o.push_str(&format!("<p class=\"note\">{}</p>\n", esc(n)));
+        }
+        o.push_str("</div>\n");
+    }
+    for n in &r.networks {
+        o.push_str(&format!(
+            "<div class=\"network\" id=\"network-{}\">\n<h3>Network <code>{}</code> at {}</h3>\n",
+            esc(&n.name),
+            esc(&n.name),
+            esc(&n.frequency.rect)
+        ));
+        o.push_str("<p class=\"note\">Currents flow from the first node to the second through a branch; a source delivers its current out of its first node. Powers are absorbed by branches and delivered by sources.</p>\n");
+        o.push_str("<table class=\"network-elements\">\n<tr><th>Element</th><th>Kind</th><th>Nodes</th><th>Value</th><th>Current</th><th>Power</th></tr>\n");
+        let both = |v: &Value| {
+            if one_form(v) {
+                esc(&v.rect)
+            } else {
+                format!("{}<br>{}", esc(&v.rect), esc(&v.polar))
+            }
+        };
+        for e in &n.elements {
+            let opt = |v: &Option<Value>| v.as_ref().map_or_else(String::new, both);
+            o.push_str(&format!(
+                "<tr><td><code>{}</code></td><td>{}</td><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>\n",
+                esc(&e.name),
+                esc(&e.kind),
+                esc(&e.nodes),
+                both(&e.value),
+                opt(&e.current),
+                opt(&e.power)
+            ));
+        }
+        o.push_str("</table>\n<table class=\"network-nodes\">\n<tr><th>Node</th><th>Voltage to ground</th></tr>\n");
+        for (node, v) in &n.nodes {
+            o.push_str(&format!(
+                "<tr><td><code>{}</code></td><td class=\"num\">{}</td></tr>\n",
+                esc(node),
+                both(v)
+            ));
+        }
+        o.push_str("</table>\n");
+        if let (Some(d), Some(a)) = (&n.delivered, &n.absorbed) {
+            o.push_str(&format!(
+                "<p>Delivered by the sources: {}; absorbed by the branches: {}.</p>\n",
+                esc(&d.rect),
+                esc(&a.rect)
+            ));
         }
         o.push_str("</div>\n");
     }

@@ -1,7 +1,7 @@
 //! The report as Markdown.
 
 use super::layout::{check_summary, equation_lines, file_contents, lower_first, one_form, same_text, steps_intro};
-use super::Report;
+use super::{Report, Value};
 
 /// Text for a Markdown paragraph or table cell: characters that start
 /// markup are escaped, a `|` too (it would end a table cell).
@@ -180,6 +180,61 @@ pub fn markdown_with_plot_files(r: &Report, plot_files: &[String]) -> String {
         for n in &s.notes {
             p(&mut o, "");
             p(&mut o, &md_text(n));
+        }
+    }
+
+    for n in &r.networks {
+        p(&mut o, "");
+        p(
+            &mut o,
+            &format!("### Network {} at {}", md_code(&n.name), md_text(&n.frequency.rect)),
+        );
+        p(&mut o, "");
+        p(
+            &mut o,
+            "Currents flow from the first node to the second through a branch; a source delivers its current out of its first node. Powers are absorbed by branches and delivered by sources.",
+        );
+        p(&mut o, "");
+        p(&mut o, "| Element | Kind | Nodes | Value | Current | Power |");
+        p(&mut o, "|---|---|---|--:|--:|--:|");
+        let both = |v: &Value| {
+            if one_form(v) {
+                md_text(&v.rect)
+            } else {
+                format!("{}<br>{}", md_text(&v.rect), md_text(&v.polar))
+            }
+        };
+        for e in &n.elements {
+            let opt = |v: &Option<Value>| v.as_ref().map_or_else(String::new, both);
+            p(
+                &mut o,
+                &format!(
+                    "| {} | {} | {} | {} | {} | {} |",
+                    md_code(&e.name),
+                    md_text(&e.kind),
+                    md_text(&e.nodes),
+                    both(&e.value),
+                    opt(&e.current),
+                    opt(&e.power)
+                ),
+            );
+        }
+        p(&mut o, "");
+        p(&mut o, "| Node | Voltage to ground |");
+        p(&mut o, "|---|--:|");
+        for (node, v) in &n.nodes {
+            p(&mut o, &format!("| {} | {} |", md_code(node), both(v)));
+        }
+        if let (Some(d), Some(a)) = (&n.delivered, &n.absorbed) {
+            p(&mut o, "");
+            p(
+                &mut o,
+                &format!(
+                    "Delivered by the sources: {}; absorbed by the branches: {}.",
+                    md_text(&d.rect),
+                    md_text(&a.rect)
+                ),
+            );
         }
     }
 

@@ -7,6 +7,7 @@
 mod html;
 mod layout;
 mod markdown;
+mod networks;
 pub mod spread;
 mod subst;
 
@@ -59,6 +60,8 @@ pub struct Report {
     pub notes: Vec<String>,
     pub inputs: Vec<InputLine>,
     pub steps: Vec<Step>,
+    /// Each network: its elements and node voltages.
+    pub networks: Vec<networks::NetworkTable>,
     pub checks: Vec<CheckLine>,
     pub plots: Vec<Plot>,
     /// The analyses over the inputs' tolerances, for a sheet that states
@@ -458,6 +461,7 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
             .collect(),
         inputs,
         steps,
+        networks: networks::tables(engine, style),
         checks,
         plots: plots(m, style),
         spread: None,
