@@ -71,7 +71,8 @@ ENTRIES = [
      "Vs = 480 V\nZ = 3 + j4 Ω\nI = Vs / Z\n@sweep \"Load current\" Vs = 400 V .. 500 V, 3 points : I\n", None),
     ("not-a-record", "`.field` on a single value.", "z = 3\nx = z.re\n", None),
     ("record-as-value", "A record used where one value is needed.", "p = parts(3 + j4)\nx = p * 2\n", None),
-    ("bad-tolerance", "A check's tolerance without the unit of the values compared.",
+    ("bad-tolerance", "A check's tolerance without the unit of the values compared; or a check `over N % of "
+     "samples` with N not above 0 % and at most 100 %.",
      "Z = 5 Ω\ncheck Z ~= 5 Ω +- 0.1\n", None),
     ("tolerance-not-on-input", "A tolerance (`within …`, `among …`) on a cell computed from other cells: only "
      "an input's value can vary (docs/tolerances.md).",

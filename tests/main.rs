@@ -60,6 +60,7 @@ mod scale_sheet;
 mod search_sheet;
 mod session_pty;
 mod spread;
+mod spread_checks;
 mod spread_reference;
 mod sweep;
 mod tolerances;

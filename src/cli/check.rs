@@ -207,6 +207,9 @@ pub fn check(a: &CheckArgs) -> i32 {
                 "{verdict}  {where_}  {}  (computed {}, |difference| {}, allowed {})",
                 c.expr, c.lhs_display, c.error_display, c.tolerance_display
             ));
+            if let Some(o) = &c.over {
+                say(format!("      {o}"));
+            }
         }
         let rows = rows
             .into_iter()

@@ -168,6 +168,8 @@ pub struct Model {
     /// The inputs' tolerances (`within …`, `among …`), in sheet order;
     /// empty for a sheet without any (see `engine::tolerance`).
     pub spreads: Vec<crate::engine::tolerance::Spread>,
+    /// Checks that must hold over the tolerances, in sheet order.
+    pub spread_checks: Vec<crate::engine::tolerance::SpreadCheck>,
 }
 
 impl Model {

@@ -83,6 +83,18 @@ pub struct Spread {
     pub law: Law,
 }
 
+/// A check that must hold over the tolerances (`over the box`,
+/// `over 99 % of samples`).
+#[derive(Clone, Debug, PartialEq)]
+pub struct SpreadCheck {
+    /// The check's cell.
+    pub cell: CellId,
+    /// The share of samples required (a fraction), or `None`: every point
+    /// of the box.
+    pub share: Option<f64>,
+    pub span: Span,
+}
+
 /// One direction of a spread.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Direction {

@@ -67,6 +67,9 @@ struct JsonCheck<'a> {
     expected_display: &'a str,
     difference_display: &'a str,
     allowance_display: &'a str,
+    /// For a check over the tolerances: its verdict there in words.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    over: Option<&'a str>,
 }
 
 #[derive(Serialize)]
@@ -126,6 +129,7 @@ pub fn to_json(sheets: &[SheetChecks], problems: &[String]) -> String {
                         expected_display: &c.rhs_display,
                         difference_display: &c.error_display,
                         allowance_display: &c.tolerance_display,
+                        over: c.over.as_deref(),
                     })
                     .collect(),
             })
@@ -204,10 +208,14 @@ pub fn to_junit(sheets: &[SheetChecks], problems: &[String]) -> String {
                 xml(&c.file),
                 c.line
             ));
-            let detail = format!(
+            let mut detail = format!(
                 "computed {}, expected {}, |difference| {}, allowed {}",
                 c.lhs_display, c.rhs_display, c.error_display, c.tolerance_display
             );
+            if let Some(o) = &c.over {
+                detail.push_str("; ");
+                detail.push_str(o);
+            }
             if c.passed {
                 out.push_str(&format!("      <system-out>{}</system-out>\n", xml(&detail)));
             } else {

@@ -62,6 +62,9 @@ pub struct CheckRow {
     pub tolerance_display: String,
     pub lhs_display: String,
     pub rhs_display: String,
+    /// For a check over the tolerances: its verdict there in words.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub over: Option<String>,
     /// The polar forms of the computed and reference values, for
     /// `checks_in_form`.
     #[serde(skip)]
@@ -213,6 +216,7 @@ pub fn checks_in_form(rows: &mut [CheckRow], form: Form) {
 pub fn check_rows(engine: &Engine, style: Style) -> Vec<CheckRow> {
     let m = &engine.model;
     let mut rows = Vec::new();
+    let (plan, verdicts) = crate::spread::checks::check_verdicts(engine);
     for (id, c) in m.checks() {
         if c.error.is_some() {
             continue;
@@ -224,11 +228,14 @@ pub fn check_rows(engine: &Engine, style: Style) -> Vec<CheckRow> {
         let (error_display, tolerance_display) =
             crate::units::format::check_gap(q, c.display.as_ref(), r.diff, r.tol, style);
         let (unit, k) = number_unit(q);
+        let verdict = verdicts.iter().find(|v| v.cell == id);
+        let over = verdict.map(|v| crate::output::spread::check_over_text(plan.as_ref(), c, v, style));
         rows.push(CheckRow {
             expr: c.formula.clone(),
             file: m.sources.get(c.file).name.clone(),
             line: c.line,
-            passed: r.passed,
+            passed: r.passed && verdict.is_none_or(|v| v.passed),
+            over,
             lhs: Complex {
                 re: r.lhs.re * k,
                 im: r.lhs.im * k,

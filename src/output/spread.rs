@@ -41,36 +41,7 @@ impl Analyses<'_> {
     /// Where an input is at point `p`, in the way its tolerance is stated:
     /// `Zt +7.5 %`, `Vs angle −3°`, `Qb 750 kvar`, `P −0.2 MW`.
     pub fn describe_point(&self, e: &Extreme) -> String {
-        let plan = self.plan;
-        let mut parts = Vec::new();
-        for (d, &x) in plan.dims.iter().zip(&e.point) {
-            let i = &plan.inputs[d.input];
-            let inside = d.dir != Direction::Choice && x != d.lo && x != d.hi;
-            let end = if inside { " (inside)" } else { "" };
-            let text = match d.dir {
-                Direction::Magnitude => match i.spread.mag {
-                    Some(MagBand::Relative(_)) => format!("{} {}", i.name, signed(x * 100.0, " %", self.style)),
-                    _ => {
-                        let f = format_value(C64::new(x.abs(), 0.0), i.quantity, i.display.as_ref(), self.style).rect;
-                        format!("{} {}{}", i.name, if x < 0.0 { "−" } else { "+" }, f)
-                    }
-                },
-                Direction::Angle => format!("{} angle {}", i.name, signed(x.to_degrees(), "°", self.style)),
-                Direction::Choice => {
-                    let v = match &i.spread.law {
-                        Law::Among(v) => v.get(x as usize).copied().unwrap_or(i.nominal),
-                        _ => i.nominal,
-                    };
-                    format!(
-                        "{} {}",
-                        i.name,
-                        format_value(v, i.quantity, i.display.as_ref(), self.style).polar
-                    )
-                }
-            };
-            parts.push(format!("{text}{end}"));
-        }
-        parts.join(", ")
+        describe_point(self.plan, e, self.style)
     }
 
     /// An input's tolerance in words, absolute amounts in its unit.
@@ -440,6 +411,70 @@ fn signed(x: f64, unit: &str, style: Style) -> String {
             unit.to_string()
         }
     )
+}
+
+/// Where each input is at an extreme, in the way its tolerance is stated:
+/// `Zt +7.5 %, Vs angle −3°, Qb 750 kvar, P −0.2 MW`.
+pub fn describe_point(plan: &Plan, e: &Extreme, style: Style) -> String {
+    let mut parts = Vec::new();
+    for (d, &x) in plan.dims.iter().zip(&e.point) {
+        let i = &plan.inputs[d.input];
+        let inside = d.dir != Direction::Choice && x != d.lo && x != d.hi;
+        let end = if inside { " (inside)" } else { "" };
+        let text = match d.dir {
+            Direction::Magnitude => match i.spread.mag {
+                Some(MagBand::Relative(_)) => format!("{} {}", i.name, signed(x * 100.0, " %", style)),
+                _ => {
+                    let f = format_value(C64::new(x.abs(), 0.0), i.quantity, i.display.as_ref(), style).rect;
+                    format!("{} {}{}", i.name, if x < 0.0 { "−" } else { "+" }, f)
+                }
+            },
+            Direction::Angle => format!("{} angle {}", i.name, signed(x.to_degrees(), "°", style)),
+            Direction::Choice => {
+                let v = match &i.spread.law {
+                    Law::Among(v) => v.get(x as usize).copied().unwrap_or(i.nominal),
+                    _ => i.nominal,
+                };
+                format!(
+                    "{} {}",
+                    i.name,
+                    format_value(v, i.quantity, i.display.as_ref(), style).polar
+                )
+            }
+        };
+        parts.push(format!("{text}{end}"));
+    }
+    parts.join(", ")
+}
+
+/// A check's verdict over the tolerances, in words, for tables and lines.
+pub fn check_over_text(
+    plan: Option<&Plan>,
+    cell: &crate::engine::Cell,
+    v: &crate::spread::checks::CheckVerdict,
+    style: Style,
+) -> String {
+    let q = cell.checked_quantity();
+    let (diff, allowed) =
+        crate::units::format::check_gap(q, cell.display.as_ref(), v.worst_diff, v.worst_allowed, style);
+    let at = match (plan, &v.worst) {
+        (Some(p), Some(e)) => describe_point(p, e, style),
+        _ => "the stated values (the sheet states no tolerance)".into(),
+    };
+    match (v.share, v.found_share) {
+        (Some(s), Some(f)) => format!(
+            "over {} % of samples: {} in {} % of {} samples (seed {}); worst at {at}: |difference| {diff} (allowed {allowed})",
+            crate::units::format::fmt_sig(s * 100.0, 4),
+            if v.passed { "holds" } else { "FAILS: holds only" },
+            crate::units::format::fmt_sig(f * 100.0, 4),
+            v.samples,
+            crate::spread::checks::CHECK_SEED
+        ),
+        _ => format!(
+            "over the box: {} at {at}: |difference| {diff} (allowed {allowed})",
+            if v.passed { "holds; closest" } else { "FAILS" }
+        ),
+    }
 }
 
 /// Counts as a row of block characters, tallest bin full.

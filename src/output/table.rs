@@ -135,6 +135,9 @@ pub fn checks_table(checks: &[CheckRow]) -> String {
             c.error_display,
             c.tolerance_display
         ));
+        if let Some(o) = &c.over {
+            out.push_str(&format!("        {o}\n"));
+        }
     }
     let failed = checks.iter().filter(|c| !c.passed).count();
     out.push_str(&format!(

@@ -19,6 +19,7 @@
 //! A shown cell is judged by its *measure*: its value for a cell that is
 //! real at every point of the box, its magnitude otherwise ([`Measure`]).
 
+pub mod checks;
 mod sample;
 mod sens;
 mod worst;
@@ -86,6 +87,9 @@ pub struct Shown {
     pub measure: Measure,
     /// Its value at the stated inputs.
     pub nominal: C64,
+    /// A check, judged by its margin (`checks::margin`), with its
+    /// tolerance's form.
+    pub check: Option<Option<crate::engine::model::TolSpec>>,
 }
 
 /// A sheet ready for the analyses: the toleranced inputs, the box's
@@ -107,6 +111,15 @@ impl Plan {
     /// A plan over `engine` (evaluated, its model with `spreads`) for the
     /// shown `series`. Refused when the sheet states no tolerance.
     pub fn new(engine: &Engine, series: Vec<Series>) -> Result<Plan, Diagnostic> {
+        Plan::build(engine, series, &[])
+    }
+
+    /// A plan whose shown values are the margins of these checks.
+    pub fn for_checks(engine: &Engine, checks: &[CellId]) -> Result<Plan, Diagnostic> {
+        Plan::build(engine, Vec::new(), checks)
+    }
+
+    fn build(engine: &Engine, series: Vec<Series>, checks: &[CellId]) -> Result<Plan, Diagnostic> {
         let m = &engine.model;
         if m.spreads.is_empty() {
             return Err(
@@ -145,7 +158,7 @@ impl Plan {
             .collect();
         let real = crate::batch::real_slots(&m.program, &complex_inputs);
         let from: Vec<CellId> = inputs.iter().map(|i| i.cell).collect();
-        let to: Vec<CellId> = series.iter().map(|s| s.cell).collect();
+        let to: Vec<CellId> = series.iter().map(|s| s.cell).chain(checks.iter().copied()).collect();
         let code = crate::sweep::sub_program(m, &from, &to);
         let mut base = Block::new(&m.program);
         for (s, v) in engine.slots().iter().enumerate() {
@@ -164,8 +177,26 @@ impl Plan {
                     series: s,
                     measure,
                     nominal,
+                    check: None,
                 }
             })
+            .chain(checks.iter().map(|&id| {
+                let c = &m.cells[id as usize];
+                let v = engine.values(id);
+                Shown {
+                    series: Series {
+                        name: c.formula.clone(),
+                        cell: id,
+                        slot: c.slot,
+                        quantity: c.checked_quantity(),
+                        display: c.display.clone(),
+                        real: true,
+                    },
+                    measure: Measure::Value,
+                    nominal: checks::margin(c.tol, v[0], v[1], v[2]),
+                    check: Some(c.tol),
+                }
+            }))
             .collect();
         Ok(Plan {
             inputs,
@@ -237,7 +268,13 @@ impl Plan {
         block.run(&self.code, &self.prog);
         for (l, row) in out.iter_mut().enumerate().take(inputs.len()) {
             for (k, s) in self.shown.iter().enumerate() {
-                row[k] = block.get(s.series.slot, l);
+                let slot = s.series.slot;
+                row[k] = match s.check {
+                    Some(tol) => {
+                        checks::margin(tol, block.get(slot, l), block.get(slot + 1, l), block.get(slot + 2, l))
+                    }
+                    None => block.get(slot, l),
+                };
             }
         }
     }

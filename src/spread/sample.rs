@@ -129,8 +129,53 @@ fn draw(plan: &Plan, rng: &mut Rng, out: &mut Vec<C64>) {
     *out = plan.input_values(&p);
 }
 
+/// The measures of `opt.samples` samples, sample-major (sample s, shown
+/// value c at s·k + c), as `monte_carlo` draws them.
+pub fn measures(plan: &Plan, opt: &McOptions) -> Vec<f64> {
+    sample_all(plan, opt).0
+}
+
 /// Run `opt.samples` samples of the box and summarise each shown cell.
 pub fn monte_carlo(plan: &Plan, opt: &McOptions) -> McResult {
+    let n = opt.samples.max(1);
+    let k = plan.shown.len();
+    let (meas, angs) = sample_all(plan, opt);
+    let cells = plan
+        .shown
+        .par_iter()
+        .enumerate()
+        .map(|(c, s)| {
+            let mut col: Vec<f64> = (0..n).map(|i| meas[i * k + c]).filter(|x| x.is_finite()).collect();
+            let undefined = n - col.len();
+            let base = if s.nominal.norm() > 0.0 { s.nominal.arg() } else { 0.0 };
+            let angle = (s.measure == Measure::Magnitude).then(|| {
+                let a: Vec<f64> = (0..n)
+                    .filter(|&i| meas[i * k + c].is_finite())
+                    .map(|i| angs[i * k + c])
+                    .collect();
+                let (m, sd) = mean_std(&a);
+                (base + m, sd)
+            });
+            summarise(
+                s.series.name.clone(),
+                s.measure,
+                s.measure.of(s.nominal),
+                &mut col,
+                opt,
+                undefined,
+                angle,
+            )
+        })
+        .collect();
+    McResult {
+        samples: n,
+        seed: opt.seed,
+        coverage_probability: opt.coverage,
+        cells,
+    }
+}
+
+fn sample_all(plan: &Plan, opt: &McOptions) -> (Vec<f64>, Vec<f64>) {
     let n = opt.samples.max(1);
     let k = plan.shown.len();
     // Sample-major: sample s, cell c at s·k + c. Complex cells keep their
@@ -168,39 +213,7 @@ pub fn monte_carlo(plan: &Plan, opt: &McOptions) -> McResult {
                 }
             },
         );
-    let cells = plan
-        .shown
-        .par_iter()
-        .enumerate()
-        .map(|(c, s)| {
-            let mut col: Vec<f64> = (0..n).map(|i| meas[i * k + c]).filter(|x| x.is_finite()).collect();
-            let undefined = n - col.len();
-            let base = if s.nominal.norm() > 0.0 { s.nominal.arg() } else { 0.0 };
-            let angle = (s.measure == Measure::Magnitude).then(|| {
-                let a: Vec<f64> = (0..n)
-                    .filter(|&i| meas[i * k + c].is_finite())
-                    .map(|i| angs[i * k + c])
-                    .collect();
-                let (m, sd) = mean_std(&a);
-                (base + m, sd)
-            });
-            summarise(
-                s.series.name.clone(),
-                s.measure,
-                s.measure.of(s.nominal),
-                &mut col,
-                opt,
-                undefined,
-                angle,
-            )
-        })
-        .collect();
-    McResult {
-        samples: n,
-        seed: opt.seed,
-        coverage_probability: opt.coverage,
-        cells,
-    }
+    (meas, angs)
 }
 
 fn mean_std(x: &[f64]) -> (f64, f64) {

@@ -185,6 +185,18 @@ pub struct Check {
     pub lhs: Expr,
     pub rhs: Expr,
     pub tol: Tolerance,
+    /// `over the box` or `over 99 % of samples`: the check must hold over
+    /// the inputs' tolerances (docs/tolerances.md).
+    pub over: Option<CheckOver>,
+}
+
+/// Where a check must hold besides the stated values.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CheckOver {
+    /// The share of Monte Carlo samples (a fraction), or `None` for every
+    /// point of the tolerance box.
+    pub share: Option<f64>,
+    pub span: Span,
 }
 
 #[derive(Clone, Debug, PartialEq)]

@@ -394,6 +394,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
     let networks = std::cell::RefCell::new(Vec::new());
     let mut order = Vec::with_capacity(n);
     let mut spreads = Vec::new();
+    let mut spread_checks = Vec::new();
     // Which cells have an error, packed: checking a cell's dependencies
     // here then costs no cache miss per dependency on a big sheet.
     let mut failed: Vec<bool> = cells.iter().map(|c| c.error.is_some()).collect();
@@ -466,6 +467,23 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
                     cell.deps = p.frontier.clone();
                 }
                 order.push(id);
+                if let Some(o) = pending[i].check.and_then(|c| c.over.as_ref()) {
+                    match o.share {
+                        Some(s) if !(s > 0.0 && s <= 1.0) => diags.push(
+                            Diagnostic::error(
+                                ErrorCode::BadTolerance,
+                                o.span,
+                                "the share of samples must be more than 0 % and at most 100 %",
+                            )
+                            .with_hint("e.g. `over 99 % of samples`, or `over the box` for every point"),
+                        ),
+                        _ => spread_checks.push(crate::engine::tolerance::SpreadCheck {
+                            cell: id,
+                            share: o.share,
+                            span: o.span,
+                        }),
+                    }
+                }
                 if let Some(spec) = pending[i].spread {
                     let cell = &cells[i];
                     let lw = Lowerer {
@@ -565,6 +583,7 @@ pub fn compile_limited(sheet: &Sheet, max_cells: usize) -> Model {
         ctx,
         diagnostics: diags,
         spreads,
+        spread_checks,
     };
     if !model.meta.sweeps.is_empty() {
         let more = crate::sweep::declared::check(&model);

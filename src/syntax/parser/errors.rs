@@ -42,6 +42,9 @@ fn describe_rule(r: &Rule) -> Option<&'static str> {
         Rule::spread_angle | Rule::kw_angle => "`angle`",
         Rule::spread_law | Rule::kw_normal | Rule::kw_uniform => "`normal Kσ` or `uniform`",
         Rule::kw_sigma => "`σ` or `sigma`",
+        Rule::check_over | Rule::kw_over => "`over the box` or `over N % of samples`",
+        Rule::kw_the | Rule::kw_box => "`the box`",
+        Rule::kw_of | Rule::kw_samples => "`of samples`",
         _ => return None,
     })
 }

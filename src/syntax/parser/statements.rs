@@ -35,6 +35,14 @@ impl Cx<'_> {
                 let lhs = self.expr(it.next().expect("lhs"))?;
                 let rhs = self.expr(it.next().expect("rhs"))?;
                 let tol_expr = self.expr(it.next().expect("tol"))?;
+                let over = it.next().map(|o| {
+                    let span = self.span(&o);
+                    let share = o
+                        .into_inner()
+                        .find(|r| r.as_rule() == Rule::number)
+                        .map(|n| n.as_str().parse::<f64>().unwrap_or(f64::NAN) / 100.0);
+                    CheckOver { share, span }
+                });
                 let tol = match &tol_expr.kind {
                     ExprKind::Number {
                         value,
@@ -43,7 +51,7 @@ impl Cx<'_> {
                     } if u.unit.symbol == "%" => Tolerance::Relative(value * 0.01, tol_expr.span),
                     _ => Tolerance::Absolute(tol_expr),
                 };
-                Ok(StmtKind::Check(Check { lhs, rhs, tol }))
+                Ok(StmtKind::Check(Check { lhs, rhs, tol, over }))
             }
             Rule::directive => {
                 let mut it = p.into_inner();
