@@ -1,7 +1,7 @@
 //! `ohmsheet spread`: worst case, Monte Carlo and sensitivities of a
 //! sheet's shown cells over its inputs' tolerances.
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 use clap::Args;
 
@@ -55,6 +55,10 @@ pub struct SpreadArgs {
     /// Significant digits shown
     #[arg(long, default_value_t = 4, value_parser = clap::value_parser!(u8).range(1..=15))]
     pub digits: u8,
+    /// Draw each cell's histogram (Monte Carlo) and ranking chart (sensitivities) as SVG files
+    /// named from FILE: plant.svg gives plant.Vbus.histogram.svg, plant.Vbus.ranking.svg, …
+    #[arg(long, value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
     /// Output format
     #[arg(long, value_enum, default_value_t = Format::Table)]
     pub format: Format,
@@ -99,6 +103,13 @@ pub fn spread(a: &SpreadArgs) -> i32 {
             },
         )
     });
+    if a.plot.is_some() && !(all || a.monte_carlo || a.sensitivities) {
+        eprintln!(
+            "error: nothing to draw: --plot draws the Monte Carlo histograms and the sensitivity rankings\n  \
+             hint: add --monte-carlo or --sensitivities, or leave out --worst"
+        );
+        return EXIT_ERROR;
+    }
     let sens = (all || a.sensitivities).then(|| sensitivities(&plan));
     let an = Analyses {
         plan: &plan,
@@ -117,6 +128,12 @@ pub fn spread(a: &SpreadArgs) -> i32 {
         ),
         Format::Csv => an.csv(),
     };
+    if let Some(p) = &a.plot {
+        let code = write_plots(&an, p, &a.sheet);
+        if code != EXIT_OK {
+            return code;
+        }
+    }
     match &a.output {
         None => out!("{text}"),
         Some(p) => {
@@ -133,5 +150,47 @@ pub fn spread(a: &SpreadArgs) -> i32 {
             }
         }
     }
+    EXIT_OK
+}
+
+/// A cell's name as part of a file name: itself when it is a plain name,
+/// else `cellK` (an expression given to --show).
+fn file_part(name: &str, c: usize) -> String {
+    if !name.is_empty() && name.chars().all(|ch| ch.is_alphanumeric() || ch == '_') {
+        name.to_string()
+    } else {
+        format!("cell{}", c + 1)
+    }
+}
+
+/// Write each shown cell's pictures beside `p`, named from its stem.
+fn write_plots(an: &Analyses, p: &Path, sheet: &Path) -> i32 {
+    let stem = p
+        .file_stem()
+        .map_or_else(|| "spread".to_string(), |s| s.to_string_lossy().into_owned());
+    let dir = p.parent().map(PathBuf::from).unwrap_or_default();
+    let mut written = Vec::new();
+    for c in 0..an.plan.shown.len() {
+        let name = file_part(&an.plan.shown[c].series.name, c);
+        for (what, pic) in [("histogram", an.histogram_svg(c)), ("ranking", an.ranking_svg(c))] {
+            let Some((svg, _)) = pic else { continue };
+            let path = dir.join(format!("{stem}.{name}.{what}.svg"));
+            if crate::fsutil::same_file(&path, sheet) {
+                eprintln!("error: `{}` is the sheet; it would be overwritten", path.display());
+                return EXIT_ERROR;
+            }
+            if let Err(e) = crate::fsutil::write_atomic(&path, svg.as_bytes()) {
+                eprintln!("error: cannot write `{}`: {e}", path.display());
+                return EXIT_ERROR;
+            }
+            written.push(path);
+        }
+    }
+    eprintln!(
+        "wrote {} picture{}: {} …",
+        written.len(),
+        if written.len() == 1 { "" } else { "s" },
+        written.first().map_or(String::new(), |w| w.display().to_string())
+    );
     EXIT_OK
 }

@@ -5,6 +5,7 @@ use num_complex::Complex64 as C64;
 use serde_json::{json, Value};
 
 use crate::engine::tolerance::{Direction, Law, MagBand};
+use crate::plot::spread::{histogram_svg, ranking_svg, HistogramPicture, RankBar, SpreadGeometry};
 use crate::spread::{Extreme, McResult, Measure, Method, Plan, SensResult, WorstResult};
 use crate::units::format::{base_symbol, format_value, Style};
 
@@ -48,6 +49,72 @@ impl Analyses<'_> {
     pub fn describe_spread(&self, i: &crate::spread::Input) -> String {
         i.spread
             .describe(&|x| format_value(C64::new(x, 0.0), i.quantity, i.display.as_ref(), self.style).rect)
+    }
+
+    /// Shown cell `c`'s name, with ` |·|` when its magnitude is judged.
+    pub fn cell_label(&self, c: usize) -> String {
+        let s = &self.plan.shown[c];
+        match s.measure {
+            Measure::Magnitude => format!("{} |·|", s.series.name),
+            Measure::Value => s.series.name.clone(),
+        }
+    }
+
+    fn axis_label(&self, c: usize) -> String {
+        let s = &self.plan.shown[c];
+        match s.measure {
+            Measure::Magnitude => format!("{} magnitude", s.series.name),
+            Measure::Value => s.series.name.clone(),
+        }
+    }
+
+    /// The histogram of shown cell `c`'s Monte Carlo samples, as SVG (when
+    /// Monte Carlo was run).
+    pub fn histogram_svg(&self, c: usize) -> Option<(String, SpreadGeometry)> {
+        let mc = self.mc?;
+        let cell = mc.cells.get(c)?;
+        let title = format!("{} — {} samples, seed {}", self.cell_label(c), mc.samples, mc.seed);
+        let label = |x: f64| self.fmt(c, x);
+        Some(histogram_svg(&HistogramPicture {
+            title: &title,
+            axis: &self.axis_label(c),
+            lo: cell.histogram.lo,
+            hi: cell.histogram.hi,
+            counts: &cell.histogram.counts,
+            stated: cell.nominal,
+            interval: cell.coverage,
+            probability: mc.coverage_probability,
+            label: &label,
+        }))
+    }
+
+    /// The ranking chart of shown cell `c`'s sensitivities, as SVG (when
+    /// they were run).
+    pub fn ranking_svg(&self, c: usize) -> Option<(String, SpreadGeometry)> {
+        let cell = self.sens?.cells.get(c)?;
+        let bars: Vec<RankBar> = cell
+            .rows
+            .iter()
+            .map(|r| {
+                let name = &self.plan.inputs[r.input].name;
+                RankBar {
+                    label: match r.dir {
+                        Direction::Angle => format!("{name} angle"),
+                        _ => name.clone(),
+                    },
+                    low: r.low,
+                    high: r.high,
+                }
+            })
+            .collect();
+        let label = |x: f64| self.fmt(c, x);
+        Some(ranking_svg(
+            &format!("What moves {} most", self.cell_label(c)),
+            &self.axis_label(c),
+            cell.nominal,
+            &bars,
+            &label,
+        ))
     }
 
     pub fn table(&self) -> String {

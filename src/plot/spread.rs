@@ -136,13 +136,16 @@ fn ticks(svg: &mut Svg, y_axis: i32, ticks: &[(i32, String)]) {
     let mut placed: Vec<(i32, i32)> = Vec::new();
     for (x, s) in ticks {
         let w = text_w(s, FONT);
-        let (a, b) = (x - w / 2, x + w / 2);
-        if a < 2 || b > svg.geo.width as i32 - 2 || placed.iter().any(|&(p, q)| a < q + 8 && p < b + 8) {
+        // Centred under its tick, shifted to stay inside the picture.
+        let right = svg.geo.width as i32 - 2;
+        let a = (x - w / 2).max(2).min(right - w);
+        let b = a + w;
+        if a < 2 || placed.iter().any(|&(p, q)| a < q + 8 && p < b + 8) {
             continue;
         }
         placed.push((a, b));
         svg.line((*x, y_axis), (*x, y_axis + 4), AXIS, 1.0, false);
-        svg.text(*x, y_axis + 18, s, FONT, "middle", false);
+        svg.text(a, y_axis + 18, s, FONT, "start", false);
     }
 }
 
@@ -247,7 +250,7 @@ pub fn histogram_svg(h: &HistogramPicture) -> (String, SpreadGeometry) {
     s.line((plot.x0, plot.y0), (plot.x0, plot.y1), AXIS, 1.0, false);
     s.line((plot.x0 - 4, plot.y0), (plot.x0, plot.y0), AXIS, 1.0, false);
     s.text(plot.x0 - 6, plot.y0 + 4, &max.to_string(), FONT, "end", false);
-    s.text(plot.x0 - 6, plot.y1 + 4, "0", FONT, "end", false);
+    s.text(plot.x0 - 6, plot.y1, "0", FONT, "end", false);
     let mid = (lo + hi) / 2.0;
     ticks(
         &mut s,

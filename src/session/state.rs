@@ -27,6 +27,7 @@ use crate::units::format::Style;
 mod apply;
 mod commands;
 mod files;
+mod spread;
 #[cfg(test)]
 mod tests;
 

@@ -9,7 +9,6 @@ use serde::Serialize;
 use super::Plot;
 use crate::engine::tolerance::Direction;
 use crate::output::spread::{Analyses, CAUTION};
-use crate::plot::spread::{histogram_svg, ranking_svg, HistogramPicture, RankBar};
 use crate::spread::{Measure, Method};
 
 #[derive(Clone, Debug, Serialize)]
@@ -168,23 +167,7 @@ pub fn section(an: &Analyses, sheet: &str) -> SpreadSection {
             .filter(|(c, _)| moves(*c))
             .map(|(c, cell)| {
                 let p = |q: f64| cell.percentiles.iter().find(|x| x.0 == q).map_or(f64::NAN, |x| x.1);
-                let label = |x: f64| an.fmt(c, x);
-                let title = format!("{} — {} samples, seed {}", cell_name(&cell.name, cell.measure), mc.samples, mc.seed);
-                let axis = match cell.measure {
-                    Measure::Magnitude => format!("{} magnitude", cell.name),
-                    Measure::Value => cell.name.clone(),
-                };
-                let (svg, _) = histogram_svg(&HistogramPicture {
-                    title: &title,
-                    axis: &axis,
-                    lo: cell.histogram.lo,
-                    hi: cell.histogram.hi,
-                    counts: &cell.histogram.counts,
-                    stated: cell.nominal,
-                    interval: cell.coverage,
-                    probability: mc.coverage_probability,
-                    label: &label,
-                });
+                let svg = an.histogram_svg(c).map(|p| p.0);
                 figures.push(Plot {
                     title: format!("Monte Carlo histogram of {}", cell.name),
                     caption: format!(
@@ -197,7 +180,7 @@ pub fn section(an: &Analyses, sheet: &str) -> SpreadSection {
                         an.fmt(c, cell.coverage.1),
                         an.fmt(c, cell.nominal)
                     ),
-                    svg: Some(svg),
+                    svg,
                     problem: None,
                 });
                 McRow {
@@ -233,7 +216,6 @@ pub fn section(an: &Analyses, sheet: &str) -> SpreadSection {
             .filter(|(c, _)| moves(*c))
             .map(|(c, cell)| {
                 let complex = cell.measure == Measure::Magnitude;
-                let mut bars = Vec::new();
                 let rows = cell
                     .rows
                     .iter()
@@ -243,11 +225,6 @@ pub fn section(an: &Analyses, sheet: &str) -> SpreadSection {
                             Direction::Angle => (format!("{} angle", i.name), "per °"),
                             _ => (i.name.clone(), "per %"),
                         };
-                        bars.push(RankBar {
-                            label: what.clone(),
-                            low: r.low,
-                            high: r.high,
-                        });
                         SensLine {
                             input: what,
                             per: format!("{} % {per}", num(r.mag, an)),
@@ -257,25 +234,14 @@ pub fn section(an: &Analyses, sheet: &str) -> SpreadSection {
                         }
                     })
                     .collect();
-                let label = |x: f64| an.fmt(c, x);
-                let axis = match cell.measure {
-                    Measure::Magnitude => format!("{} magnitude", cell.name),
-                    Measure::Value => cell.name.clone(),
-                };
-                let (svg, _) = ranking_svg(
-                    &format!("What moves {} most", cell_name(&cell.name, cell.measure)),
-                    &axis,
-                    cell.nominal,
-                    &bars,
-                    &label,
-                );
+                let svg = an.ranking_svg(c).map(|p| p.0);
                 figures.push(Plot {
                     title: format!("Ranking of the inputs for {}", cell.name),
                     caption: format!(
                         "{} with each input at the low and at the high end of its band, the others stated; largest effect first.",
                         cell.name
                     ),
-                    svg: Some(svg),
+                    svg,
                     problem: None,
                 });
                 SensPart {

@@ -22,6 +22,11 @@ pub const COMMANDS: &[(&str, &str, &str)] = &[
     ("forward", "", "make again the change /back took back"),
     ("show", "[digits N | polar | rect]", "how values are shown"),
     ("about", "NAME", "a function, unit or cell explained"),
+    (
+        "spread",
+        "NAME[,NAME…]",
+        "how far cells can move over the inputs' tolerances: worst case, Monte Carlo, sensitivities",
+    ),
     ("open", "FILE", "work on another sheet"),
     ("save", "[FILE]", "write the sheet (to FILE, or where it came from)"),
     (
@@ -50,6 +55,7 @@ impl Session {
             "forward" => self.forward(true),
             "show" => self.show_cmd(arg),
             "about" => Reply::ok(show::about(self, arg)),
+            "spread" => self.spread_cmd(arg),
             "open" => {
                 if arg.is_empty() {
                     return Reply::refused("/open needs a file name: /open FILE\n");
@@ -97,7 +103,7 @@ impl Session {
         }
     }
 
-    fn no_such_cell(&self, name: &str) -> String {
+    pub(super) fn no_such_cell(&self, name: &str) -> String {
         let names = self.engine.model.defs().map(|(_, c)| c.name.as_str());
         match did_you_mean(name, names) {
             Some(s) => format!("no cell `{name}` (did you mean `{s}`?)\n"),
