@@ -307,6 +307,11 @@ fn source_impedance_from_mva_or_ka_agrees() {
     assert_close!(re(value(&e, "a").norm()), re(33e3f64.powi(2) / 500e6), 1e-12);
     // an infinite bus has no impedance
     assert_eq!(ev("z_src(1 VA/0, 10, 11 kV)"), re(0.0));
+    // no fault level, no source: an open, ∞ Ω as `1 Ω / 0` is, not
+    // ∞ + j∞ shown at 45° whatever the X/R
+    assert_eq!(ev("z_src(0 VA, 10, 11 kV)"), re(f64::INFINITY));
+    assert_eq!(ev("z_src(0 A, 15, 11 kV)"), re(f64::INFINITY));
+    assert_eq!(ev("z_xr(1 Ω / 0, 10)"), re(f64::INFINITY));
 }
 
 // ---- unsymmetrical faults ----
@@ -402,6 +407,29 @@ fn voltage_unbalance_by_both_definitions() {
         "all arguments must have one dimension",
     );
     refused("x = unbalance_dev(1 Ω, 2 Ω, 3 Ω)", "must be voltages");
+}
+
+// Fortescue 1918: a balanced set in the other rotation (a-c-b) is all
+// negative sequence, V1 = 0, so |V2|/|V1| is undefined. Rounding leaves a
+// residue of about 1e-14 V in V1; the ratio over it (7.6e15) must not be
+// shown as an unbalance factor.
+#[test]
+fn a_negative_sequence_set_has_no_unbalance_factor() {
+    let u = ev("unbalance_seq(230 V, 230 V ∠ 120°, 230 V ∠ -120°)");
+    assert!(u.re.is_nan(), "got {u}");
+    nan_reported("x = unbalance_seq(230 V, 230 V ∠ 120°, 230 V ∠ -120°)\n");
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("acb.ohm");
+    std::fs::write(&path, "x = unbalance_seq(1 kV, 1 kV ∠ 120°, 1 kV ∠ -120°)\n").unwrap();
+    ohmsheet()
+        .arg("run")
+        .arg(&path)
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("negative-sequence set"));
+    // a large but real unbalance (V2 = 0.5·V1, Fortescue) is still given
+    let e = engine("abc = from_seq(0 V, 230 V, 115 V ∠ 10°)\nu = unbalance_seq(abc.a, abc.b, abc.c)");
+    assert_close!(value(&e, "u"), re(0.5), 1e-12);
 }
 
 // ---- AWG (ASTM B258) ----

@@ -133,7 +133,26 @@ fn lossy_line_limits() {
     let zc = C64::new(70.0, -3.0);
     assert_close!(value(&e, "open"), zc / gl.tanh(), 1e-12);
     assert_close!(value(&e, "short"), zc * gl.tanh(), 1e-12);
-    assert!(is_inf(value(&e, "open0")));
+    // zero length is the load itself: an open stays ∞ Ω, not ∞ − j∞
+    // (an angle taken from Zc)
+    assert_eq!(value(&e, "open0"), C64::new(f64::INFINITY, 0.0));
+}
+
+// Pozar §2.3 (from memory): a line a whole number of half waves long
+// repeats its load, so an open load stays an open (∞ Ω, not −∞ Ω at 180°,
+// a negative resistance), and a line of zero length is the load.
+#[test]
+fn an_open_load_through_half_waves_stays_an_open() {
+    let open = C64::new(f64::INFINITY, 0.0);
+    assert_eq!(ev("zin_lossless(1 Ω / 0, 50 Ω, 180°)"), open);
+    assert_eq!(ev("zin_lossless(1 Ω / 0, 50 Ω, 360°)"), open);
+    assert_eq!(ev("zin_lossless(1 Ω / 0, 50 Ω, 540°)"), open);
+    assert_eq!(ev("zin_lossless(1 Ω / 0, 50 Ω, pi * 1 rad)"), open);
+    assert_eq!(
+        ev("zin_line(1 Ω / 0, (320 - j50) Ω, (1e-7 + j1e-6) / 1 metre, 0 km)"),
+        open
+    );
+    assert_eq!(ev("zin_line(1 Ω / 0, 50 Ω, 0 / 1 metre, 3 metre)"), open);
 }
 
 // Telegrapher's line (Pozar §2.1, §2.7, from memory): lossless Zc = √(L/C)

@@ -124,7 +124,11 @@ pub fn z_of_xr(m: C64, xr: C64) -> C64 {
         return nan();
     }
     let (m, k) = (m.re, xr.re);
-    if k == 0.0 {
+    if m.is_infinite() && k.is_finite() {
+        // an open (no source, a fault level of 0): ∞ Ω as `1 Ω / 0` is,
+        // not ∞ + j∞, whose 45° says nothing about X/R
+        C64::new(f64::INFINITY, 0.0)
+    } else if k == 0.0 {
         C64::new(m, 0.0)
     } else if k.is_infinite() {
         C64::new(0.0, m)

@@ -321,6 +321,11 @@ pub fn zin_lossless(zl: C64, z0: C64, theta: f64) -> C64 {
         return NAN;
     }
     let (c, s) = cos_sin_snapped(theta);
+    if is_inf(zl) && s == 0.0 {
+        // a whole number of half waves repeats the load: an open stays
+        // the open it is (∞ Ω), not Z0·cos θ/(j·0) = −∞ Ω at 180°
+        return zl;
+    }
     if is_inf(zl) {
         // Z0·cos θ/(j·sin θ)
         return ops::div(z0 * c, C64::new(0.0, s));
@@ -381,6 +386,11 @@ pub fn zin_line(zl: C64, zc: C64, gamma: C64, len: f64) -> C64 {
         return NAN;
     }
     let t = tanh_c(gamma * len);
+    if t == C64::new(0.0, 0.0) {
+        // zero length: the load itself (an open stays ∞ Ω, not the
+        // Zc·∞ = ∞ − j∞ of Zc/tanh 0, whose angle is Zc's)
+        return zl;
+    }
     if is_inf(zl) {
         return ops::div(zc, t);
     }

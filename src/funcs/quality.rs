@@ -97,8 +97,24 @@ fn l_unbalance_seq(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operan
     let neg = e.bin(Op::Add, neg, n2);
     let m2 = e.un(Op::Abs, neg);
     let m1 = e.un(Op::Abs, pos);
-    vec![e.bin(Op::Div, m2, m1)]
+    let ratio = e.bin(Op::Div, m2, m1);
+    // A positive-sequence part within rounding of zero (a set written in
+    // the other rotation, a-c-b, or all zero) has no unbalance factor:
+    // NaN, explained by `dom_unbalance`, rather than |V2| over a rounding
+    // residue (7.6e15 for 230 V, 230 V ∠ 120°, 230 V ∠ −120°).
+    let m: Vec<Operand> = a.iter().map(|&v| e.un(Op::Abs, v)).collect();
+    let sum = e.bin(Op::Add, m[0], m[1]);
+    let sum = e.bin(Op::Add, sum, m[2]);
+    let rel = e.konst(SEQ_ZERO, 0.0);
+    let tol = e.bin(Op::Mul, sum, rel);
+    let ok = e.bin(Op::Gt, m1, tol);
+    let nan = e.konst(f64::NAN, 0.0);
+    vec![e.select(ok, ratio, nan)]
 }
+
+/// A sequence part smaller than this fraction of |Va| + |Vb| + |Vc| is
+/// rounding residue, not a component.
+const SEQ_ZERO: f64 = 1e-12;
 
 /// max |(|Vi| − avg)| / avg.
 fn l_unbalance_dev(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
@@ -123,6 +139,15 @@ fn l_unbalance_dev(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operan
 fn dom_unbalance(a: &[C64], _: &Ctx) -> Option<ArgError> {
     if a.iter().any(|x| x.re.is_nan() || x.im.is_nan()) {
         return Some(ArgError::whole("one of the values is NaN"));
+    }
+    let r = C64::new(-0.5, SQRT3 / 2.0);
+    let pos = (a[0] + r * a[1] + r * r * a[2]).norm();
+    let neg = (a[0] + r * r * a[1] + r * a[2]).norm();
+    let sum = a[0].norm() + a[1].norm() + a[2].norm();
+    if sum > 0.0 && sum.is_finite() && pos <= SEQ_ZERO * sum && neg > SEQ_ZERO * sum {
+        return Some(ArgError::whole(
+            "the three phasors are a negative-sequence set (a-c-b rotation): no positive-sequence part, so |V2|/|V1| is undefined; if the system turns a-c-b, swap the second and third arguments",
+        ));
     }
     Some(ArgError::whole(
         "the three values have no positive-sequence part (or average zero): unbalance is undefined",
