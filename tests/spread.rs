@@ -233,3 +233,25 @@ fn many_inputs_take_the_guided_corners() {
     assert!((w.cells[1].max.value - 1.0 / lo).abs() < 1e-9 / lo);
     assert!(w.cells[0].max.at_corner);
 }
+
+// A zero input (a short) may only grow, and its contribution to the
+// first-order standard deviation is still found: I = V/(Zs + Zl) with Zs
+// uniform on [0, 1] Ω: ∂I/∂Zs = −V/Zl² = −1 A/Ω at Zs = 0, u(Zs) = 1/√12 Ω
+// (GUM §4.3.7), so u(I) from Zs alone is 1/√12 A.
+#[test]
+fn a_zero_input_only_grows_and_still_contributes() {
+    let d = crate::common::errors("Zs = 0 Ω within 1 Ω\n");
+    assert_eq!(d[0].code, ohmsheet::diag::ErrorCode::BadInputTolerance);
+    let p = plan(
+        "Vs = 100 V\nZs = 0 Ω within 0 Ω .. +1 Ω\nZl = 10 Ω\nI = Vs / (Zs + Zl)\n",
+        &["I"],
+    );
+    let s = sensitivities(&p);
+    let row = &s.cells[0].rows[0];
+    assert!(row.mag.is_nan(), "no proportional sensitivity to a zero input");
+    let want = 1.0 / 12f64.sqrt();
+    assert!((s.cells[0].gum_std - want).abs() < 1e-8, "{}", s.cells[0].gum_std);
+    let w = worst_case(&p);
+    assert!((w.cells[0].min.value - 100.0 / 11.0).abs() < 1e-12);
+    assert_eq!(w.cells[0].max.value, 10.0);
+}

@@ -246,8 +246,8 @@ impl Analyses<'_> {
                     };
                     rows.push(vec![
                         format!("    {what}"),
-                        format!("{} {per}", num(r.mag, self.style)),
-                        r.angle.map_or("".into(), |a| format!("{} {per}", num(a, self.style))),
+                        per_unit(r.mag, per, self.style),
+                        r.angle.map_or("".into(), |a| per_unit(a, per, self.style)),
                         self.fmt(c, r.low),
                         self.fmt(c, r.high),
                     ]);
@@ -462,6 +462,15 @@ fn fin(x: f64) -> Value {
 fn num(x: f64, style: Style) -> String {
     if x.is_finite() {
         crate::units::format::fmt_sig(x, style.digits)
+    } else {
+        "—".into()
+    }
+}
+
+/// `0.25 per %`, or `—` where not defined.
+fn per_unit(x: f64, per: &str, style: Style) -> String {
+    if x.is_finite() {
+        format!("{} {per}", num(x, style))
     } else {
         "—".into()
     }

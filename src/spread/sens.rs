@@ -81,10 +81,14 @@ pub fn sensitivities(plan: &Plan) -> SensResult {
     let mut sets: Vec<Vec<C64>> = vec![nominal_vals.clone()];
     for &(k, dir) in &dirs {
         let x = plan.inputs[k].nominal;
+        let along = zero_scale(&plan.inputs[k], dir);
         for &h in &steps {
             let mut v = nominal_vals.clone();
-            v[k] = match dir {
-                Direction::Angle => x * C64::from_polar(1.0, h),
+            v[k] = match (dir, along) {
+                (Direction::Angle, _) => x * C64::from_polar(1.0, h),
+                // A zero value with an absolute band moves along the real
+                // axis: steps of h times the band.
+                (_, Some(s)) => C64::new(h * s, 0.0),
                 _ => x * (1.0 + h),
             };
             sets.push(v);
@@ -156,6 +160,7 @@ pub fn sensitivities(plan: &Plan) -> SensResult {
                 let u = input_std(input, dir);
                 let deriv = match (dir, &input.spread.mag, &input.spread.law) {
                     (Direction::Angle, _, _) => dm,
+                    _ if zero_in => zero_scale(input, dir).map_or(f64::NAN, |s| dm / s),
                     (_, _, Law::Among(_)) => dm,
                     (_, Some(MagBand::Absolute(_)), _) => {
                         if zero_in {
@@ -215,6 +220,18 @@ fn input_std(input: &super::Input, dir: Direction) -> f64 {
             (e.iter().map(|x| (x - m) * (x - m)).sum::<f64>() / e.len() as f64).sqrt()
         }
         _ => input.spread.std_dev(dir),
+    }
+}
+
+/// For a zero input with an absolute band on its magnitude, the scale of
+/// the steps along the real axis (the band's larger end).
+fn zero_scale(input: &super::Input, dir: Direction) -> Option<f64> {
+    match (dir, input.spread.mag) {
+        (Direction::Magnitude, Some(MagBand::Absolute(b))) if input.nominal.norm() == 0.0 => {
+            let s = b.lo.abs().max(b.hi.abs());
+            (s > 0.0).then_some(s)
+        }
+        _ => None,
     }
 }
 

@@ -140,13 +140,18 @@ impl Lowerer<'_> {
             Ok(MagBand::Relative(band))
         } else {
             if let Some(v) = nominal {
-                if band.lo < -v.norm() && v.norm() > 0.0 {
+                if band.lo < -v.norm() {
+                    let hint = if v.norm() == 0.0 {
+                        "a zero value can only grow: write the band `0 .. +A` (e.g. `within 0 Ω .. +1 Ω`)"
+                    } else {
+                        "a tolerance on the magnitude is at most the magnitude itself"
+                    };
                     return Err(Diagnostic::error(
                         ErrorCode::BadInputTolerance,
                         b.span,
                         format!("the band takes the magnitude of `{}` below zero", cell.name),
                     )
-                    .with_hint("a tolerance on the magnitude is at most the magnitude itself"));
+                    .with_hint(hint));
                 }
             }
             Ok(MagBand::Absolute(band))
