@@ -4,6 +4,7 @@
 mod common;
 
 mod batch_cases;
+mod batch_spread;
 mod block_lanes;
 mod check_cmd;
 mod check_formats;

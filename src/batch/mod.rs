@@ -15,12 +15,14 @@
 mod cases;
 mod reason;
 mod rows;
+mod spread;
 mod stream;
 mod values;
 
 pub use cases::{Cases, Row, Rows};
 pub use reason::nan_reason;
 pub use rows::{csv_line, RowError, Worker};
+pub use spread::{SpreadCols, SPREAD_FIELDS};
 #[cfg(unix)]
 pub use stream::run_stream_at;
 pub use stream::{chunks_in_flight, run_stream, StreamError, StreamOptions, Summary};
@@ -108,6 +110,8 @@ pub struct Plan {
     /// Significant digits of the written values; `None` writes each
     /// number with the digits it takes to read back to the same bits.
     digits: Option<usize>,
+    /// `--spread`: the analyses over the tolerances written per case.
+    pub spread: Option<Arc<SpreadCols>>,
 }
 
 const DEG: f64 = std::f64::consts::PI / 180.0;
@@ -498,13 +502,7 @@ impl Plan {
                 }
                 _ => return,
             };
-            let (scale, unit) = match display {
-                Some(u) => (u.factor, u.symbol.clone()),
-                None if q.kind == Kind::Angle => (DEG, "°".to_string()),
-                // 12 % is written 12 under `[%]`, not 0.12 under no unit
-                None if q.kind == Kind::Percent => (0.01, "%".to_string()),
-                None => (1.0, base_symbol(q)),
-            };
+            let (scale, unit) = written_in(q, display);
             // W and var are real numbers whatever the cases (P = Re S, Q = Im S):
             // one column, and a case that gives one an imaginary part (a
             // factor set complex) fails that cell instead of writing a
@@ -588,6 +586,7 @@ impl Plan {
             shown,
             form,
             digits: None,
+            spread: None,
         };
         plan.fix_constants();
         Ok(plan)
@@ -643,6 +642,7 @@ impl Plan {
                 format!("{name} [{unit}]")
             }
         };
+        let spread = self.spread.as_ref().map(|s| s.header()).unwrap_or_default();
         for s in &self.shown {
             if s.real {
                 h.push(with(s.label.clone(), &s.unit));
@@ -659,11 +659,26 @@ impl Plan {
                 }
             }
         }
+        h.extend(spread);
         h
     }
 
     fn n_out_fields(&self) -> usize {
-        self.shown.iter().map(|s| if s.real { 1 } else { 2 }).sum()
+        self.shown.iter().map(|s| if s.real { 1 } else { 2 }).sum::<usize>()
+            + self.spread.as_ref().map_or(0, |s| s.n_fields())
+    }
+}
+
+/// The factor a value of quantity `q` is divided by when written, and the
+/// unit named in its header: its display unit, degrees for an angle, % for
+/// a percentage (12 % is written 12 under `[%]`, not 0.12), else coherent
+/// SI units.
+pub fn written_in(q: Quantity, display: Option<&Unit>) -> (f64, String) {
+    match display {
+        Some(u) => (u.factor, u.symbol.clone()),
+        None if q.kind == Kind::Angle => (DEG, "°".to_string()),
+        None if q.kind == Kind::Percent => (0.01, "%".to_string()),
+        None => (1.0, base_symbol(q)),
     }
 }
 

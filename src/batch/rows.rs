@@ -25,6 +25,8 @@ pub struct RowError {
 pub struct Worker {
     block: Block,
     reader: ValueReader,
+    /// `--spread`: this worker's copy of the analyses' plan.
+    spread: Option<crate::spread::Plan>,
 }
 
 impl Worker {
@@ -32,12 +34,13 @@ impl Worker {
         Worker {
             block: Block::new(&plan.model.program),
             reader: ValueReader::default(),
+            spread: plan.spread.as_ref().map(|s| s.plan.clone()),
         }
     }
 }
 
 /// Append a CSV field, quoted when it must be.
-fn push_field(out: &mut Vec<u8>, f: &[u8]) {
+pub(super) fn push_field(out: &mut Vec<u8>, f: &[u8]) {
     if f.iter().any(|&b| matches!(b, b',' | b'"' | b'\n' | b'\r')) {
         out.push(b'"');
         for &b in f {
@@ -244,6 +247,20 @@ impl Plan {
                 } else {
                     self.write_shown(&w.block, lane, ncols > 0, out);
                 }
+                if let Some(sp) = w.spread.as_mut() {
+                    let slots: Vec<C64> = (0..w.block.n_slots()).map(|s| w.block.get(s as u32, lane)).collect();
+                    let text = |f: usize| String::from_utf8_lossy(rec.get(f).unwrap_or_default()).into_owned();
+                    let case = first_case + (g * LANES + lane) as u64 + 1;
+                    for (column, value, reason) in self.write_spread(sp, &slots, &text, out) {
+                        errors.push(RowError {
+                            case,
+                            line: rec.line(),
+                            column,
+                            value,
+                            reason,
+                        });
+                    }
+                }
                 out.push(b'\n');
             }
         }
@@ -262,7 +279,7 @@ impl Plan {
     }
 
     /// A number with the plan's digits, or in full.
-    fn push_number(&self, out: &mut Vec<u8>, x: f64, num: &mut zmij::Buffer) {
+    pub(super) fn push_number(&self, out: &mut Vec<u8>, x: f64, num: &mut zmij::Buffer) {
         match self.digits {
             Some(d) if x.is_finite() => push_short(out, crate::units::format::fmt_sig(x, d).as_bytes()),
             _ => push_num(out, x, num),

@@ -70,7 +70,21 @@ pub fn batch(a: &BatchArgs) -> i32 {
         ComplexArg::Polar => ComplexForm::Polar,
         ComplexArg::Both => ComplexForm::Both,
     };
-    let plan = match Plan::with_tags(Arc::new(model), &headers, &a.tag, a.show.as_deref(), form) {
+    if a.spread.is_some() && (a.samples == 0 || a.samples > super::spread::DEFAULT_MAX_SAMPLES) {
+        eprintln!(
+            "error: --samples {} is {}\n  hint: give 1 to {} samples per case",
+            a.samples,
+            if a.samples == 0 { "none" } else { "more than allowed" },
+            super::spread::DEFAULT_MAX_SAMPLES
+        );
+        return EXIT_ERROR;
+    }
+    let plan =
+        Plan::with_tags(Arc::new(model), &headers, &a.tag, a.show.as_deref(), form).and_then(|p| match &a.spread {
+            Some(names) => p.with_spread(names, a.samples, a.seed),
+            None => Ok(p),
+        });
+    let plan = match plan {
         Ok(p) => Arc::new(p.with_digits(a.digits.map(usize::from))),
         Err(d) => {
             let mut d = d;

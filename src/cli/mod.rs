@@ -185,7 +185,7 @@ Exit status: 0 every row computed, 1 some rows bad or cells not computed, 2 noth
 Examples:\n  \
 ohmsheet batch feeder.ohm --cases feeders.csv --out results.csv\n  \
 ohmsheet batch feeder.ohm --cases feeders.csv -o results.csv --show I,pf --complex polar --digits 6\n  \
-ohmsheet batch feeder.ohm --cases feeders.csv --out results.csv --tag Vl,note --allow-dir ../lib"
+ohmsheet batch feeder.ohm --cases feeders.csv -o results.csv --tag note --spread Vload,I --samples 20000"
 )]
 pub struct BatchArgs {
     /// The sheet to evaluate (a .ohm file)
@@ -221,6 +221,16 @@ pub struct BatchArgs {
     /// Significant digits of the written values (default: as many as it takes to read each back exactly)
     #[arg(long, value_parser = clap::value_parser!(u8).range(1..=17))]
     pub digits: Option<u8>,
+    /// For each case, the spread of these cells over the sheet's tolerances: worst min and max (and
+    /// where), Monte Carlo mean, standard deviation and 95 % interval (docs/tolerances.md)
+    #[arg(long, value_delimiter = ',', value_name = "CELL,…")]
+    pub spread: Option<Vec<String>>,
+    /// Monte Carlo samples per case (with --spread)
+    #[arg(long, default_value_t = 10_000, value_name = "N", requires = "spread")]
+    pub samples: usize,
+    /// Monte Carlo seed (with --spread): every case draws the same samples
+    #[arg(long, default_value_t = 1, value_name = "N", requires = "spread")]
+    pub seed: u64,
     #[command(flatten)]
     pub load: LoadArgs,
 }

@@ -169,6 +169,20 @@ impl Spread {
         }
     }
 
+    /// Why this tolerance cannot stand around `nominal` (a value other than
+    /// the one the sheet states, e.g. a batch case's): an absolute band
+    /// that would take the magnitude below zero. `None` when it can.
+    pub fn refuses(&self, nominal: C64) -> Option<&'static str> {
+        match self.mag {
+            Some(MagBand::Absolute(b)) if b.lo < -nominal.norm() => Some(if nominal.norm() == 0.0 {
+                "a zero value (a short) can only grow, and the band would take it below zero; give the input a band `0 .. +A`"
+            } else {
+                "the band would take the magnitude below zero (a tolerance on the magnitude is at most the magnitude itself)"
+            }),
+            _ => None,
+        }
+    }
+
     /// Every band is zero (or every listed value is the same).
     pub fn is_zero(&self) -> bool {
         match &self.law {

@@ -94,6 +94,7 @@ pub struct Shown {
 
 /// A sheet ready for the analyses: the toleranced inputs, the box's
 /// directions, the shown cells, and the code between them.
+#[derive(Clone)]
 pub struct Plan {
     pub inputs: Vec<Input>,
     pub dims: Vec<Dim>,
@@ -111,15 +112,23 @@ impl Plan {
     /// A plan over `engine` (evaluated, its model with `spreads`) for the
     /// shown `series`. Refused when the sheet states no tolerance.
     pub fn new(engine: &Engine, series: Vec<Series>) -> Result<Plan, Diagnostic> {
-        Plan::build(engine, series, &[])
+        Plan::build(engine, series, &[], &[])
+    }
+
+    /// A plan for a batch run, whose cases may set the inputs in `slots`
+    /// (any of them possibly complex): a cell such an input reaches is
+    /// judged by its magnitude unless it is real by construction. Each
+    /// case is then put in place with [`Plan::restate`].
+    pub fn for_cases(engine: &Engine, series: Vec<Series>, slots: &[u32]) -> Result<Plan, Diagnostic> {
+        Plan::build(engine, series, &[], slots)
     }
 
     /// A plan whose shown values are the margins of these checks.
     pub fn for_checks(engine: &Engine, checks: &[CellId]) -> Result<Plan, Diagnostic> {
-        Plan::build(engine, Vec::new(), checks)
+        Plan::build(engine, Vec::new(), checks, &[])
     }
 
-    fn build(engine: &Engine, series: Vec<Series>, checks: &[CellId]) -> Result<Plan, Diagnostic> {
+    fn build(engine: &Engine, series: Vec<Series>, checks: &[CellId], complex: &[u32]) -> Result<Plan, Diagnostic> {
         let m = &engine.model;
         if m.spreads.is_empty() {
             return Err(
@@ -155,6 +164,7 @@ impl Plan {
                     || matches!(&i.spread.law, crate::engine::tolerance::Law::Among(v) if v.iter().any(|z| z.im != 0.0))
             })
             .map(|i| i.slot)
+            .chain(complex.iter().copied())
             .collect();
         let real = crate::batch::real_slots(&m.program, &complex_inputs);
         let from: Vec<CellId> = inputs.iter().map(|i| i.cell).collect();
@@ -206,6 +216,36 @@ impl Plan {
             base,
             prog: m.program.clone(),
         })
+    }
+
+    /// Put the plan at another state of the sheet: `slots`, the whole
+    /// program run with other input values (a batch case). The inputs'
+    /// stated values and the shown cells' values there are taken from it;
+    /// the tolerances stay as the sheet states them. See
+    /// [`Plan::box_problem`] for a tolerance that cannot stand there.
+    pub fn restate(&mut self, slots: &[C64]) {
+        for (s, v) in slots.iter().enumerate() {
+            self.base.fill(s as u32, *v);
+        }
+        for i in &mut self.inputs {
+            i.nominal = slots[i.slot as usize];
+        }
+        for s in &mut self.shown {
+            let k = s.series.slot as usize;
+            s.nominal = match s.check {
+                Some(tol) => checks::margin(tol, slots[k], slots[k + 1], slots[k + 2]),
+                None => slots[k],
+            };
+        }
+    }
+
+    /// The first input whose tolerance cannot stand around its stated
+    /// value (after [`Plan::restate`]), and why.
+    pub fn box_problem(&self) -> Option<(usize, &'static str)> {
+        self.inputs
+            .iter()
+            .enumerate()
+            .find_map(|(k, i)| i.spread.refuses(i.nominal).map(|why| (k, why)))
     }
 
     /// The stated values: every offset zero, every choice at the listed
