@@ -226,7 +226,9 @@ pub fn table(r: &SweepResult, parts: Parts, style: Style) -> String {
         }
         for (s, col) in r.series.iter().zip(&r.values) {
             let f = format_value(col[p], s.quantity, s.display.as_ref(), style);
-            let complex = col[p].im != 0.0 || col[p].re < 0.0;
+            // A real value, negative ones too, has no polar form of its
+            // own (`format_value` gives the same text): shown once.
+            let complex = f.polar != f.rect;
             let text = match parts {
                 Parts::Polar if complex => f.polar,
                 Parts::Both if complex => format!("{} = {}", f.rect, f.polar),

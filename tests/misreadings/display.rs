@@ -119,6 +119,33 @@ fn real_values_are_not_shown_at_zero_degrees() {
     assert!(text.contains("5 ∠ 53.13° Ω"), "{text}");
 }
 
+// A sweep's table shows a negative real value once, as `run` does: found
+// by the issue-13 audit, where `sweep --show` printed `-6 Ω = -6 Ω` and a
+// leading power factor `-0.4961 = -0.4961` (the polar form of a real
+// value says nothing new: common practice).
+#[test]
+fn sweep_table_shows_negative_real_values_once() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("s.ohm");
+    std::fs::write(&sheet, "x = -3\ny = x * 2 Ω\nz = -4 V\nw = (2 Ω ∠ 90°) * x\n").unwrap();
+    for form in [None, Some("polar"), Some("both"), Some("rect")] {
+        let mut cmd = ohmsheet();
+        cmd.args(["sweep", "--vary", "x=-3..3", "--points", "3", "--show", "y,z,w"]);
+        if let Some(f) = form {
+            cmd.args(["--complex", f]);
+        }
+        let out = cmd.arg(&sheet).output().unwrap();
+        let text = String::from_utf8(out.stdout).unwrap();
+        assert!(!text.contains("-6 Ω = "), "{form:?}: {text}");
+        assert!(!text.contains("-4 V = "), "{form:?}: {text}");
+        assert!(text.contains("-6 Ω") && text.contains("-4 V"), "{form:?}: {text}");
+        // the phasor 2 Ω ∠ 90° · (−3) = −j6 Ω keeps its polar form where asked
+        if form != Some("rect") {
+            assert!(text.contains("6 ∠ -90° Ω"), "{form:?}: {text}");
+        }
+    }
+}
+
 // `/show polar` in a session shows a real value once, a phasor in polar.
 #[test]
 fn session_polar_view_shows_real_values_once() {
