@@ -3,6 +3,7 @@
 //! the language now gives. One file per family.
 
 mod angle;
+mod check_lines;
 mod complex_factor;
 mod display;
 mod infinite;

@@ -70,7 +70,13 @@ pub(super) fn syntax_error(line: &str, e: pest::error::Error<Rule>, file: FileId
         format!("unexpected `{found}`")
     };
     let mut d = Diagnostic::error(ErrorCode::Syntax, Span::new(file, offset + pos, offset + end), message);
-    if !expected.is_empty() {
+    // A `check` line that lacks `~=` or its tolerance: pest's furthest
+    // attempt is a unit after the last number, which misleads (issue-13
+    // audit: `check P <= 4.9 kW` said only "expected a unit").
+    let check_slip = check_slip(line);
+    if let Some((label, _)) = &check_slip {
+        d = d.with_label(*label);
+    } else if !expected.is_empty() {
         d = d.with_label(format!("expected {}", join_or(&expected)));
     }
     // Targeted hints for common slips.
@@ -81,6 +87,8 @@ pub(super) fn syntax_error(line: &str, e: pest::error::Error<Rule>, file: FileId
         .and_then(|c| crate::units::lookalike::hint(c.encode_utf8(&mut [0; 4])));
     if let Some(h) = look_alike {
         d = d.with_hint(h);
+    } else if let Some((_, hint)) = check_slip {
+        d = d.with_hint(hint);
     } else if rest.starts_with('*') && before.ends_with('*') {
         let first = offset + before.len() - 1;
         d = d
@@ -109,6 +117,36 @@ pub(super) fn syntax_error(line: &str, e: pest::error::Error<Rule>, file: FileId
         d = d.with_hint("`--` is the series operator; to subtract a negative write `a - -b` with a space");
     }
     d
+}
+
+/// A `check` line without `~=` (≈) or without `+-` (±) and a tolerance:
+/// the label and hint that say what a check needs.
+fn check_slip(line: &str) -> Option<(&'static str, &'static str)> {
+    let t = line.trim_start();
+    let rest = t.strip_prefix("check")?;
+    if rest.starts_with(|c: char| c == '_' || c.is_alphanumeric()) {
+        return None;
+    }
+    let code = match crate::syntax::parser::find_comment_start(rest) {
+        Some(k) => &rest[..k],
+        None => rest,
+    };
+    if !code.contains("~=") && !code.contains('≈') {
+        Some((
+            "a check needs `~=` (≈) and a tolerance",
+            "a check compares two values within a tolerance: `check A ~= B +- 1%` (a percentage of |B|) or \
+             `+- 0.5 Ω` (in B's unit); `<`, `<=`, `>`, `>=` give 1 or 0, so an inequality is checked as \
+             `check (A <= B) ~= 1 +- 0`",
+        ))
+    } else if !code.contains("+-") && !code.contains('±') {
+        Some((
+            "a check needs `+-` (±) and a tolerance",
+            "write the tolerance after the reference: `check A ~= B +- 1%` (a percentage of |B|) or \
+             `+- 0.5 Ω` (in B's unit)",
+        ))
+    } else {
+        None
+    }
 }
 
 /// The hint for `a ** b`: written with the user's operands where they are
