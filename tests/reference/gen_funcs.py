@@ -67,7 +67,7 @@ Sources:
   the angle atan(X/R); IEC 60909-0:2016 for the peak factor
   κ = 1.02 + 0.98·e^(−3R/X) and ip = κ·√2·Ik", Ik" = c·Un/(√3·|Zk|)
   (from memory).
-- Unsymmetrical faults: solved here in the phase domain with numpy (the
+- Unsymmetrical faults: solved here in the phase domain with mpmath (the
   Thevenin impedance matrix A·diag(Z0, Z1, Z2)·A⁻¹, the balanced
   pre-fault voltages and the fault's three constraints, a 6×6 linear
   system), not by the sequence-network connections ohmsheet uses.
@@ -83,7 +83,6 @@ import cmath
 import json
 
 import mpmath as mp
-import numpy as np
 
 mp.mp.dps = 50
 J = mp.mpc(0, 1)
@@ -491,18 +490,22 @@ def z_of_xr(m, xr):
 
 
 def fault_phase_solve(kind, vf, z1, z2, z0, zf):
-    """Fault currents by a phase-domain solve (numpy): unknowns Ia, Ib, Ic
-    and the bus voltages Va, Vb, Vc; V + Zabc·I = E, plus the fault's
-    three constraints. Returns (a, b, c, zero, pos, neg, ground)."""
-    a = np.exp(2j * np.pi / 3)
-    A = np.array([[1, 1, 1], [1, a * a, a], [1, a, a * a]])
-    zabc = A @ np.diag([z0, z1, z2]) @ np.linalg.inv(A)
-    e = np.array([vf, a * a * vf, a * vf])
-    m = np.zeros((6, 6), dtype=complex)
-    rhs = np.zeros(6, dtype=complex)
-    m[0:3, 0:3] = zabc
-    m[0:3, 3:6] = np.eye(3)
-    rhs[0:3] = e
+    """Fault currents by a phase-domain solve (mpmath, 50 digits, so the
+    output is the same on every machine): unknowns Ia, Ib, Ic and the bus
+    voltages Va, Vb, Vc; V + Zabc·I = E, plus the fault's three
+    constraints. Returns (a, b, c, zero, pos, neg, ground)."""
+    a = A120
+    A = mp.matrix([[1, 1, 1], [1, a**2, a], [1, a, a**2]])
+    Ai = mp.inverse(A)
+    zabc = A * mp.diag([z0, z1, z2]) * Ai
+    e = [vf, a**2 * vf, a * vf]
+    m = mp.zeros(6, 6)
+    rhs = mp.zeros(6, 1)
+    for r in range(3):
+        for c in range(3):
+            m[r, c] = zabc[r, c]
+        m[r, 3 + r] = 1
+        rhs[r] = e[r]
     if kind == "slg":  # Va = Zf·Ia, Ib = Ic = 0
         m[3, 3], m[3, 0] = 1, -zf
         m[4, 1] = 1
@@ -515,17 +518,17 @@ def fault_phase_solve(kind, vf, z1, z2, z0, zf):
         m[3, 0] = 1
         m[4, 4], m[4, 5] = 1, -1
         m[5, 4], m[5, 1], m[5, 2] = 1, -zf, -zf
-    x = np.linalg.solve(m, rhs)
-    i = x[0:3]
-    s = np.linalg.inv(A) @ i
-    return (i[0], i[1], i[2], s[0], s[1], s[2], i.sum())
+    x = mp.lu_solve(m, rhs)
+    i = [x[0], x[1], x[2]]
+    s = Ai * mp.matrix(i)
+    return (i[0], i[1], i[2], s[0], s[1], s[2], i[0] + i[1] + i[2])
 
 
 FIELDS = ["a", "b", "c", "zero", "pos", "neg", "ground"]
 
 
 def fault_cases(call, kind, vf, z1, z2, z0, zf, what):
-    got = fault_phase_solve(kind, complex(vf), complex(z1), complex(z2), complex(z0), complex(zf))
+    got = fault_phase_solve(kind, mp.mpc(vf), mp.mpc(z1), mp.mpc(z2), mp.mpc(z0), mp.mpc(zf))
     # the currents that are exactly zero compare absolutely, so leave them out
     # of the relative check and test them in tests/faults.rs instead
     return [(f"{call}.{n}", mp.mpc(v), what) for n, v in zip(FIELDS, got) if abs(v) > 1e-9 * abs(got[4])]
@@ -622,13 +625,13 @@ STUDY_CASES = [
     ("awg0(1).d", awg_d(0), "1/0 = 0"),
     ("awg(36).d", mp.mpf("0.005") * INCH, "ASTM B258: 36 is 0.005 in"),
 ]
-STUDY_CASES += fault_cases("fault_slg(VF, Z1F, Z1F, Z0F, 0 Ω)", "slg", VF, Z1F, Z1F, Z0F, 0, "SLG, phase-domain solve (numpy)")
-STUDY_CASES += fault_cases("fault_slg(VF, Z1F, Z1F, Z0F, 0.5 Ω)", "slg", VF, Z1F, Z1F, Z0F, mp.mpf("0.5"), "SLG through 0.5 Ω (numpy)")
-STUDY_CASES += fault_cases("fault_ll(VF, Z1F, Z1F, 0 Ω)", "ll", VF, Z1F, Z1F, Z0F, 0, "LL, phase-domain solve (numpy)")
-STUDY_CASES += fault_cases("fault_ll(VF, Z1F, Z1F * 1.1, 0.02 Ω)", "ll", VF, Z1F, Z1F * mp.mpf("1.1"), Z0F, mp.mpf("0.02"), "LL through 0.02 Ω, Z2 ≠ Z1 (numpy)")
-STUDY_CASES += fault_cases("fault_dlg(VF, Z1F, Z1F, Z0F, 0 Ω)", "dlg", VF, Z1F, Z1F, Z0F, 0, "DLG, phase-domain solve (numpy)")
-STUDY_CASES += fault_cases("fault_dlg(VF, Z1F, Z1F * 1.1, Z0F, 0.3 Ω)", "dlg", VF, Z1F, Z1F * mp.mpf("1.1"), Z0F, mp.mpf("0.3"), "DLG through 0.3 Ω (numpy)")
-STUDY_CASES += fault_cases("fault_dlg(0.98 pu, j0.12 pu, j0.14 pu, (0.02 + j0.3) pu, 0.1 pu)", "dlg", mp.mpf("0.98"), 0.12j, 0.14j, mp.mpc("0.02", "0.3"), mp.mpf("0.1"), "DLG in per-unit (numpy)")
+STUDY_CASES += fault_cases("fault_slg(VF, Z1F, Z1F, Z0F, 0 Ω)", "slg", VF, Z1F, Z1F, Z0F, 0, "SLG, phase-domain solve (mpmath)")
+STUDY_CASES += fault_cases("fault_slg(VF, Z1F, Z1F, Z0F, 0.5 Ω)", "slg", VF, Z1F, Z1F, Z0F, mp.mpf("0.5"), "SLG through 0.5 Ω (mpmath)")
+STUDY_CASES += fault_cases("fault_ll(VF, Z1F, Z1F, 0 Ω)", "ll", VF, Z1F, Z1F, Z0F, 0, "LL, phase-domain solve (mpmath)")
+STUDY_CASES += fault_cases("fault_ll(VF, Z1F, Z1F * 1.1, 0.02 Ω)", "ll", VF, Z1F, Z1F * mp.mpf("1.1"), Z0F, mp.mpf("0.02"), "LL through 0.02 Ω, Z2 ≠ Z1 (mpmath)")
+STUDY_CASES += fault_cases("fault_dlg(VF, Z1F, Z1F, Z0F, 0 Ω)", "dlg", VF, Z1F, Z1F, Z0F, 0, "DLG, phase-domain solve (mpmath)")
+STUDY_CASES += fault_cases("fault_dlg(VF, Z1F, Z1F * 1.1, Z0F, 0.3 Ω)", "dlg", VF, Z1F, Z1F * mp.mpf("1.1"), Z0F, mp.mpf("0.3"), "DLG through 0.3 Ω (mpmath)")
+STUDY_CASES += fault_cases("fault_dlg(0.98 pu, j0.12 pu, j0.14 pu, (0.02 + j0.3) pu, 0.1 pu)", "dlg", mp.mpf("0.98"), mp.mpc(0, "0.12"), mp.mpc(0, "0.14"), mp.mpc("0.02", "0.3"), mp.mpf("0.1"), "DLG in per-unit (mpmath)")
 CASES += STUDY_CASES
 
 STUDY_PREAMBLE = f"""
