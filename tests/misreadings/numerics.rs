@@ -318,6 +318,40 @@ fn the_listing_and_the_docs_state_the_power_factor_convention() {
     assert!(docs.contains("`pf_angle(S)` is φ = atan(Q/|P|)"));
 }
 
+// A report states the convention under each step that uses it, so a
+// source's +0.8 (P < 0, Q > 0) is not read as a load's (found by the
+// issue-13 audit: the report showed `pf = 0.8` and `lag = 1` for a
+// generator with no word of the convention). Values: the 3-4-5 triangle.
+#[test]
+fn a_report_states_the_power_factor_convention_where_it_is_used() {
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("gen.ohm");
+    std::fs::write(
+        &sheet,
+        "S = (-800 + j600) kVA\nk = pf(S)\nparts = s_parts(S)\nphi = pf_angle(S)\npf1 = 0.9\nQ = 100 kvar * pf1\n",
+    )
+    .unwrap();
+    for ext in ["md", "html"] {
+        let out = dir.path().join(format!("gen.{ext}"));
+        ohmsheet()
+            .arg("report")
+            .arg(&sheet)
+            .arg("-o")
+            .arg(&out)
+            .assert()
+            .code(0);
+        let text = std::fs::read_to_string(&out).unwrap();
+        // `<` is escaped in each layout (`\<`, `&lt;`)
+        let note = "Power factor signed by lead/lag: + lagging (Q ≥ 0), − leading (Q ";
+        // under k, parts and phi; not under Q, which only names `pf1`
+        assert_eq!(text.matches(note).count(), 3, "{ext}: {text}");
+        assert!(
+            text.contains("0) alike; the direction of real power is the sign of P"),
+            "{ext}: {text}"
+        );
+    }
+}
+
 // ---- out-of-range arguments (item 6) ----
 //
 // Each function with a domain says which argument is out of range and

@@ -381,6 +381,9 @@ pub fn build(sheet: &Sheet, engine: &Engine, overrides: &[String], style: Style)
             });
             continue;
         }
+        if let Some(n) = pf_convention_note(&c.formula) {
+            notes.push(n.to_string());
+        }
         let substituted = match exprs.get(&c.name_span) {
             Some(e) => sub.expr(e, Pos::Top),
             None => c.formula.clone(),
@@ -555,4 +558,44 @@ fn value(z: C64, q: Quantity, display: Option<&Unit>, style: Style) -> Value {
 /// The report as JSON: the same content, for other programs.
 pub fn json(r: &Report) -> String {
     serde_json::to_string_pretty(r).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"))
+}
+
+/// The power-factor convention, stated under a step that uses `pf`,
+/// `pf_angle` or `s_parts`, so a source's (P < 0) power factor is not read
+/// as a load's (issue 13: the convention is named in the listing, the docs
+/// and the report alike; docs/functions.md).
+fn pf_convention_note(formula: &str) -> Option<&'static str> {
+    let calls = |name: &str| {
+        formula.match_indices(name).any(|(k, _)| {
+            let before = formula[..k].chars().next_back();
+            let after = formula[k + name.len()..].trim_start();
+            !before.is_some_and(|c| c.is_alphanumeric() || c == '_' || c == '.') && after.starts_with('(')
+        })
+    };
+    (calls("pf") || calls("pf_angle") || calls("s_parts")).then_some(
+        "Power factor signed by lead/lag: + lagging (Q ≥ 0), − leading (Q < 0), for a load and a \
+         source (P < 0) alike; the direction of real power is the sign of P, not of pf. \
+         pf_angle φ = atan(Q/|P|), positive lagging.",
+    )
+}
+
+#[cfg(test)]
+mod pf_note_tests {
+    use super::pf_convention_note;
+
+    #[test]
+    fn the_note_follows_the_calls_only() {
+        for f in [
+            "pf(S)",
+            "pf (S) * 2",
+            "1 - pf_angle(S)",
+            "s_parts(V * conj(I))",
+            "abs(pf(S))",
+        ] {
+            assert!(pf_convention_note(f).is_some(), "{f}");
+        }
+        for f in ["pf", "pf1 * 2", "q_pfc(P, pf1, pf2)", "mypf(S)", "x.pf", "S.pf_angle"] {
+            assert!(pf_convention_note(f).is_none(), "{f}");
+        }
+    }
 }
