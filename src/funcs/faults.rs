@@ -477,7 +477,7 @@ fn dom_sc_peak(a: &[C64], _: &Ctx) -> Option<ArgError> {
 }
 
 pub fn funcs() -> Vec<Builtin> {
-    let fault = "symmetrical components (Fortescue 1918), the sequence networks connected for the fault as in standard power-systems texts (from memory); checked against a phase-domain solve with numpy";
+    let fault = "symmetrical components (Fortescue 1918), the sequence networks connected for the fault as in standard power-systems texts (from memory); checked against a phase-domain solve in mpmath";
     vec![
         scalar_fn(
             "z_xr",

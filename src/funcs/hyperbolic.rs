@@ -59,9 +59,37 @@ pub fn tanh(z: C64) -> C64 {
     let z = clean(z);
     if z.im == 0.0 {
         real(z.re.tanh())
+    } else if z.re.abs() > 20.0 {
+        // (sinh 2a + j·sin 2b)/(cosh 2a + cos 2b) with cosh 2a beyond
+        // 1e17: ±1 + j·2·sin 2b·e^(−2|a|); the quotient itself overflows
+        // (∞/∞) for |a| > 355.
+        C64::new(z.re.signum(), 2.0 * (2.0 * z.im).sin() * (-2.0 * z.re.abs()).exp())
     } else {
         z.tanh()
     }
+}
+
+/// ln(1 + w), accurate when |w| is small (where 1 + w would round w away).
+fn ln_1p(w: C64) -> C64 {
+    if w.norm() < 0.5 {
+        let m = (w.re * (2.0 + w.re) + w.im * w.im).ln_1p() / 2.0;
+        C64::new(m, w.im.atan2(1.0 + w.re))
+    } else {
+        (C64::new(1.0, 0.0) + w).ln()
+    }
+}
+
+/// arcsinh z for Re z > 0: ln(z + √(z² + 1)) written as
+/// ln(1 + z + z²/(1 + √(z² + 1))), which keeps small values exact (the
+/// plain form loses them in 1 + z), and ln 2z beyond |z| = 1e8, where z²
+/// could overflow and the rest is below a double's precision.
+fn asinh_right(z: C64) -> C64 {
+    if z.norm() > 1e8 {
+        return z.ln() + std::f64::consts::LN_2;
+    }
+    let one = C64::new(1.0, 0.0);
+    let s = (z * z + one).sqrt();
+    ln_1p(z + z * z / (one + s))
 }
 
 pub fn asinh(z: C64) -> C64 {
@@ -79,7 +107,13 @@ pub fn asinh(z: C64) -> C64 {
         let m = (y.abs() + (y * y - 1.0).sqrt()).ln();
         return C64::new(m.copysign(y), FRAC_PI_2.copysign(y));
     }
-    z.asinh()
+    // odd: the left half plane from the right one (off the cuts, which
+    // lie on the imaginary axis, handled above)
+    if z.re < 0.0 {
+        -asinh_right(-z)
+    } else {
+        asinh_right(z)
+    }
 }
 
 pub fn acosh(z: C64) -> C64 {
@@ -110,7 +144,8 @@ pub fn atanh(z: C64) -> C64 {
         // ½ ln((1 + x)/(1 − x)) of a negative real: + jπ/2 on both cuts.
         return C64::new(0.5 * ((1.0 + x) / (x - 1.0)).ln(), FRAC_PI_2);
     }
-    z.atanh()
+    // ½(ln(1 + z) − ln(1 − z)), each logarithm accurate for small z
+    (ln_1p(z) - ln_1p(-z)) / 2.0
 }
 
 macro_rules! scalar1 {
@@ -152,13 +187,26 @@ fn dom_any(a: &[C64], _: &Ctx) -> Option<ArgError> {
     }
 }
 
+/// sinh and cosh grow as e^|Re x|/2: beyond |Re x| ≈ 710 the value
+/// exceeds the largest double, which is said rather than shown as ∞.
+fn dom_grows(a: &[C64], c: &Ctx) -> Option<ArgError> {
+    dom_any(a, c).or_else(|| {
+        (a[0].re.abs() > 709.0).then(|| {
+            ArgError::at(
+                0,
+                "the value overflows: sinh and cosh exceed the largest number (about 1.8e308) beyond |re(x)| = 710",
+            )
+        })
+    })
+}
+
 pub fn funcs() -> Vec<Builtin> {
     let src =
         "DLMF §4.28 and §4.37 (principal branches; sections from memory); tested against mpmath and Python's cmath";
     let f = |name, summary, eval| scalar_fn(name, summary, X, "1", plain_type, eval).with_source(src);
     vec![
-        f("sinh", "hyperbolic sine, complex", s_sinh as ScalarFn).with_domain(dom_any),
-        f("cosh", "hyperbolic cosine, complex", s_cosh).with_domain(dom_any),
+        f("sinh", "hyperbolic sine, complex", s_sinh as ScalarFn).with_domain(dom_grows),
+        f("cosh", "hyperbolic cosine, complex", s_cosh).with_domain(dom_grows),
         f("tanh", "hyperbolic tangent, complex", s_tanh).with_domain(dom_any),
         f(
             "asinh",

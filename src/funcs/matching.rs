@@ -130,7 +130,12 @@ fn s_lmatch_z(a: &[C64], out: &mut [C64], _: &Ctx) {
     } else {
         f64::NAN
     };
-    if a[0].im != 0.0 || sign.is_nan() {
+    // Outside the domain (d_lmatch_z) the formulas still give numbers — a
+    // lossless load (R = 0) gives a shunt of 0 Ω, a short across the
+    // source — so refuse here, and let the domain check say why.
+    let rs_ok = a[0].im == 0.0 && a[0].re > 0.0 && a[0].re.is_finite();
+    let zl_ok = a[1].re > 0.0 && a[1].re.is_finite() && a[1].im.is_finite();
+    if !rs_ok || !zl_ok || sign.is_nan() {
         out.fill(C64::new(f64::NAN, f64::NAN));
         return;
     }

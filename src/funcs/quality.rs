@@ -58,12 +58,24 @@ fn l_h_res(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
     let s = e.un(Op::Abs, a[0]);
     let q = e.un(Op::Abs, a[1]);
     let r = e.bin(Op::Div, s, q);
-    vec![e.un(Op::Sqrt, r)]
+    let h = e.un(Op::Sqrt, r);
+    // A fault level of 0 is no source: refused (NaN, explained by
+    // dom_h_res), never shown as an order of 0.
+    let zero = e.konst(0.0, 0.0);
+    let none = e.bin(Op::Le, s, zero);
+    let nan = e.konst(f64::NAN, f64::NAN);
+    vec![e.select(none, nan, h)]
 }
 
 fn dom_h_res(a: &[C64], _: &Ctx) -> Option<ArgError> {
     if a[0].re == 0.0 && a[0].im == 0.0 {
         return Some(ArgError::at(0, "a fault level of zero: no source to resonate with"));
+    }
+    if a[1].re == 0.0 && a[1].im == 0.0 {
+        return Some(ArgError::at(
+            1,
+            "a bank of zero: nothing to resonate (the order would be ∞)",
+        ));
     }
     None
 }
