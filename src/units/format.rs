@@ -262,7 +262,10 @@ pub fn format_value(z: C64, q: Quantity, display: Option<&Unit>, style: Style) -
     // A real value has no polar form of its own: `3 Ω`, not `3 ∠ 0° Ω`,
     // and `-5 V`, not `5 ∠ 180° V` (common practice: a phasor angle is
     // given for a phasor).
-    let polar = if is_real(scaled) {
+    // Nor has an angle with an imaginary part (`acos(1.5)` is -j55.14°):
+    // a magnitude and an angle of an angle (`55.14 ∠ -90° °`) would only
+    // mislead.
+    let polar = if is_real(scaled) || is_angle_unit {
         rect.clone()
     } else {
         join_unit(&polar_string(scaled, style.digits), &unit, is_angle_unit)

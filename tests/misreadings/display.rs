@@ -146,6 +146,21 @@ fn sweep_table_shows_negative_real_values_once() {
     }
 }
 
+// An angle with an imaginary part (the principal acos of 1.5 is
+// −j0.9624 rad = −j55.14°: DLMF §4.23, cmath.acos(1.5)) is shown once, in
+// rectangular form, never as `55.14 ∠ -90° °` (found by the issue-13
+// audit).
+#[test]
+fn a_complex_angle_has_no_polar_form() {
+    let r = row("a = acos(1.5)\n", "a");
+    assert_eq!(r.display, "-j55.14°");
+    assert_eq!(r.polar, r.display);
+    let r = row("b = asin(-4)\n", "b");
+    // cmath.asin(-4) = −π/2 + j2.0634 rad = −90° + j118.2°
+    assert_eq!(r.display, "-90 + j118.2 °");
+    assert_eq!(r.polar, r.display);
+}
+
 // `/show polar` in a session shows a real value once, a phasor in polar.
 #[test]
 fn session_polar_view_shows_real_values_once() {
