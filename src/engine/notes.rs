@@ -61,11 +61,21 @@ fn walk(e: &Expr, out: &mut Vec<Diagnostic>) {
 /// The note for `f(arg)` when `arg` is a plain whole number beyond 2π,
 /// with or without a sign.
 fn degrees_as_radians(f: &str, arg: &Expr) -> Option<Diagnostic> {
-    let (sign, lit) = match &arg.kind {
-        ExprKind::Unary(UnOp::Neg, x) => ("-", x.as_ref()),
-        ExprKind::Unary(UnOp::Pos, x) => ("", x.as_ref()),
-        _ => ("", arg),
-    };
+    // Signs and brackets around the number (`-(60)`, `(30)`) change
+    // nothing: it is still a plain literal (issue-13 audit).
+    let mut negative = false;
+    let mut lit = arg;
+    loop {
+        match &lit.kind {
+            ExprKind::Unary(UnOp::Neg, x) => {
+                negative = !negative;
+                lit = x.as_ref();
+            }
+            ExprKind::Unary(UnOp::Pos, x) | ExprKind::Paren(x, None) => lit = x.as_ref(),
+            _ => break,
+        }
+    }
+    let sign = if negative { "-" } else { "" };
     let ExprKind::Number {
         value,
         imag: false,

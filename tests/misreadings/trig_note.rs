@@ -22,6 +22,10 @@ fn whole_numbers_beyond_two_pi_get_a_note() {
         ("x = sin(-45) + tan(90)", 2),
         ("x = cos(7)", 1),
         ("x = 2 * cos(+360)", 1),
+        // brackets and signs around the literal (issue-13 audit: `cos(-(60))` had no note)
+        ("x = cos(-(60))", 1),
+        ("x = sin((45))", 1),
+        ("x = tan(-(-(90)))", 1),
     ] {
         let d = notes(src);
         assert_eq!(d.len(), n, "{src}: {d:?}");
@@ -47,6 +51,8 @@ fn no_note_where_the_meaning_is_clear() {
         "t = 30\nx = cos(t)",
         "x = acos(30)",
         "x = cosh(30)",
+        "x = cos((30) rad)",
+        "x = cos(-(30°))",
     ] {
         let sheet = ohmsheet::sheet::Sheet::from_text("t.ohm", src);
         let m = ohmsheet::engine::compile(&sheet);
