@@ -337,6 +337,31 @@ pub fn gamma(a: &[C64], _: &Ctx) -> Option<ArgError> {
     })
 }
 
+/// `vswr`: |Γ| > 1 as `gamma`; at |Γ| = 1 the value is infinite, and the
+/// error says why rather than only that it is.
+pub fn vswr(a: &[C64], c: &Ctx) -> Option<ArgError> {
+    gamma(a, c).or_else(|| {
+        (ops::abs(a[0]) == 1.0).then(|| {
+            ArgError::at(
+                0,
+                "|Γ| = 1: the whole wave is reflected (an open, a short or a pure reactance), so the standing-wave ratio is infinite",
+            )
+        })
+    })
+}
+
+/// `return_loss`: |Γ| > 1 as `gamma`; Γ = 0 gives +∞ dB, said so.
+pub fn return_loss(a: &[C64], c: &Ctx) -> Option<ArgError> {
+    gamma(a, c).or_else(|| {
+        is_zero(a[0]).then(|| {
+            ArgError::at(
+                0,
+                "Γ = 0: a matched load reflects nothing, so the return loss is infinite (+∞ dB)",
+            )
+        })
+    })
+}
+
 pub fn db(a: &[C64], _: &Ctx) -> Option<ArgError> {
     if is_zero(a[0]) {
         return Some(ArgError::at(0, "a ratio of 0 is −∞ dB"));

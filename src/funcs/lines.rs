@@ -536,7 +536,7 @@ pub fn funcs() -> Vec<Builtin> {
             ty_gamma_in,
             s_vswr,
         )
-        .with_domain(super::domains::gamma)
+        .with_domain(super::domains::vswr)
         .with_source("IEEE Std 100 (standing-wave ratio); Pozar, Microwave Engineering, §2.3 (from memory)")
         .with_real_result(),
         scalar_fn(
@@ -547,7 +547,7 @@ pub fn funcs() -> Vec<Builtin> {
             ty_return_loss,
             s_return_loss,
         )
-        .with_domain(super::domains::gamma)
+        .with_domain(super::domains::return_loss)
         .with_source("IEEE Std 100 (return loss); IEC 60027-3 (root-power level); from memory")
         .with_real_result(),
         scalar_fn(

@@ -639,7 +639,9 @@ REFUSED = [
     ("lmatch_z(50 Ω, j30 Ω, 1)", "j30 Ω", "ZL", "a lossless load cannot be matched"),
     ("awg(3.5)", "3.5", "n", "ASTM B258 gauges are whole numbers"),
 
-    ("h_res(250 MVA, 0 var)", "0 var", "Qc", "no bank: no resonance (h = ∞)"),]
+    ("h_res(250 MVA, 0 var)", "0 var", "Qc", "no bank: no resonance (h = ∞)"),
+    ("vswr(-1)", "-1", "G", "Pozar ch. 2: |Γ| = 1 gives an infinite VSWR, said so"),
+    ("return_loss(0)", "0", "G", "IEEE Std 100: a matched load, Γ = 0, gives +∞ dB, said so"),]
 
 PREAMBLE = f"""
 VF = {mp.nstr(VF, 25)} V
