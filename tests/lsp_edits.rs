@@ -10,8 +10,11 @@
 //! that the incremental path never drifts from it.
 //!
 //! The same is checked end to end through `ohmsheet lsp`: a document
-//! edited step by step and a second document opened with the final text
-//! get the same hints and diagnostics.
+//! edited step by step, with requests of every kind at random places
+//! between the keystrokes (some cancelled at once), and a second document
+//! opened with the final text get the same hints and diagnostics; every
+//! request is answered, none with an internal error, the server's standard
+//! error tells of no panic, and it answers `shutdown` and exits on `exit`.
 
 use proptest::prelude::*;
 use serde_json::{json, Value};
@@ -62,7 +65,8 @@ fn snippet() -> impl Strategy<Value = String> {
         2 => proptest::sample::select(vec![
             " Ω", "∠", " µF", "😀", "# 😀 ∠ Ω µ", "\n", "R", "(", ")", "+ j", "abs(", "= ", " V", "*", "/",
             "x = 2 V\n", "check V ~= 230 V +- 1%\n", "", "Z", "I", "S2 = S * 2\n", "6 + j10 Ω", "\r\n",
-            "@title \"bench\"\n", "network n at 50 Hz\n",
+            "@title \"bench\"\n", "network n at 50 Hz\n", "  B = branch(a, ground, Z)\n", "end\n", "°", "µ",
+            "Ω",
         ])
         .prop_map(str::to_string),
     ]
@@ -194,24 +198,97 @@ fn answers(c: &mut Client, u: &str, version: i64) -> (Vec<Value>, Vec<Value>) {
     (d, h)
 }
 
+/// A request an editor may send between keystrokes, at a place that may
+/// lie past a line's end, past the last line or inside a surrogate pair:
+/// (which request, line, UTF-16 column, cancelled at once).
+type Ask = (usize, u32, u32, bool);
+
+fn ask() -> impl Strategy<Value = Option<Ask>> {
+    proptest::option::weighted(0.5, (0usize..11, 0u32..14, 0u32..40, proptest::bool::weighted(0.25)))
+}
+
+/// Send request `a` about document `u`; its id.
+fn send_ask(c: &mut Client, u: &str, (which, line, character, cancel): Ask) -> i64 {
+    let doc = json!({"uri": u});
+    let at = json!({"line": line, "character": character});
+    let range = json!({"start": {"line": line.saturating_sub(2), "character": 0}, "end": at});
+    let (method, params) = match which {
+        0 => ("textDocument/hover", json!({"textDocument": doc, "position": at})),
+        1 => ("textDocument/completion", json!({"textDocument": doc, "position": at})),
+        2 => (
+            "textDocument/signatureHelp",
+            json!({"textDocument": doc, "position": at}),
+        ),
+        3 => ("textDocument/definition", json!({"textDocument": doc, "position": at})),
+        4 => (
+            "textDocument/references",
+            json!({"textDocument": doc, "position": at, "context": {"includeDeclaration": true}}),
+        ),
+        5 => (
+            "textDocument/prepareRename",
+            json!({"textDocument": doc, "position": at}),
+        ),
+        6 => (
+            "textDocument/rename",
+            json!({"textDocument": doc, "position": at, "newName": "Zq"}),
+        ),
+        7 => (
+            "textDocument/codeAction",
+            json!({"textDocument": doc, "range": range, "context": {"diagnostics": []}}),
+        ),
+        8 => ("textDocument/documentSymbol", json!({"textDocument": doc})),
+        9 => ("textDocument/semanticTokens/full", json!({"textDocument": doc})),
+        _ => ("textDocument/inlayHint", json!({"textDocument": doc, "range": range})),
+    };
+    let id = c.send_request(method, params);
+    if cancel {
+        c.notify("$/cancelRequest", json!({"id": id}));
+    }
+    id
+}
+
 proptest! {
     #![proptest_config(cfg(12))]
 
     #[test]
-    fn through_the_server_an_edited_document_answers_as_a_fresh_one(changes in proptest::collection::vec(change(), 1..16)) {
+    fn through_the_server_an_edited_document_answers_as_a_fresh_one(
+        steps in proptest::collection::vec((change(), ask()), 1..16)
+    ) {
         // The same file (messages name it) in two servers: one edited step
-        // by step, one given the final text.
+        // by step, with requests of every kind between the keystrokes (some
+        // cancelled at once), one given the final text.
         let dir = tempfile::tempdir().unwrap();
+        let logs = tempfile::tempdir().unwrap();
+        let log = logs.path().join("stderr.txt");
         let u = uri(&dir.path().join("bench.ohm"));
-        let mut c = Client::start(dir.path(), json!({}));
+        let mut c = Client::start_logged(dir.path(), &[], json!({}), &log);
         c.open(&u, BASE);
         c.diagnostics(&u, 1);
         let mut text = BASE.to_string();
-        for (k, ch) in changes.iter().enumerate() {
+        let mut asked = Vec::new();
+        for (k, (ch, a)) in steps.iter().enumerate() {
             text = apply(&text, ch);
             c.edit(&u, k as i64 + 2, ch.from, ch.to, &ch.text);
+            if let Some(a) = a {
+                asked.push((send_ask(&mut c, &u, *a), *a));
+            }
         }
-        let (d1, h1) = answers(&mut c, &u, changes.len() as i64 + 1);
+        for (id, a) in asked {
+            let r = c.response(id);
+            // Every request is answered: a result, a refusal (a rename or
+            // prepareRename away from a cell: RequestFailed, -32803) or,
+            // when cancelled, RequestCancelled (-32800); never an internal
+            // error (-32603, a handler that panicked). LSP 3.17 error codes.
+            let code = r["error"]["code"].as_i64();
+            let allowed = match code {
+                None => true,
+                Some(-32803) => matches!(a.0, 5 | 6),
+                Some(-32800) => a.3,
+                Some(_) => false,
+            };
+            prop_assert!(allowed, "request {:?} answered {} for\n{}", a, r, text);
+        }
+        let (d1, h1) = answers(&mut c, &u, steps.len() as i64 + 1);
         let mut fresh = Client::start(dir.path(), json!({}));
         fresh.open(&u, &text);
         let (d2, h2) = answers(&mut fresh, &u, 1);
@@ -219,5 +296,58 @@ proptest! {
         prop_assert_eq!(h1, h2, "hints differ for\n{}", text);
         prop_assert_eq!(c.shutdown(), Some(0));
         prop_assert_eq!(fresh.shutdown(), Some(0));
+        // A panic caught inside the server is still a panic: its standard
+        // error must say nothing of one.
+        let said = std::fs::read_to_string(&log).unwrap_or_default();
+        prop_assert!(
+            !said.contains("panicked") && !said.contains("internal error"),
+            "the server's standard error: {}\nfor\n{}",
+            said,
+            text
+        );
+        // It wrote nothing beside the sheet (there is not even a sheet on disk).
+        prop_assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
     }
+}
+
+/// The benchmark's sheet (benches/lsp_latency.rs): feeder sections behind
+/// one bus voltage, a heading comment and a blank line each.
+fn feeder_sheet(sections: usize) -> String {
+    let mut s = String::from("# feeder sections (invented)\nV = 480 V ∠ 0°\n");
+    for k in 0..sections {
+        let r = 1.0 + (k % 17) as f64 * 0.25;
+        let x = 0.5 + (k % 13) as f64 * 0.125;
+        s.push_str(&format!(
+            "# --- section {k} ---\nR{k} = {r:.3} Ω\nX{k} = j{x:.3} Ω\nZ{k} = R{k} + X{k}\nI{k} = V / Z{k}\nP{k} = re(V * conj(I{k}))\n\n"
+        ));
+    }
+    s
+}
+
+/// A keystroke in an input's value goes through the engine's in-place
+/// edit (the dependency cone recomputed), never a second compile of the
+/// sheet: that is what keeps the server's answers fast on long sheets.
+#[test]
+fn a_digit_typed_in_an_input_is_an_edit_in_place() {
+    let text = feeder_sheet(300);
+    let mut doc = Document::open(None, &text, LoadOptions::default());
+    assert!(!doc.engine.model.has_errors(), "{:?}", doc.engine.model.diagnostics);
+    // `R20 = 1.750 Ω` → `1.757 Ω` and back, as the benchmark types.
+    let line = text.lines().position(|l| l.starts_with("R150 ")).unwrap();
+    let mut t = text.clone();
+    for digit in ["7", "0", "7", "0"] {
+        let mut ls: Vec<String> = t.split('\n').map(str::to_string).collect();
+        let col = ls[line].find(" Ω").unwrap() - 1;
+        ls[line].replace_range(col..col + 1, digit);
+        t = ls.join("\n");
+        doc.update(&t);
+    }
+    assert_eq!(
+        (doc.counts.in_place, doc.counts.compiled),
+        (4, 1),
+        "{:?}",
+        doc.engine.model.diagnostics
+    );
+    let fresh = Document::open(None, &t, LoadOptions::default());
+    assert_eq!(snapshot(&doc), snapshot(&fresh));
 }

@@ -1,13 +1,14 @@
 //! Semantic tokens of `ohmsheet lsp` over stdio: decoded as an editor
 //! decodes them (LSP 3.17 §semanticTokens: five integers a token, line and
 //! start relative to the previous token, lengths in UTF-16 units), each
-//! token's text and type.
+//! token's text and type: names, numbers, units, operators, functions,
+//! directives, strings, keywords and comments.
 
 use serde_json::{json, Value};
 
 use crate::common::lsp::{uri, Client};
 
-const SHEET: &str = "# 🔌 bench\nR = 4.7 kΩ\nZ = R ∠ 30° || abs(R)\n";
+const SHEET: &str = "# 🔌 bench\nR = 4.7 kΩ\nZ = R ∠ 30° || abs(R)\n@title \"🔌 bench\"\ncheck R ~= 4.7 kΩ +- 1%\n";
 
 #[test]
 fn tokens_name_each_piece_in_utf16_places() {
@@ -63,6 +64,16 @@ fn tokens_name_each_piece_in_utf16_places() {
         (2, "(", "operator", 0),
         (2, "R", "variable", 0),
         (2, ")", "operator", 0),
+        (3, "@title", "macro", 0),
+        (3, "\"🔌 bench\"", "string", 0),
+        (4, "check", "keyword", 0),
+        (4, "R", "variable", 0),
+        (4, "~=", "operator", 0),
+        (4, "4.7", "number", 0),
+        (4, "kΩ", "type", 0),
+        (4, "+-", "operator", 0),
+        (4, "1", "number", 0),
+        (4, "%", "type", 0),
     ];
     let want: Vec<(usize, String, String, u64)> = want
         .into_iter()

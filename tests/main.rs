@@ -31,6 +31,7 @@ mod local_override;
 mod lsp_actions;
 mod lsp_complete;
 mod lsp_edits;
+mod lsp_guarantees;
 mod lsp_navigate;
 mod lsp_nvim;
 mod lsp_protocol;

@@ -178,6 +178,12 @@ impl Document {
         self.compile_all();
     }
 
+    /// The same, for the next compile (none now): an edit that adds an
+    /// `@include` line reads the buffers open at that time.
+    pub fn keep_options(&mut self, opts: LoadOptions) {
+        self.opts = opts;
+    }
+
     /// Whether this document's last compile read the file `canonical`.
     pub fn reads(&self, canonical: &Path) -> bool {
         self.files

@@ -196,18 +196,38 @@ pub fn serve(connection: &Connection, allow_dirs: Vec<PathBuf>) -> i32 {
 
 impl Server {
     fn main_loop(&mut self, connection: &Connection) -> i32 {
+        // lsp-server hands messages over one at a time (its channel holds
+        // none): a thread of our own queues them as they arrive, so a
+        // `$/cancelRequest` sent while the server was busy is in the queue
+        // before the request it cancels is started.
+        let (tx, rx) = std::sync::mpsc::channel();
+        let receiver = connection.receiver.clone();
+        let queue = std::thread::Builder::new()
+            .name("ohmsheet-lsp-queue".into())
+            .spawn(move || {
+                for m in receiver {
+                    let exit = matches!(&m, Message::Notification(n) if n.method == notification::Exit::METHOD);
+                    if tx.send(m).is_err() || exit {
+                        break;
+                    }
+                }
+            });
+        if let Err(e) = queue {
+            eprintln!("ohmsheet lsp: {e}");
+            return 1;
+        }
         let mut pending: VecDeque<Message> = VecDeque::new();
         loop {
             let msg = match pending.pop_front() {
                 Some(m) => m,
-                None => match connection.receiver.recv() {
+                None => match rx.recv() {
                     Ok(m) => m,
                     // The client went away without `exit`.
                     Err(_) => return 1,
                 },
             };
             // What has arrived meanwhile: a cancellation of this request.
-            while let Ok(m) = connection.receiver.try_recv() {
+            while let Ok(m) = rx.try_recv() {
                 pending.push_back(m);
             }
             match msg {
@@ -432,6 +452,11 @@ impl Server {
             }
         }
         open.version = version;
+        // The open buffers as they are now: a new `@include` line reads a
+        // sheet opened since this one was.
+        let opts = self.load_options(&key);
+        let Some(open) = self.docs.get_mut(&key) else { return };
+        open.doc.keep_options(opts);
         let updated = catch_unwind(AssertUnwindSafe(|| open.doc.update(&text)));
         if updated.is_err() {
             eprintln!("ohmsheet lsp: internal error applying an edit; the document is analysed again from its text");

@@ -69,6 +69,21 @@ impl Client {
 
     /// Start with these client capabilities.
     pub fn start_caps(dir: &Path, args: &[&str], caps: Value, init_options: Value) -> Client {
+        Client::spawn(dir, args, caps, init_options, Stdio::inherit())
+    }
+
+    /// Start with the server's standard error written to the file `log`
+    /// (to read what it said there, e.g. that a handler panicked).
+    pub fn start_logged(dir: &Path, args: &[&str], init_options: Value, log: &Path) -> Client {
+        let caps = json!({
+            "workspace": {"inlayHint": {"refreshSupport": false}},
+            "textDocument": {"inlayHint": {}, "hover": {"contentFormat": ["markdown", "plaintext"]}}
+        });
+        let file = std::fs::File::create(log).expect("a log file");
+        Client::spawn(dir, args, caps, init_options, Stdio::from(file))
+    }
+
+    fn spawn(dir: &Path, args: &[&str], caps: Value, init_options: Value, stderr: Stdio) -> Client {
         let bin = assert_cmd::cargo::cargo_bin("ohmsheet");
         let mut child = Command::new(bin)
             .arg("lsp")
@@ -76,7 +91,7 @@ impl Client {
             .current_dir(dir)
             .stdin(Stdio::piped())
             .stdout(Stdio::piped())
-            .stderr(Stdio::inherit())
+            .stderr(stderr)
             .spawn()
             .expect("ohmsheet lsp starts");
         let stdout = child.stdout.take().expect("stdout");
