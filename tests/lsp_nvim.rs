@@ -179,3 +179,115 @@ fn neovim_shows_diagnostics_values_completion_hover_and_definition() {
     };
     assert_eq!(range["start"]["line"], got["lines"]["zth"], "{def}");
 }
+
+/// The `lua` blocks of docs/editors.md, in order.
+fn lua_blocks(doc: &str) -> Vec<String> {
+    let mut blocks = Vec::new();
+    let mut cur: Option<String> = None;
+    for line in doc.lines() {
+        match (&mut cur, line.trim_end()) {
+            (None, "```lua") => cur = Some(String::new()),
+            (Some(b), "```") => {
+                blocks.push(std::mem::take(b));
+                cur = None;
+            }
+            (Some(b), l) => {
+                b.push_str(l);
+                b.push('\n');
+            }
+            _ => {}
+        }
+    }
+    blocks
+}
+
+/// docs/editors.md's Neovim setup for the Debian package (0.7), taken from
+/// the page as a newcomer copies it into `init.lua`, with `ohmsheet` found
+/// on the PATH: opening a sheet starts the server, whose diagnostics and
+/// hover reach the editor.
+#[test]
+fn the_neovim_setup_in_docs_editors_works_as_written() {
+    let Some(nvim) = outside::need(
+        "lsp_nvim::the_neovim_setup_in_docs_editors_works_as_written",
+        "Neovim",
+        &["nvim"],
+        "OHMSHEET_NVIM",
+        "apt-get install neovim",
+    ) else {
+        return;
+    };
+    let doc = std::fs::read_to_string("docs/editors.md").unwrap();
+    let blocks = lua_blocks(&doc);
+    let setup = blocks
+        .iter()
+        .find(|b| b.contains("vim.lsp.start_client"))
+        .unwrap_or_else(|| panic!("docs/editors.md has a setup with vim.lsp.start_client: {blocks:?}"));
+    let dir = tempfile::tempdir().unwrap();
+    let config = dir.path().join("init.lua");
+    std::fs::write(&config, setup).unwrap();
+    // `ohmsheet` on the PATH, as `cargo install` leaves it.
+    let bin = dir.path().join("bin");
+    std::fs::create_dir(&bin).unwrap();
+    std::os::unix::fs::symlink(assert_cmd::cargo::cargo_bin("ohmsheet"), bin.join("ohmsheet")).unwrap();
+    let path = format!("{}:{}", bin.display(), std::env::var("PATH").unwrap_or_default());
+    // Ohm's law, 12 V / 4 Ω = 3 A, with a misspelt name on line 3.
+    let sheet = dir.path().join("bench.ohm");
+    std::fs::write(&sheet, "V = 12 V\nR = 4 Ω\nI = V / Rr\n").unwrap();
+    let out = dir.path().join("got.json");
+    // After the configuration has run and the sheet is open: wait for the
+    // diagnostics, ask for hover on `V` of line 1, write both down.
+    let probe = format!(
+        r#"lua local ok, err = pcall(function()
+  assert(vim.bo.filetype == "ohmsheet", "filetype " .. vim.bo.filetype)
+  assert(vim.wait(60000, function() return #vim.diagnostic.get(0) > 0 end, 20), "diagnostics")
+  local hover = vim.lsp.buf_request_sync(0, "textDocument/hover",
+    {{ textDocument = {{ uri = vim.uri_from_bufnr(0) }}, position = {{ line = 0, character = 0 }} }}, 60000)
+  local h = nil
+  for _, a in pairs(hover or {{}}) do h = a.result end
+  local f = io.open("{out}", "w")
+  f:write(vim.fn.json_encode({{ diagnostics = vim.diagnostic.get(0), hover = h }}))
+  f:close()
+end)
+if not ok then
+  local f = io.open("{out}", "w"); f:write(vim.fn.json_encode({{ failure = tostring(err) }})); f:close()
+end
+vim.cmd("qall!")"#,
+        out = out.display()
+    );
+    let mut child = Command::new(nvim)
+        .args(["--headless", "-i", "NONE", "-n", "-u"])
+        .arg(&config)
+        .arg(&sheet)
+        .arg("-c")
+        .arg(probe)
+        .env("PATH", path)
+        .env("HOME", dir.path())
+        .env("XDG_CONFIG_HOME", dir.path())
+        .env("XDG_DATA_HOME", dir.path())
+        .env("XDG_STATE_HOME", dir.path())
+        .current_dir(dir.path())
+        .stdin(Stdio::null())
+        .stdout(Stdio::null())
+        .stderr(Stdio::null())
+        .spawn()
+        .expect("nvim starts");
+    let deadline = Instant::now() + Duration::from_secs(180);
+    while child.try_wait().unwrap().is_none() {
+        if Instant::now() > deadline {
+            let _ = child.kill();
+            panic!("nvim did not finish within 180 s");
+        }
+        std::thread::sleep(Duration::from_millis(50));
+    }
+    let text = std::fs::read_to_string(&out).unwrap_or_default();
+    let got: Value = serde_json::from_str(&text).unwrap_or(Value::Null);
+    assert!(got["failure"].is_null() && !got.is_null(), "{text}");
+    // vim.diagnostic items: 0-based `lnum` and `col`; the code the command
+    // line gives (docs/errors.md: unknown-name).
+    let d = &got["diagnostics"][0];
+    assert_eq!(d["lnum"], 2, "{text}");
+    assert_eq!(d["col"], 8, "{text}");
+    assert!(d["message"].as_str().unwrap_or("").contains("`Rr`"), "{text}");
+    let hover = got["hover"]["contents"].to_string();
+    assert!(hover.contains("12 V"), "{text}");
+}
