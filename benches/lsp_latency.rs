@@ -9,7 +9,9 @@
 //! visible range (60 lines around the edit) have been answered. Sheets of
 //! 1,000 and 10,000 lines (invented feeder sections, one in five lines a
 //! comment or blank). The server's peak memory (VmHWM in /proc) is read
-//! after the 10,000-line run.
+//! after each run. The last two rows are the same keystrokes in a sheet
+//! with an error on its last line: a sheet with errors is compiled whole
+//! on every change (src/analysis/document.rs), so they show that price.
 //!
 //! Targets (issue 17): median < 5 ms and 99th percentile < 20 ms at 1,000
 //! lines; median < 50 ms at 10,000 lines; memory < 100 MB.
@@ -158,17 +160,36 @@ fn ms(d: Duration) -> String {
 
 /// Keystrokes on the sheet of `lines` lines: (median, p99, open time,
 /// peak MiB).
-fn run(lines: usize, keystrokes: usize) -> (Duration, Duration, Duration, f64) {
-    let text = sheet(lines);
-    let uri = "file:///bench/feeder.ohm";
+fn run(lines: usize, keystrokes: usize, broken: bool) -> (Duration, Duration, Duration, f64) {
+    let mut text = sheet(lines);
+    if broken {
+        // The last line names a cell that does not exist.
+        let cut = text.trim_end_matches('\n').rfind('\n').map_or(0, |i| i + 1);
+        text.truncate(cut);
+        text.push_str("Pall = P0 + Pnone\n");
+    }
+    // A sheet saved in a folder, as an editor opens it (a path that does
+    // not exist would be an error, and every keystroke would then compile
+    // the whole sheet).
+    let dir = tempfile::tempdir().expect("a temporary folder");
+    let path = dir.path().join("feeder.ohm");
+    std::fs::write(&path, &text).expect("the sheet written");
+    let uri = format!("file://{}", path.display());
+    let uri = uri.as_str();
     let mut s = Server::start();
     let t = Instant::now();
     s.notify(
         "textDocument/didOpen",
         json!({"textDocument": {"uri": uri, "languageId": "ohmsheet", "version": 1, "text": text}}),
     );
-    s.wait(|m| m["method"] == "textDocument/publishDiagnostics" && m["params"]["version"] == 1);
+    let d = s.wait(|m| m["method"] == "textDocument/publishDiagnostics" && m["params"]["version"] == 1);
     let open = t.elapsed();
+    let problems = d["params"]["diagnostics"].as_array().map_or(0, Vec::len);
+    assert_eq!(
+        problems,
+        usize::from(broken),
+        "the sheet is sound, or has the one error: {d}"
+    );
     // An input in the middle of the sheet: `R{k} = 1.250 Ω`, its last digit.
     let (line, col) = text
         .lines()
@@ -216,10 +237,16 @@ fn main() {
     }
     println!("| sheet | keystrokes | median | p99 | open | server peak memory (VmHWM) |");
     println!("|---|---|---|---|---|---|");
-    for (lines, n) in [(1_000, 400), (10_000, 200)] {
-        let (med, p99, open, peak) = run(lines, n);
+    for (lines, n, broken) in [
+        (1_000, 400, false),
+        (10_000, 200, false),
+        (1_000, 200, true),
+        (10_000, 100, true),
+    ] {
+        let (med, p99, open, peak) = run(lines, n, broken);
+        let what = if broken { ", an error elsewhere" } else { "" };
         println!(
-            "| {lines} lines | {n} | {} | {} | {} | {peak:.1} MiB |",
+            "| {lines} lines{what} | {n} | {} | {} | {} | {peak:.1} MiB |",
             ms(med),
             ms(p99),
             ms(open)
