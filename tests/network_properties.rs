@@ -460,14 +460,65 @@ fn reciprocity_fails_with_a_controlled_source_or_a_phase_shift() {
     );
 }
 
+/// What a session shows for an edit that took the sheet `before` to
+/// `after` (both compiled afresh here): the edited cell's headline, then a
+/// line `name  old  →  new` for every other cell whose value changed, each
+/// value written as `cell_vals` writes it from the fresh compile. Checks
+/// the reply has exactly those lines.
+fn check_redraw(reply: &str, edited: &str, before: &ohmsheet::engine::Engine, after: &ohmsheet::engine::Engine) {
+    use ohmsheet::analysis::values::cell_vals;
+    use ohmsheet::units::format::Style;
+    let bits = |v: &[C64]| v.iter().map(|z| (z.re.to_bits(), z.im.to_bits())).collect::<Vec<_>>();
+    let text = |e: &ohmsheet::engine::Engine, id| cell_vals(&e.model, id, e.values(id), Style::default(), false);
+    let mut lines: Vec<&str> = reply.lines().collect();
+    let mut changed = 0;
+    for (id, cell) in after.model.defs() {
+        let old_id = before.model.id(&cell.name).expect("same cells");
+        let (old, new) = (text(before, old_id), text(after, id));
+        let same = bits(before.values(old_id)) == bits(after.values(id));
+        if cell.name == edited {
+            let head = if same {
+                format!("{edited} = {new}  (unchanged)")
+            } else {
+                format!("{edited} = {new}   (was {old})")
+            };
+            assert_eq!(lines.first().copied(), Some(head.as_str()), "the headline\n{reply}");
+            lines.remove(0);
+            continue;
+        }
+        if same {
+            continue;
+        }
+        changed += 1;
+        let want = |l: &&str| {
+            let t = l.trim_start();
+            t.strip_prefix(cell.name.as_str())
+                .and_then(|r| r.strip_prefix(' '))
+                .and_then(|r| r.split_once("  →  "))
+                .is_some_and(|(o, n)| o.trim() == old && n == new)
+        };
+        assert!(
+            lines.iter().any(want),
+            "no line `{}  {old}  →  {new}` in the reply\n{reply}",
+            cell.name
+        );
+    }
+    let drawn = lines.iter().filter(|l| l.contains("  →  ")).count();
+    assert_eq!(drawn, changed, "lines of changes in the reply\n{reply}");
+}
+
 proptest! {
     #![proptest_config(cfg(24))]
 
     /// An element value typed in a session (`Z2 = …`, replacing only the
     /// value inside the element line) gives every cell the same value, to
-    /// the bit, as compiling the edited sheet afresh.
+    /// the bit, as compiling the edited sheet afresh, and the session
+    /// shows each changed cell as the fresh compile's values are shown.
+    /// Two edits: a value in a random unit (often another dimension, so
+    /// the sheet is compiled whole), then one branch's value doubled in its
+    /// own unit (edited in place).
     #[test]
-    fn a_session_edit_equals_compiling_afresh(seed in any::<u64>(), pick in 0usize..16) {
+    fn a_session_edit_equals_compiling_afresh(seed in any::<u64>(), pick in 0usize..16, pick2 in 0usize..16) {
         let net = random_net(seed);
         let mut src = net.block();
         for k in 1..=net.nodes {
@@ -481,24 +532,34 @@ proptest! {
         let b = &net.branches[pick % net.branches.len()];
         let mut rng = Rng(seed ^ 0xED17);
         let (text, _) = value_text(&mut rng, 1.0);
-        s.handle(&format!("{} = {text}", b.name));
-        let fresh = src.replace(
-            &format!("  {} = branch({}, {}, {})\n", b.name, node(b.a), node(b.b), b.text),
-            &format!("  {} = branch({}, {}, {text})\n", b.name, node(b.a), node(b.b)),
-        );
-        prop_assert!(fresh != src);
-        let e = engine(&fresh);
-        for (id, cell) in e.model.defs() {
-            let sid = s.engine.model.id(&cell.name).unwrap();
-            let (x, y) = (e.values(id), s.engine.values(sid));
-            prop_assert_eq!(x.len(), y.len());
-            for (p, q) in x.iter().zip(y.iter()) {
-                prop_assert!(
-                    (p.re.to_bits() == q.re.to_bits() && p.im.to_bits() == q.im.to_bits())
-                        || (p.re.is_nan() && q.re.is_nan()),
-                    "{}: fresh {p}, session {q}\n{fresh}", cell.name
-                );
+        let line = |b: &Branch, v: &str| format!("  {} = branch({}, {}, {v})\n", b.name, node(b.a), node(b.b));
+        let b2 = &net.branches[pick2 % net.branches.len()];
+        let fresh = src.replace(&line(b, &b.text), &line(b, &text));
+        // The second edit doubles b2's value as it then stands.
+        let now2 = if b2.name == b.name { text.clone() } else { b2.text.clone() };
+        let fresh2 = fresh.replace(&line(b2, &now2), &line(b2, &format!("2 * {now2}")));
+        prop_assert!(fresh != src && fresh2 != fresh);
+        let steps = [
+            (format!("{} = {text}", b.name), b, &src, &fresh),
+            (format!("{} = 2 * {now2}", b2.name), b2, &fresh, &fresh2),
+        ];
+        for (typed, b, before, after) in steps {
+            let r = s.handle(&typed);
+            prop_assert!(!r.refused, "{}", r.text);
+            let e = engine(after);
+            for (id, cell) in e.model.defs() {
+                let sid = s.engine.model.id(&cell.name).unwrap();
+                let (x, y) = (e.values(id), s.engine.values(sid));
+                prop_assert_eq!(x.len(), y.len());
+                for (p, q) in x.iter().zip(y.iter()) {
+                    prop_assert!(
+                        (p.re.to_bits() == q.re.to_bits() && p.im.to_bits() == q.im.to_bits())
+                            || (p.re.is_nan() && q.re.is_nan()),
+                        "{}: fresh {p}, session {q}\n{after}", cell.name
+                    );
+                }
             }
+            check_redraw(&r.text, &b.name, &engine(before), &e);
         }
     }
 }

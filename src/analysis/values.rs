@@ -6,28 +6,29 @@ use num_complex::Complex64 as C64;
 
 use crate::engine::{check_result, CellError, CellId, Model, Role};
 use crate::funcs::Shape;
-use crate::units::format::{format_value, Style};
+use crate::units::format::{format_form, Style};
 use crate::units::{Quantity, Unit};
 
 pub fn one(z: C64, q: Quantity, display: Option<&Unit>, style: Style, polar: bool) -> String {
-    let f = format_value(z, q, display, style);
-    if polar {
-        f.polar
-    } else {
-        f.rect
-    }
+    format_form(z, q, display, style, polar)
 }
 
 /// A value of the given shape: a scalar, or `field = …` for each field.
 pub fn value(shape: &Shape, vals: &[C64], display: Option<&Unit>, style: Style, polar: bool) -> String {
     match shape {
         Shape::Scalar(q) => one(vals[0], *q, display, style, polar),
-        Shape::Record(fields) => fields
-            .iter()
-            .zip(vals)
-            .map(|((n, q), &z)| format!("{n} = {}", one(z, *q, None, style, polar)))
-            .collect::<Vec<_>>()
-            .join(", "),
+        Shape::Record(fields) => {
+            let mut out = String::with_capacity(fields.len() * 24);
+            for (k, ((n, q), &z)) in fields.iter().zip(vals).enumerate() {
+                if k > 0 {
+                    out.push_str(", ");
+                }
+                out.push_str(n);
+                out.push_str(" = ");
+                out.push_str(&one(z, *q, None, style, polar));
+            }
+            out
+        }
     }
 }
 

@@ -258,10 +258,39 @@ impl Engine {
     /// place, and recompute what depends on it. Returns the changed cells:
     /// `id` first (if its value changed), then in evaluation order.
     pub fn redefine(&mut self, id: CellId, stmt: &Stmt, def: &Definition) -> Result<Vec<Change>, EditError> {
+        self.redefine_as(id, stmt, def, &def.expr, false)
+    }
+
+    /// `redefine` for a network element line whose new form differs from
+    /// the old only in its value (`value`, an argument of `def`'s element
+    /// form): the element's cell holds that value, as `compile` makes it,
+    /// and the network reads it from the cell's slot with the element's
+    /// kind decided by its dimension and kind alone, so when the value
+    /// keeps its shape the network's code stands and only the cells that
+    /// depend on the element are computed again. The caller checks that
+    /// the element's form, nodes and extra argument are unchanged.
+    pub fn redefine_element(
+        &mut self,
+        id: CellId,
+        stmt: &Stmt,
+        def: &Definition,
+        value: &Expr,
+    ) -> Result<Vec<Change>, EditError> {
+        self.redefine_as(id, stmt, def, value, true)
+    }
+
+    fn redefine_as(
+        &mut self,
+        id: CellId,
+        stmt: &Stmt,
+        def: &Definition,
+        expr: &Expr,
+        element: bool,
+    ) -> Result<Vec<Change>, EditError> {
         if !self.error_free() {
             return Err(EditError::Recompile("the model has cells with errors"));
         }
-        self.no_searches(&def.expr)?;
+        self.no_searches(expr)?;
         if def.spread.is_some() || self.model.spread_of(id).is_some() {
             return Err(EditError::Recompile("a tolerance is checked with the whole sheet"));
         }
@@ -270,8 +299,21 @@ impl Engine {
         if m.cells[i].role != Role::Def || m.cells[i].name != def.name.name {
             return Err(EditError::Recompile("not a defined cell of that name"));
         }
+        // An element's cell is used by its network, under its own name.
+        let name = &m.cells[i].name;
+        let is_element = || {
+            m.dependents[i].iter().any(|&u| {
+                m.program
+                    .networks
+                    .iter()
+                    .any(|n| n.name == m.cells[u as usize].name && n.net.elems.iter().any(|e| e.name == *name))
+            })
+        };
+        if element && !is_element() {
+            return Err(EditError::Recompile("not an element of a network"));
+        }
         let mut deps: Vec<CellId> = Vec::new();
-        def.expr.for_each_name(&mut |n| {
+        expr.for_each_name(&mut |n| {
             if let Some(&d) = m.by_name.get(&n.name) {
                 if !deps.contains(&d) {
                     deps.push(d);
@@ -284,10 +326,19 @@ impl Engine {
                 "the new formula uses a cell ranked after this one",
             ));
         }
-        let probe = def_cell(m, stmt, def);
+        let mut probe = def_cell(m, stmt, def);
+        if element {
+            // As `compile` shows an element: in the unit its value is
+            // written in.
+            probe.display = def
+                .display
+                .as_ref()
+                .map(|u| u.unit.clone())
+                .or_else(|| literal_unit(expr));
+        }
         let base = m.program.temp_base as usize;
         let mut low = self
-            .lower_with(base, |lw, em| lw.lower_def(em, &def.expr, &probe))
+            .lower_with(base, |lw, em| lw.lower_def(em, expr, &probe))
             .map_err(EditError::Invalid)?;
         if Some(shape_of(&low.val)) != self.model.cells[i].shape {
             self.model.program.call_args.truncate(low.call_len);

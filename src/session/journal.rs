@@ -234,6 +234,23 @@ fn sweep_side_locks(primary: &Path) {
     }
 }
 
+/// A change written to the journal whose flush to the disk may still be
+/// running (`Journal::append_flushing`).
+#[must_use = "the change is on the disk only after `wait`"]
+pub struct Flushing(Option<std::thread::JoinHandle<io::Result<()>>>);
+
+impl Flushing {
+    /// Wait until the change is on the disk.
+    pub fn wait(self) -> io::Result<()> {
+        match self.0 {
+            None => Ok(()),
+            Some(t) => t
+                .join()
+                .unwrap_or_else(|_| Err(io::Error::other("the journal's flush failed"))),
+        }
+    }
+}
+
 /// The journal a session writes to. The file is made on the first change.
 #[derive(Debug)]
 pub struct Journal {
@@ -313,6 +330,15 @@ impl Journal {
 
     /// Append one change and flush it to the disk.
     pub fn append(&mut self, e: &Entry) -> io::Result<()> {
+        self.append_flushing(e)?.wait()
+    }
+
+    /// `append`, with the flush to the disk left running on a thread of
+    /// its own, so the session can draw its answer meanwhile; it answers
+    /// only after `Flushing::wait`. The line is written before this
+    /// returns (a session killed from here on still leaves it in the
+    /// file); the wait is for the disk, against a lost machine.
+    pub fn append_flushing(&mut self, e: &Entry) -> io::Result<Flushing> {
         let line = serde_json::to_string(e).map_err(io::Error::other)? + "\n";
         if self.file.is_none() {
             let dir = self.path.parent().unwrap_or(Path::new("."));
@@ -330,7 +356,16 @@ impl Journal {
         }
         let f = self.file.as_mut().expect("opened above");
         f.write_all(line.as_bytes())?;
-        f.sync_data()
+        let flushed = f.try_clone().and_then(|g| {
+            std::thread::Builder::new()
+                .name("journal flush".into())
+                .spawn(move || g.sync_data())
+        });
+        match flushed {
+            Ok(t) => Ok(Flushing(Some(t))),
+            // No thread to spare: flush here.
+            Err(_) => f.sync_data().map(|()| Flushing(None)),
+        }
     }
 
     /// Write the journal anew with these entries (after a restore).

@@ -119,6 +119,8 @@ pub struct Session {
     /// The sheet file as this session last read or wrote it (a hash of its
     /// bytes), to notice another session or an editor saving it meanwhile.
     on_disk: Option<u64>,
+    /// The records drawn last (see `apply::Drawn`).
+    drawn: apply::Drawn,
 }
 
 impl Session {
@@ -161,6 +163,7 @@ impl Session {
             color,
             journal_warned: false,
             on_disk: path.and_then(disk_hash),
+            drawn: apply::Drawn::default(),
         };
         let mut greet = String::new();
         let m = &s.engine.model;
@@ -324,15 +327,24 @@ impl Session {
             StmtKind::Check(_) => Some(self.engine.model.sources.slice(stmt.span).trim().to_string()),
             _ => None,
         };
-        match self.apply(edit, false) {
-            Ok((inverse, shown)) => {
+        match self.apply_quietly(edit, false) {
+            Ok((inverse, changed)) => {
                 self.push_undo(inverse);
-                let mut out = String::new();
-                if journal {
-                    self.record(Entry::Line(text.to_string()), &mut out);
-                }
-                out.push_str(&self.report(target.as_deref(), &stmt, &shown));
+                // The journal's flush to the disk runs while the changes
+                // are drawn; the answer waits for it.
+                let recording = if journal {
+                    self.record_start(Entry::Line(text.to_string()))
+                } else {
+                    None
+                };
+                let shown = self.draw(changed);
+                let mut out = self.report(target.as_deref(), &stmt, &shown);
                 out.push_str(&notes);
+                if let Some(r) = recording {
+                    let mut warning = String::new();
+                    self.record_finish(r, &mut warning);
+                    out.insert_str(0, &warning);
+                }
                 Reply::ok(out)
             }
             Err(msg) => Reply::refused(format!("{msg}{UNCHANGED}")),

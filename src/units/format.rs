@@ -248,7 +248,37 @@ pub struct Formatted {
 /// Format a value of the given quantity. `display` is the unit the sheet
 /// asked for (`[kV]`), if any.
 pub fn format_value(z: C64, q: Quantity, display: Option<&Unit>, style: Style) -> Formatted {
-    let (scaled, unit) = match display {
+    let (scaled, unit) = scaled_in_unit(z, q, display);
+    let rect = rect_in(scaled, &unit, style);
+    // A real value has no polar form of its own: `3 Ω`, not `3 ∠ 0° Ω`,
+    // and `-5 V`, not `5 ∠ 180° V` (common practice: a phasor angle is
+    // given for a phasor).
+    // Nor has an angle with an imaginary part (`acos(1.5)` is -j55.14°):
+    // a magnitude and an angle of an angle (`55.14 ∠ -90° °`) would only
+    // mislead.
+    let polar = if has_polar_form(scaled, &unit) {
+        polar_in(scaled, &unit, style)
+    } else {
+        rect.clone()
+    };
+    Formatted { rect, polar, unit }
+}
+
+/// One form of `format_value` — its `polar` field when `polar`, else its
+/// `rect` — without working out the other (a record of a thousand fields
+/// is shown in one form).
+pub fn format_form(z: C64, q: Quantity, display: Option<&Unit>, style: Style, polar: bool) -> String {
+    let (scaled, unit) = scaled_in_unit(z, q, display);
+    if polar && has_polar_form(scaled, &unit) {
+        polar_in(scaled, &unit, style)
+    } else {
+        rect_in(scaled, &unit, style)
+    }
+}
+
+/// The value in the unit it is shown in, and that unit (with its prefix).
+fn scaled_in_unit(z: C64, q: Quantity, display: Option<&Unit>) -> (C64, String) {
+    match display {
         Some(u) => (z / u.factor, u.symbol.clone()),
         None => {
             let s = shown(q);
@@ -256,21 +286,25 @@ pub fn format_value(z: C64, q: Quantity, display: Option<&Unit>, style: Style) -
             let (p, f) = s.prefix_for(z.norm());
             (z / f, s.with_prefix(p))
         }
-    };
-    let is_angle_unit = unit == "°" || unit == "deg";
-    let rect = join_unit(&rect_string(scaled, style.digits), &unit, is_angle_unit);
-    // A real value has no polar form of its own: `3 Ω`, not `3 ∠ 0° Ω`,
-    // and `-5 V`, not `5 ∠ 180° V` (common practice: a phasor angle is
-    // given for a phasor).
-    // Nor has an angle with an imaginary part (`acos(1.5)` is -j55.14°):
-    // a magnitude and an angle of an angle (`55.14 ∠ -90° °`) would only
-    // mislead.
-    let polar = if is_real(scaled) || is_angle_unit {
-        rect.clone()
-    } else {
-        join_unit(&polar_string(scaled, style.digits), &unit, is_angle_unit)
-    };
-    Formatted { rect, polar, unit }
+    }
+}
+
+fn glued_unit(unit: &str) -> bool {
+    unit == "°" || unit == "deg"
+}
+
+/// Whether a value shown in `unit` has a polar form of its own (see
+/// `format_value`).
+fn has_polar_form(scaled: C64, unit: &str) -> bool {
+    !is_real(scaled) && !glued_unit(unit)
+}
+
+fn rect_in(scaled: C64, unit: &str, style: Style) -> String {
+    join_unit(&rect_string(scaled, style.digits), unit, glued_unit(unit))
+}
+
+fn polar_in(scaled: C64, unit: &str, style: Style) -> String {
+    join_unit(&polar_string(scaled, style.digits), unit, glued_unit(unit))
 }
 
 fn join_unit(num: &str, unit: &str, glued: bool) -> String {

@@ -119,6 +119,13 @@ impl Session {
     /// refused and nothing changes. Returns the inverse edit and what
     /// changed.
     pub(super) fn apply(&mut self, edit: Edit, force: bool) -> Result<(Edit, Vec<Shown>), String> {
+        let (inverse, changed) = self.apply_quietly(edit, force)?;
+        Ok((inverse, self.draw(changed)))
+    }
+
+    /// `apply` without drawing what changed: the caller draws it with
+    /// `draw` (after starting the journal's flush, so the two overlap).
+    pub(super) fn apply_quietly(&mut self, edit: Edit, force: bool) -> Result<(Edit, Changed), String> {
         // An input given a value of another dimension or kind: if that
         // brings errors, they are reported here, at the edit.
         let clash = if force { None } else { self.input_clash(&edit) };
@@ -132,8 +139,16 @@ impl Session {
                 if let (Some(StmtKind::Def(d)), Some(old)) =
                     (line.stmt.as_ref().map(|s| &s.kind), self.doc.lines[*idx].defines())
                 {
-                    // An element line is compiled with its whole network.
-                    if d.name.name == old && element_form(&d.expr).is_none() {
+                    // An element line whose value alone changed (its
+                    // form, nodes and extra argument as they were) is
+                    // edited in place like any cell; any other change to
+                    // an element line is compiled with its whole network.
+                    let element_value = match self.doc.lines[*idx].stmt.as_ref().map(|s| &s.kind) {
+                        Some(StmtKind::Def(was)) => self.same_element_but_value(&was.expr, &d.expr),
+                        _ => None,
+                    };
+                    if d.name.name == old && (element_form(&d.expr).is_none() || element_value.is_some()) {
+                        let value = element_value.unwrap_or(&d.expr);
                         // A value that gains an imaginary part can change
                         // the kinds of the cells built from it (`k * Q` is
                         // var for a real `k`, VA for `1 + j1`): those are
@@ -143,16 +158,25 @@ impl Session {
                             was_real
                                 && this
                                     .engine
-                                    .evaluate(&d.expr)
+                                    .evaluate(value)
                                     .is_ok_and(|(_, v)| v.iter().any(|z| z.im != 0.0))
                         };
                         if let Some(id) = self.engine.model.id(old).filter(|&id| !gains_imaginary(self, id)) {
                             let stmt = line.stmt.as_ref().expect("checked");
-                            match self.engine.redefine(id, stmt, d) {
+                            // The old value is shown as it was: in the
+                            // display unit the old formula had.
+                            let was_shown = self.engine.model.cells[id as usize].display.clone();
+                            let done = match element_value {
+                                Some(v) => self.engine.redefine_element(id, stmt, d, v),
+                                None => self.engine.redefine(id, stmt, d),
+                            };
+                            match done {
                                 Ok(changes) => {
-                                    let shown = self.shown_changes(&changes);
                                     let prev = std::mem::replace(&mut self.doc.lines[*idx], line.clone());
-                                    return Ok((Edit::Replace(*idx, prev), shown));
+                                    return Ok((
+                                        Edit::Replace(*idx, prev),
+                                        Changed::InPlace(changes, Some((id, was_shown))),
+                                    ));
                                 }
                                 Err(EditError::Invalid(diag)) if !force => return Err(self.render(&diag)),
                                 Err(_) => {}
@@ -165,7 +189,7 @@ impl Session {
                 if let Some(id) = self.doc.lines[*idx].defines().and_then(|n| self.engine.model.id(n)) {
                     if self.engine.remove_last(id).is_ok() {
                         let line = self.doc.lines.remove(*idx);
-                        return Ok((Edit::Insert(*idx, line), Vec::new()));
+                        return Ok((Edit::Insert(*idx, line), Changed::InPlace(Vec::new(), None)));
                     }
                 }
             }
@@ -174,9 +198,8 @@ impl Session {
                     let stmt = line.stmt.as_ref().expect("checked");
                     match self.engine.add_cell(stmt, d) {
                         Ok(change) => {
-                            let shown = self.shown_changes(&[change]);
                             self.doc.lines.push(line.clone());
-                            return Ok((Edit::Delete(*idx), shown));
+                            return Ok((Edit::Delete(*idx), Changed::InPlace(vec![change], None)));
                         }
                         Err(EditError::Invalid(diag)) if !force => return Err(self.render(&diag)),
                         Err(_) => {}
@@ -216,10 +239,16 @@ impl Session {
                 return Err(text);
             }
         }
-        let engine = Engine::new(model);
-        let shown = diff(&self.engine, &engine, self.style, self.polar);
-        self.engine = engine;
-        Ok((inverse, shown))
+        let old = std::mem::replace(&mut self.engine, Engine::new(model));
+        Ok((inverse, Changed::Compiled(Box::new(old))))
+    }
+
+    /// The cells an applied edit changed, as shown.
+    pub(super) fn draw(&mut self, changed: Changed) -> Vec<Shown> {
+        match changed {
+            Changed::InPlace(changes, was) => self.shown_changes(&changes, was),
+            Changed::Compiled(old) => diff(&old, &self.engine, self.style, self.polar, &mut self.drawn),
+        }
     }
 
     /// The error for an edit that gives an input other cells use a value of
@@ -284,23 +313,36 @@ impl Session {
         }
     }
 
-    pub(super) fn shown_changes(&self, changes: &[crate::engine::Change]) -> Vec<Shown> {
+    /// `was`: the redefined cell and the display unit it had before, in
+    /// which its old value is shown (as a whole compile shows it).
+    pub(super) fn shown_changes(
+        &mut self,
+        changes: &[crate::engine::Change],
+        was: Option<(CellId, Option<crate::units::Unit>)>,
+    ) -> Vec<Shown> {
+        let m = &self.engine.model;
+        let (style, polar) = (self.style, self.polar);
+        let old_text = |drawn: &mut Drawn, c: &crate::engine::Change| {
+            let cell = &m.cells[c.cell as usize];
+            match (&was, &cell.shape) {
+                (Some((id, unit)), Some(shape))
+                    if *id == c.cell && *unit != cell.display && cell.role == Role::Def && cell.error.is_none() =>
+                {
+                    show::value(shape, &c.old, unit.as_ref(), style, polar)
+                }
+                _ => drawn.cell(m, c.cell, &c.old, style, polar),
+            }
+        };
         changes
             .iter()
             .map(|c| Shown {
-                name: show::cell_label(&self.engine.model, c.cell),
+                name: show::cell_label(m, c.cell),
                 old: if c.old.is_empty() {
                     None
                 } else {
-                    Some(show::cell_vals(
-                        &self.engine.model,
-                        c.cell,
-                        &c.old,
-                        self.style,
-                        self.polar,
-                    ))
+                    Some(old_text(&mut self.drawn, c))
                 },
-                new: show::cell_vals(&self.engine.model, c.cell, &c.new, self.style, self.polar),
+                new: self.drawn.cell(m, c.cell, &c.new, style, polar),
             })
             .collect()
     }
@@ -314,6 +356,36 @@ impl Session {
     /// Names of the defined cells.
     pub fn cell_names(&self) -> impl Iterator<Item = &str> {
         self.engine.model.by_name.keys().map(String::as_str)
+    }
+}
+
+impl Session {
+    /// The new value when `new` is the element form `old` with only its
+    /// value argument changed: the same form, the same node (or element)
+    /// names, and the same extra argument as written.
+    fn same_element_but_value<'e>(&self, old: &Expr, new: &'e Expr) -> Option<&'e Expr> {
+        let (ExprKind::Call { func: fo, args: ao }, ExprKind::Call { func: f, args: a }) = (&old.kind, &new.kind)
+        else {
+            return None;
+        };
+        let n = element_form(new)?;
+        if fo.name != f.name || ao.len() != a.len() || a.len() <= n {
+            return None;
+        }
+        let src = &self.engine.model.sources;
+        let text = |e: &Expr| src.slice(e.span).trim().to_string();
+        for (k, (x, y)) in ao.iter().zip(a).enumerate() {
+            let same = match (&x.kind, &y.kind) {
+                _ if k == n => true,
+                (ExprKind::Name(p), ExprKind::Name(q)) if k < n => p.name == q.name,
+                _ if k < n => false,
+                _ => text(x) == text(y),
+            };
+            if !same {
+                return None;
+            }
+        }
+        Some(&a[n])
     }
 }
 
@@ -356,7 +428,7 @@ fn key(m: &Model, id: CellId) -> Key {
 
 /// Cells whose values differ between two engines (after a full compile),
 /// in the new one's evaluation order.
-fn diff(old: &Engine, new: &Engine, style: Style, polar: bool) -> Vec<Shown> {
+fn diff(old: &Engine, new: &Engine, style: Style, polar: bool, drawn: &mut Drawn) -> Vec<Shown> {
     let om = &old.model;
     let nm = &new.model;
     let old_ids: HashMap<Key, CellId> = om.order.iter().map(|&id| (key(om, id), id)).collect();
@@ -376,9 +448,67 @@ fn diff(old: &Engine, new: &Engine, style: Style, polar: bool) -> Vec<Shown> {
         }
         out.push(Shown {
             name: show::cell_label(nm, id),
-            old: old_id.map(|o| show::cell_vals(om, o, old.values(o), style, polar)),
-            new: show::cell_vals(nm, id, newv, style, polar),
+            old: old_id.map(|o| drawn.cell(om, o, old.values(o), style, polar)),
+            new: drawn.cell(nm, id, newv, style, polar),
         });
     }
     out
+}
+
+/// What an applied edit changed, not yet drawn.
+pub(super) enum Changed {
+    /// Edited in place: the changed cells with their old and new values,
+    /// and the redefined cell with the display unit it had.
+    InPlace(Vec<crate::engine::Change>, Option<(CellId, Option<crate::units::Unit>)>),
+    /// Compiled afresh: the engine before the edit (the session holds the
+    /// new one), compared cell by cell.
+    Compiled(Box<Engine>),
+}
+
+/// The text last drawn for each record cell, with what it was drawn from.
+/// An edit's old value is what the edit before it drew as new: kept, a
+/// large record (a network's, with a field for every node and element) is
+/// formatted once an edit instead of twice. A record's text depends on
+/// nothing but its fields, values, display unit and the style, all of
+/// which are compared, so a text found here is the text `cell_vals` gives.
+#[derive(Default)]
+pub(super) struct Drawn(HashMap<String, DrawnRecord>);
+
+struct DrawnRecord {
+    bits: Vec<(u64, u64)>,
+    shape: Option<crate::funcs::Shape>,
+    display: Option<crate::units::Unit>,
+    style: Style,
+    polar: bool,
+    text: String,
+}
+
+impl Drawn {
+    /// `show::cell_vals`, through the records drawn last.
+    pub(super) fn cell(&mut self, m: &Model, id: CellId, vals: &[C64], style: Style, polar: bool) -> String {
+        let c = &m.cells[id as usize];
+        let record = matches!(c.shape, Some(crate::funcs::Shape::Record(_)));
+        if !record || c.role != Role::Def || c.error.is_some() {
+            return show::cell_vals(m, id, vals, style, polar);
+        }
+        let bits: Vec<(u64, u64)> = vals.iter().map(|z| (z.re.to_bits(), z.im.to_bits())).collect();
+        if let Some(d) = self.0.get(&c.name) {
+            if d.bits == bits && d.shape == c.shape && d.display == c.display && d.style == style && d.polar == polar {
+                return d.text.clone();
+            }
+        }
+        let text = show::cell_vals(m, id, vals, style, polar);
+        self.0.insert(
+            c.name.clone(),
+            DrawnRecord {
+                bits,
+                shape: c.shape.clone(),
+                display: c.display.clone(),
+                style,
+                polar,
+                text: text.clone(),
+            },
+        );
+        text
+    }
 }

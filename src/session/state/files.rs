@@ -4,7 +4,7 @@
 
 use std::path::{Path, PathBuf};
 
-use super::journal::{self, Entry, Journal, Recovered};
+use super::journal::{self, Entry, Flushing, Journal, Recovered};
 use super::{plural, show, Reply, Session};
 
 impl Session {
@@ -88,9 +88,29 @@ impl Session {
     }
 
     pub(super) fn record(&mut self, e: Entry, out: &mut String) {
+        if let Some(r) = self.record_start(e) {
+            self.record_finish(r, out);
+        }
+    }
+
+    /// `record`, in two halves: the change is written to the journal here
+    /// and its flush to the disk runs while the caller draws its answer;
+    /// `record_finish` waits for the flush (an answer is given only after
+    /// it, so nothing the user was told is applied can be lost).
+    pub(super) fn record_start(&mut self, e: Entry) -> Option<Recording> {
+        let j = self.journal.as_mut()?;
+        Some(Recording {
+            flushing: j.append_flushing(&e),
+            entry: e,
+        })
+    }
+
+    /// Wait for the flush `record_start` started; a journal that cannot be
+    /// written is said in `out` (once a session).
+    pub(super) fn record_finish(&mut self, r: Recording, out: &mut String) {
         let Some(j) = &mut self.journal else { return };
-        match j.append(&e) {
-            Ok(()) => self.entries.push(e),
+        match r.flushing.and_then(Flushing::wait) {
+            Ok(()) => self.entries.push(r.entry),
             Err(err) => {
                 if !self.journal_warned {
                     out.push_str(&format!(
@@ -161,4 +181,10 @@ impl Session {
 /// A hash of a file's bytes, or `None` when it cannot be read.
 pub(super) fn disk_hash(path: &Path) -> Option<u64> {
     std::fs::read(path).ok().map(|b| journal::fnv64(&b))
+}
+
+/// A change being written to the journal (`Session::record_start`).
+pub(super) struct Recording {
+    entry: Entry,
+    flushing: std::io::Result<Flushing>,
 }

@@ -538,6 +538,12 @@ fn a_value_typed_for_a_network_element_replaces_only_its_value() {
     // 100 V · 6 / (4 + 6) = 60 V.
     assert!((val(&s, "Vb") - C64::new(60.0, 0.0)).norm() < 1e-9, "{out}");
     assert!(out.contains("Vb"), "the moved result is listed: {out}");
+    // Only the value changed, in its own dimension: the element's cell is
+    // edited in place and what depends on it computed again (a whole
+    // compile computes every cell and records none as recomputed).
+    let ids = |s: &Session, names: &[&str]| -> Vec<_> { names.iter().map(|n| s.engine.model.id(n).unwrap()).collect() };
+    assert_eq!(s.engine.last_recomputed, ids(&s, &["Zt", "n", "Vb"]), "{out}");
+    assert!(out.starts_with("Zt = 4 Ω   (was 3 Ω)\n"), "{out}");
     let text = s.doc.text();
     assert!(
         text.contains("  Zt = branch(util, bus, 4 Ω)     # the tie\n"),
@@ -572,8 +578,16 @@ fn a_value_typed_for_a_network_element_replaces_only_its_value() {
     ok(&mut s, "Zt = branch(util, bus, 5 Ω)");
     // 100 V · 6 / (5 + 6).
     assert!((val(&s, "Vb") - C64::new(600.0 / 11.0, 0.0)).norm() < 1e-9);
+    // In another dimension (an admittance) it is compiled with the network.
+    let out = ok(&mut s, "Zt = 0.2 S");
+    assert!(s.engine.last_recomputed.is_empty(), "{out}");
+    // 100 V · 6 / (5 + 6) again: 0.2 S is 5 Ω.
+    assert!((val(&s, "Vb") - C64::new(600.0 / 11.0, 0.0)).norm() < 1e-9);
+    // So is a change of nodes.
+    ok(&mut s, "Zt = branch(bus, util, 5 Ω)");
+    assert!(s.engine.last_recomputed.is_empty());
     // Back through every change to the sheet as written.
-    for _ in 0..4 {
+    for _ in 0..6 {
         ok(&mut s, "/back");
     }
     assert_eq!(s.doc.text(), NET);
