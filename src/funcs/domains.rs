@@ -524,7 +524,7 @@ pub const TABLE: &[(&str, &str, Option<DomainFn>)] = &[
     ("s_vz", POWER, Some(s_vz)),
     ("s_iz", POWER, Some(s_iz)),
     ("pf", POWER, Some(pf_of)),
-    ("pf_angle", POWER, None),
+    ("pf_angle", POWER, Some(pf_of)),
     ("s_parts", POWER, Some(pf_of)),
     (
         "best_load",

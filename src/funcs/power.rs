@@ -161,7 +161,14 @@ fn l_pf_angle(e: &mut Emitter, a: &[Operand], _: &[Quantity]) -> Vec<Operand> {
     let q = e.un(Op::Im, a[0]);
     let p = e.un(Op::Re, a[0]);
     let p = e.un(Op::Abs, p);
-    vec![e.bin(Op::Atan2, q, p)]
+    let phi = e.bin(Op::Atan2, q, p);
+    // S = 0: no power flows and φ is undefined (atan2(0, 0) would say 0°,
+    // a unity power factor), as `pf` refuses it; explained by `pf_of`.
+    let m = e.un(Op::Abs, a[0]);
+    let zero = e.konst(0.0, 0.0);
+    let none = e.bin(Op::Le, m, zero);
+    let nan = e.konst(f64::NAN, f64::NAN);
+    vec![e.select(none, nan, phi)]
 }
 
 fn ty_s_parts(qs: &[Quantity], _: &Ctx) -> Result<Shape, ArgError> {

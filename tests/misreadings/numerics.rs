@@ -397,6 +397,7 @@ const DOMAIN_CASES: &[(&str, &str, &str)] = &[
         "-1.1",
     ),
     ("pf(0 VA)", "no power flows (S = 0)", "0 VA"),
+    ("pf_angle(0 VA)", "no power flows (S = 0)", "0 VA"),
     ("s_parts(0 VA)", "no power flows (S = 0)", "0 VA"),
     (
         "vdiv(10 V, 0 Ω, 0 Ω)",

@@ -641,7 +641,9 @@ REFUSED = [
 
     ("h_res(250 MVA, 0 var)", "0 var", "Qc", "no bank: no resonance (h = ∞)"),
     ("vswr(-1)", "-1", "G", "Pozar ch. 2: |Γ| = 1 gives an infinite VSWR, said so"),
-    ("return_loss(0)", "0", "G", "IEEE Std 100: a matched load, Γ = 0, gives +∞ dB, said so"),]
+    ("return_loss(0)", "0", "G", "IEEE Std 100: a matched load, Γ = 0, gives +∞ dB, said so"),
+    ("pf(0 VA)", "0 VA", "S", "IEEE 1459: no power flows, the power factor is undefined"),
+    ("pf_angle(0 VA)", "0 VA", "S", "IEEE 1459: no power flows, φ is undefined (not 0°, which reads as unity)"),]
 
 PREAMBLE = f"""
 VF = {mp.nstr(VF, 25)} V
