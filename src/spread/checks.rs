@@ -92,7 +92,6 @@ pub fn check_verdicts(engine: &Engine) -> (Option<Plan>, Vec<CheckVerdict>) {
             },
         )
     });
-    let k = plan.shown.len();
     let v = m
         .spread_checks
         .iter()
@@ -104,8 +103,8 @@ pub fn check_verdicts(engine: &Engine) -> (Option<Plan>, Vec<CheckVerdict>) {
             let nominal_ok = nominal(sc.cell).passed;
             let (passed, found) = match (sc.share, &samples) {
                 (Some(share), Some(s)) => {
-                    let n = s.len() / k.max(1);
-                    let ok = (0..n).filter(|&i| s[i * k + c] >= 0.0).count();
+                    let n = s[c].len();
+                    let ok = s[c].iter().filter(|&&x| x >= 0.0).count();
                     let found = ok as f64 / n.max(1) as f64;
                     (found >= share, Some(found))
                 }

@@ -75,7 +75,7 @@ impl Measure {
     pub fn of(self, z: C64) -> f64 {
         match self {
             Measure::Value => z.re,
-            Measure::Magnitude => z.norm(),
+            Measure::Magnitude => crate::engine::ops::abs(z),
         }
     }
 }
@@ -274,21 +274,28 @@ impl Plan {
 
     /// Each input's value at point `p`.
     pub fn input_values(&self, p: &[f64]) -> Vec<C64> {
-        let mut mag = vec![0.0; self.inputs.len()];
-        let mut ang = vec![0.0; self.inputs.len()];
-        let mut choice = vec![usize::MAX; self.inputs.len()];
-        for (d, &x) in self.dims.iter().zip(p) {
-            match d.dir {
-                Direction::Magnitude => mag[d.input] = x,
-                Direction::Angle => ang[d.input] = x,
-                Direction::Choice => choice[d.input] = x.round().max(0.0) as usize,
+        let mut out = vec![C64::new(0.0, 0.0); self.inputs.len()];
+        self.values_into(p, &mut out);
+        out
+    }
+
+    /// [`Plan::input_values`] into `out`, allocating nothing (the
+    /// directions of one input are consecutive in `dims`).
+    pub fn values_into(&self, p: &[f64], out: &mut [C64]) {
+        let mut d = 0;
+        for (k, (i, o)) in self.inputs.iter().zip(out.iter_mut()).enumerate() {
+            let (mut mag, mut ang, mut choice) = (0.0, 0.0, usize::MAX);
+            while d < self.dims.len() && self.dims[d].input == k {
+                let x = p[d];
+                match self.dims[d].dir {
+                    Direction::Magnitude => mag = x,
+                    Direction::Angle => ang = x,
+                    Direction::Choice => choice = x.round().max(0.0) as usize,
+                }
+                d += 1;
             }
+            *o = i.spread.value(i.nominal, mag, ang, choice);
         }
-        self.inputs
-            .iter()
-            .enumerate()
-            .map(|(k, i)| i.spread.value(i.nominal, mag[k], ang[k], choice[k]))
-            .collect()
     }
 
     /// A fresh block for this plan (each thread keeps its own).
@@ -299,6 +306,16 @@ impl Plan {
     /// Evaluate up to 64 sets of input values (one per lane) in `block`
     /// and write each lane's shown values to `out[lane][shown]`.
     pub fn run_lanes(&self, block: &mut Block, inputs: &[Vec<C64>], out: &mut [Vec<C64>]) {
+        self.run_inputs(block, inputs);
+        for (l, row) in out.iter_mut().enumerate().take(inputs.len()) {
+            for (k, v) in row.iter_mut().enumerate().take(self.shown.len()) {
+                *v = self.lane_value(block, k, l);
+            }
+        }
+    }
+
+    /// Evaluate up to 64 sets of input values (one per lane) in `block`.
+    pub fn run_inputs(&self, block: &mut Block, inputs: &[Vec<C64>]) {
         debug_assert!(inputs.len() <= LANES);
         for (l, vals) in inputs.iter().enumerate() {
             for (i, v) in self.inputs.iter().zip(vals) {
@@ -306,16 +323,15 @@ impl Plan {
             }
         }
         block.run(&self.code, &self.prog);
-        for (l, row) in out.iter_mut().enumerate().take(inputs.len()) {
-            for (k, s) in self.shown.iter().enumerate() {
-                let slot = s.series.slot;
-                row[k] = match s.check {
-                    Some(tol) => {
-                        checks::margin(tol, block.get(slot, l), block.get(slot + 1, l), block.get(slot + 2, l))
-                    }
-                    None => block.get(slot, l),
-                };
-            }
+    }
+
+    /// Shown value `k` in lane `l` of an evaluated block (a check's margin).
+    pub fn lane_value(&self, block: &Block, k: usize, l: usize) -> C64 {
+        let s = &self.shown[k];
+        let slot = s.series.slot;
+        match s.check {
+            Some(tol) => checks::margin(tol, block.get(slot, l), block.get(slot + 1, l), block.get(slot + 2, l)),
+            None => block.get(slot, l),
         }
     }
 

@@ -114,48 +114,53 @@ pub struct McResult {
 /// The percentiles reported.
 pub const PERCENTILES: &[f64] = &[0.01, 0.05, 0.5, 0.95, 0.99];
 
-/// Draw the inputs of sample lane `l` of block `b`.
-fn draw(plan: &Plan, rng: &mut Rng, out: &mut Vec<C64>) {
-    let mut p = Vec::with_capacity(plan.dims.len());
-    for d in &plan.dims {
+/// Samples per parallel task: a whole number of blocks of 64, each drawn
+/// from its own stream, so the samples do not depend on the tasks.
+const TASK: usize = LANES * 64;
+
+/// Draw one sample's inputs into `out` (`p`: scratch, one offset per
+/// direction of the box).
+fn draw(plan: &Plan, rng: &mut Rng, p: &mut [f64], out: &mut [C64]) {
+    for (x, d) in p.iter_mut().zip(&plan.dims) {
         let s = &plan.inputs[d.input].spread;
-        let x = match (d.dir, &s.law) {
+        *x = match (d.dir, &s.law) {
             (Direction::Choice, Law::Among(v)) => ((rng.uniform() * v.len() as f64) as usize).min(v.len() - 1) as f64,
             (_, Law::Normal { .. }) => rng.normal() * s.std_dev(d.dir),
             _ => d.lo + (d.hi - d.lo) * rng.uniform(),
         };
-        p.push(x);
     }
-    *out = plan.input_values(&p);
+    plan.values_into(p, out);
 }
 
-/// The measures of `opt.samples` samples, sample-major (sample s, shown
-/// value c at s·k + c), as `monte_carlo` draws them.
-pub fn measures(plan: &Plan, opt: &McOptions) -> Vec<f64> {
+/// The measures of `opt.samples` samples, one column per shown value (in
+/// sample order), as `monte_carlo` draws them.
+pub fn measures(plan: &Plan, opt: &McOptions) -> Vec<Vec<f64>> {
     sample_all(plan, opt).0
 }
 
 /// Run `opt.samples` samples of the box and summarise each shown cell.
 pub fn monte_carlo(plan: &Plan, opt: &McOptions) -> McResult {
     let n = opt.samples.max(1);
-    let k = plan.shown.len();
     let (meas, angs) = sample_all(plan, opt);
     let cells = plan
         .shown
         .par_iter()
-        .enumerate()
-        .map(|(c, s)| {
-            let mut col: Vec<f64> = (0..n).map(|i| meas[i * k + c]).filter(|x| x.is_finite()).collect();
-            let undefined = n - col.len();
+        .zip(meas.into_par_iter().zip(angs.into_par_iter()))
+        .map(|(s, (mut col, ang))| {
             let base = if s.nominal.norm() > 0.0 { s.nominal.arg() } else { 0.0 };
             let angle = (s.measure == Measure::Magnitude).then(|| {
-                let a: Vec<f64> = (0..n)
-                    .filter(|&i| meas[i * k + c].is_finite())
-                    .map(|i| angs[i * k + c])
+                let a: Vec<f64> = ang
+                    .iter()
+                    .zip(&col)
+                    .filter(|(_, m)| m.is_finite())
+                    .map(|(a, _)| *a)
                     .collect();
                 let (m, sd) = mean_std(&a);
                 (base + m, sd)
             });
+            drop(ang);
+            col.retain(|x| x.is_finite());
+            let undefined = n - col.len();
             summarise(
                 s.series.name.clone(),
                 s.measure,
@@ -175,44 +180,99 @@ pub fn monte_carlo(plan: &Plan, opt: &McOptions) -> McResult {
     }
 }
 
-fn sample_all(plan: &Plan, opt: &McOptions) -> (Vec<f64>, Vec<f64>) {
+/// Each shown value's measures, a column per value, and for a value
+/// judged by its magnitude the angles about its stated one (empty for the
+/// others).
+fn sample_all(plan: &Plan, opt: &McOptions) -> (Vec<Vec<f64>>, Vec<Vec<f64>>) {
     let n = opt.samples.max(1);
     let k = plan.shown.len();
-    // Sample-major: sample s, cell c at s·k + c. Complex cells keep their
-    // angle (about the stated one) beside.
-    let mut meas = vec![0.0f64; n * k];
-    let mut angs = vec![0.0f64; n * k];
-    meas.par_chunks_mut(LANES * k.max(1))
-        .zip(angs.par_chunks_mut(LANES * k.max(1)))
-        .enumerate()
-        .for_each_init(
-            || {
-                (
-                    plan.block(),
-                    vec![Vec::new(); LANES],
-                    vec![vec![C64::new(0.0, 0.0); k]; LANES],
-                )
-            },
-            |(block, ins, outs), (b, (m, a))| {
-                let lanes = m.len().checked_div(k).unwrap_or(0);
-                let mut rng = Rng::for_block(opt.seed, b as u64);
+    let mut meas: Vec<Vec<f64>> = (0..k).map(|_| vec![0.0; n]).collect();
+    let mut angs: Vec<Vec<f64>> = plan
+        .shown
+        .iter()
+        .map(|s| {
+            if s.measure == Measure::Magnitude {
+                vec![0.0; n]
+            } else {
+                Vec::new()
+            }
+        })
+        .collect();
+    // Each task gets its stretch of every column.
+    type Stretch<'a> = (Vec<&'a mut [f64]>, Vec<&'a mut [f64]>);
+    let mut tasks: Vec<Stretch> = (0..n.div_ceil(TASK))
+        .map(|_| (Vec::with_capacity(k), Vec::with_capacity(k)))
+        .collect();
+    for col in meas.iter_mut() {
+        for (t, ch) in col.chunks_mut(TASK).enumerate() {
+            tasks[t].0.push(ch);
+        }
+    }
+    for col in angs.iter_mut() {
+        if col.is_empty() {
+            for t in tasks.iter_mut() {
+                t.1.push(Default::default());
+            }
+        } else {
+            for (t, ch) in col.chunks_mut(TASK).enumerate() {
+                tasks[t].1.push(ch);
+            }
+        }
+    }
+    // The turn that takes each stated value to the real axis.
+    let unturn: Vec<C64> = plan
+        .shown
+        .iter()
+        .map(|s| {
+            let r = s.nominal.norm();
+            if r > 0.0 && r.is_finite() {
+                s.nominal.conj() / r
+            } else {
+                C64::new(1.0, 0.0)
+            }
+        })
+        .collect();
+    tasks.into_par_iter().enumerate().for_each_init(
+        || {
+            (
+                plan.block(),
+                vec![vec![C64::new(0.0, 0.0); plan.inputs.len()]; LANES],
+                vec![0.0; plan.dims.len()],
+            )
+        },
+        |(block, ins, p), (t, (mut m, mut a))| {
+            let len = (n - t * TASK).min(TASK);
+            for (j, start) in (0..len).step_by(LANES).enumerate() {
+                let lanes = (len - start).min(LANES);
+                let mut rng = Rng::for_block(opt.seed, (t * (TASK / LANES) + j) as u64);
                 for v in ins.iter_mut().take(lanes) {
-                    draw(plan, &mut rng, v);
+                    draw(plan, &mut rng, p, v);
                 }
-                plan.run_lanes(block, &ins[..lanes], outs);
-                for l in 0..lanes {
-                    for (c, s) in plan.shown.iter().enumerate() {
-                        let z = outs[l][c];
-                        m[l * k + c] = s.measure.of(z);
-                        a[l * k + c] = if s.nominal.norm() > 0.0 {
-                            (z / s.nominal).arg()
-                        } else {
-                            z.arg()
-                        };
+                plan.run_inputs(block, &ins[..lanes]);
+                for (c, s) in plan.shown.iter().enumerate() {
+                    let out = &mut m[c][start..start + lanes];
+                    if s.check.is_some() {
+                        for (l, o) in out.iter_mut().enumerate() {
+                            *o = s.measure.of(plan.lane_value(block, c, l));
+                        }
+                        continue;
+                    }
+                    let (re, im) = block.lanes(s.series.slot);
+                    match s.measure {
+                        Measure::Value => out.copy_from_slice(&re[..lanes]),
+                        Measure::Magnitude => {
+                            let ang = &mut a[c][start..start + lanes];
+                            for l in 0..lanes {
+                                let z = C64::new(re[l], im[l]);
+                                out[l] = crate::engine::ops::abs(z);
+                                ang[l] = (z * unturn[c]).arg();
+                            }
+                        }
                     }
                 }
-            },
-        );
+            }
+        },
+    );
     (meas, angs)
 }
 
@@ -243,13 +303,12 @@ fn summarise(
     angle: Option<(f64, f64)>,
 ) -> McCell {
     let (mean, std_dev) = mean_std(col);
-    col.sort_unstable_by(f64::total_cmp);
-    let (min, max) = match (col.first(), col.last()) {
-        (Some(a), Some(b)) => (*a, *b),
-        _ => (f64::NAN, f64::NAN),
+    let (min, max) = if col.is_empty() {
+        (f64::NAN, f64::NAN)
+    } else {
+        col.iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)))
     };
-    let percentiles = PERCENTILES.iter().map(|&p| (p, order_statistic(col, p))).collect();
-    let coverage = coverage_interval(col, opt.coverage);
     let bins = opt.bins.max(1);
     let mut counts = vec![0u64; bins];
     if max > min {
@@ -261,6 +320,32 @@ fn summarise(
     } else if !col.is_empty() {
         counts[0] = col.len() as u64;
     }
+    // The order statistics wanted, found by selection rather than a whole
+    // sort: each selection leaves the larger samples after its place, so
+    // the next one searches only those.
+    let m = col.len();
+    let (c_lo, c_hi) = coverage_ranks(m, opt.coverage);
+    let mut ranks: Vec<usize> = PERCENTILES
+        .iter()
+        .map(|&p| order_rank(m, p))
+        .chain([c_lo, c_hi])
+        .collect();
+    ranks.sort_unstable();
+    ranks.dedup();
+    let mut at = vec![f64::NAN; ranks.len()];
+    let mut from = 0;
+    for (k, &r) in ranks.iter().enumerate() {
+        if r == 0 || r > m {
+            continue;
+        }
+        let i = r - 1;
+        col[from..].select_nth_unstable_by(i - from, f64::total_cmp);
+        at[k] = col[i];
+        from = i + 1;
+    }
+    let value = |r: usize| ranks.iter().position(|&x| x == r).map_or(f64::NAN, |k| at[k]);
+    let percentiles = PERCENTILES.iter().map(|&p| (p, value(order_rank(m, p)))).collect();
+    let coverage = (value(c_lo), value(c_hi));
     McCell {
         name,
         measure,
@@ -281,24 +366,21 @@ fn summarise(
     }
 }
 
-/// The ⌈pM⌉-th smallest of the sorted samples (the first for p = 0).
-pub fn order_statistic(sorted: &[f64], p: f64) -> f64 {
-    if sorted.is_empty() {
-        return f64::NAN;
+/// The 1-based rank of the ⌈pM⌉-th smallest of M samples (the first for
+/// p = 0); 0 when there are none.
+fn order_rank(m: usize, p: f64) -> usize {
+    if m == 0 {
+        return 0;
     }
-    let m = sorted.len();
-    let r = ((p * m as f64).ceil() as usize).clamp(1, m);
-    sorted[r - 1]
+    ((p * m as f64).ceil() as usize).clamp(1, m)
 }
 
-/// The probabilistically symmetric 100p % coverage interval from sorted
-/// samples, JCGM 101:2008 §7.7: q = pM if that is a whole number, else the
-/// integer part of pM + 1/2; r = (M − q)/2 if M − q is even, else
-/// (M − q + 1)/2; the interval is [y(r), y(r+q)] (1-based).
-pub fn coverage_interval(sorted: &[f64], p: f64) -> (f64, f64) {
-    let m = sorted.len();
+/// The 1-based ranks of the ends of the probabilistically symmetric
+/// 100p % coverage interval of M samples (JCGM 101:2008 §7.7, see
+/// [`coverage_interval`]); (0, 0) when there are none.
+fn coverage_ranks(m: usize, p: f64) -> (usize, usize) {
     if m == 0 {
-        return (f64::NAN, f64::NAN);
+        return (0, 0);
     }
     let pm = p * m as f64;
     let q = if pm.fract() == 0.0 {
@@ -308,10 +390,27 @@ pub fn coverage_interval(sorted: &[f64], p: f64) -> (f64, f64) {
     };
     let q = q.min(m);
     // (M − q)/2 when even, (M − q + 1)/2 when odd.
-    let r = (m - q).div_ceil(2);
-    let r = r.max(1);
-    let hi = (r + q).min(m);
-    (sorted[r - 1], sorted[hi - 1])
+    let r = (m - q).div_ceil(2).max(1);
+    (r, (r + q).min(m))
+}
+
+/// The ⌈pM⌉-th smallest of the sorted samples (the first for p = 0).
+pub fn order_statistic(sorted: &[f64], p: f64) -> f64 {
+    match order_rank(sorted.len(), p) {
+        0 => f64::NAN,
+        r => sorted[r - 1],
+    }
+}
+
+/// The probabilistically symmetric 100p % coverage interval from sorted
+/// samples, JCGM 101:2008 §7.7: q = pM if that is a whole number, else the
+/// integer part of pM + 1/2; r = (M − q)/2 if M − q is even, else
+/// (M − q + 1)/2; the interval is [y(r), y(r+q)] (1-based).
+pub fn coverage_interval(sorted: &[f64], p: f64) -> (f64, f64) {
+    match coverage_ranks(sorted.len(), p) {
+        (0, _) => (f64::NAN, f64::NAN),
+        (lo, hi) => (sorted[lo - 1], sorted[hi - 1]),
+    }
 }
 
 #[cfg(test)]
@@ -324,6 +423,27 @@ mod tests {
         // prng.di.unimi.it/splitmix64.c — from memory): first output.
         let mut r = Rng::new(0);
         assert_eq!(r.next_u64(), 0xE220_A839_7B1D_CDAF);
+    }
+
+    // The order statistics found by selection are those of the sorted
+    // samples (a plain sort, the definition), whatever the sample count.
+    #[test]
+    fn selection_gives_the_sorted_order_statistics() {
+        let mut rng = Rng::new(3);
+        for m in [1usize, 2, 3, 19, 20, 40, 101, 1000, 4097] {
+            let x: Vec<f64> = (0..m).map(|_| (rng.uniform() * 7.0).floor() + rng.uniform()).collect();
+            let mut sorted = x.clone();
+            sorted.sort_by(f64::total_cmp);
+            let mut col = x.clone();
+            let opt = McOptions::default();
+            let c = summarise("x".into(), Measure::Value, 0.0, &mut col, &opt, 0, None);
+            for &(p, v) in &c.percentiles {
+                assert_eq!(v, order_statistic(&sorted, p), "m = {m}, p = {p}");
+            }
+            assert_eq!(c.coverage, coverage_interval(&sorted, 0.95), "m = {m}");
+            assert_eq!((c.min, c.max), (sorted[0], sorted[m - 1]));
+            assert_eq!(c.histogram.counts.iter().sum::<u64>(), m as u64);
+        }
     }
 
     #[test]
