@@ -298,8 +298,15 @@ proptest! {
             let e = l.split(' ').next().unwrap();
             src += &format!("i_{e} = net_i(n, {e})\nv_{e} = net_v(n, {}, {})\n", node(a), node(b));
         }
+        for k in 1..=net.nodes {
+            src += &format!("vn_{k} = net_v(n, {})\n", node(k));
+        }
+        for b in &net.branches {
+            src += &format!("ib_{} = net_i(n, {})\n", b.name, b.name);
+        }
         src += "bal = net_balance(n)\n";
         let e = engine(&src);
+        let vn = |k: usize| if k == 0 { 0.0 } else { value(&e, &format!("vn_{k}")).norm() };
         // The scale of the rounding: each element's power, and for a source
         // the gross product behind its terminals — |E|·|I| for an emf, |V|·|J|
         // for an injection — since its delivered power is what is left after
@@ -321,6 +328,12 @@ proptest! {
             } else {
                 m * value(&e, &format!("v_{name}")).norm()
             };
+        }
+        // A branch's voltage is a difference of node voltages, rounded at
+        // their size: |I|·(|Va| + |Vb|) bounds its power's rounding even
+        // where the difference cancels to almost nothing.
+        for b in &net.branches {
+            mag += value(&e, &format!("ib_{}", b.name)).norm() * (vn(b.a) + vn(b.b));
         }
         prop_assert!(mag > 0.0);
         let t = tol(&net, kappa);

@@ -116,6 +116,30 @@ pub fn solve(sheet: Sheet, req: &SolveRequest) -> Result<Solution, SolveError> {
                     .with_hint("the two sides of the target must have one unit"),
                 ));
             }
+            // As a check's two sides: `arg(Z) = 0.5` (degrees or radians?)
+            // and `im(S) = 100 kW` (a var against a W) are refused.
+            if let Err(c) = crate::units::kind::kind_of_sum(expr.quantity.kind, s.quantity.kind, expr.quantity.dim) {
+                let code = if c.angle {
+                    ErrorCode::AngleAmbiguous
+                } else {
+                    ErrorCode::KindMismatch
+                };
+                return Err(fail(
+                    Diagnostic::unplaced(
+                        code,
+                        format!(
+                            "the target `{v}` cannot be compared with `{}`: {}",
+                            req.expr.trim(),
+                            c.message
+                        ),
+                    )
+                    .with_hint(if c.angle {
+                        "give the angle its unit: `30°` or `0.5 rad`"
+                    } else {
+                        c.hint
+                    }),
+                ));
+            }
             Some(study.engine.slots()[s.slot as usize])
         }
         None => None,

@@ -12,4 +12,5 @@ mod lookalikes;
 mod numerics;
 mod overrides;
 mod ranges;
+mod search_targets;
 mod trig_note;

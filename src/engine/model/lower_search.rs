@@ -10,6 +10,7 @@
 //! the incremental engine re-runs the search when any of those change, and
 //! not when the varied input itself does.
 
+use crate::units::kind::kind_of_sum;
 use num_complex::Complex64 as C64;
 
 use super::{Cell, CellId, Lowerer, Role, Val, R};
@@ -263,6 +264,27 @@ impl Lowerer<'_> {
                     .with_secondary(s.target.span, tq.describe())
                     .with_hint("the two sides of `=` must have one unit"));
                 }
+                // The same kind rules as a check's two sides: `arg(Z) = 0.5`
+                // (degrees or radians?) and `im(S) = 100 kW` (a var against
+                // a W) are refused, never read one way silently.
+                kind_of_sum(tq.kind, q.kind, tq.dim).map_err(|m| {
+                    Diagnostic::error(
+                        if m.angle {
+                            ErrorCode::AngleAmbiguous
+                        } else {
+                            ErrorCode::KindMismatch
+                        },
+                        v.span,
+                        format!("the target value cannot be compared with the expression: {}", m.message),
+                    )
+                    .with_label(q.describe())
+                    .with_secondary(s.target.span, tq.describe())
+                    .with_hint(if m.angle {
+                        "give the angle its unit: `30°` or `0.5 rad`"
+                    } else {
+                        m.hint
+                    })
+                })?;
                 (Goal::Root, o)
             }
             SearchGoal::Largest => (Goal::Max, lo),
