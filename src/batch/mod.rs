@@ -116,6 +116,30 @@ pub struct Plan {
 
 const DEG: f64 = std::f64::consts::PI / 180.0;
 
+/// A computed cell named on the command line (`--show`, `--spread`), or
+/// a field of one (`fault.ia`): its id and the field, or an error with a
+/// did-you-mean naming the option.
+pub(super) fn shown_cell<'a>(m: &Model, n: &'a str, option: &str) -> Result<(CellId, Option<&'a str>), Diagnostic> {
+    let (base, field) = match m.id(n) {
+        Some(_) => (n, None),
+        None => match n.split_once('.') {
+            Some((b, f)) => (b, Some(f)),
+            None => (n, None),
+        },
+    };
+    match m.id(base) {
+        Some(id) if m.cells[id as usize].role == Role::Def => Ok((id, field)),
+        _ => {
+            let names = m.defs().map(|(_, c)| c.name.as_str());
+            let mut d = plan_error(format!("{option}: the sheet has no cell `{n}`"));
+            if let Some(s) = did_you_mean(n, names) {
+                d = d.with_hint(format!("did you mean `{s}`?"));
+            }
+            Err(d)
+        }
+    }
+}
+
 fn plan_error(message: impl Into<String>) -> Diagnostic {
     Diagnostic::unplaced(ErrorCode::BadCases, message)
 }
@@ -535,24 +559,8 @@ impl Plan {
             Some(names) => {
                 for n in names {
                     let n = n.trim();
-                    let (base, field) = match m.id(n) {
-                        Some(_) => (n, None),
-                        None => match n.split_once('.') {
-                            Some((b, f)) => (b, Some(f)),
-                            None => (n, None),
-                        },
-                    };
-                    let id = match m.id(base) {
-                        Some(id) if m.cells[id as usize].role == Role::Def => id,
-                        _ => {
-                            let names = m.defs().map(|(_, c)| c.name.as_str());
-                            let mut d = plan_error(format!("--show: the sheet has no cell `{n}`"));
-                            if let Some(s) = did_you_mean(n, names) {
-                                d = d.with_hint(format!("did you mean `{s}`?"));
-                            }
-                            return Err(d);
-                        }
-                    };
+                    let (id, field) = shown_cell(m, n, "--show")?;
+                    let base = m.cells[id as usize].name.as_str();
                     match (field, &m.cells[id as usize].shape) {
                         (None, _) => fields(id).into_iter().for_each(|f| add(id, f)),
                         (Some(f), Some(Shape::Record(fs))) => match fs.iter().position(|x| x.0 == f) {

@@ -12,9 +12,9 @@ use std::sync::Arc;
 
 use num_complex::Complex64 as C64;
 
-use super::{plan_error, real_by_nature, written_in, Plan};
-use crate::diag::{did_you_mean, Diagnostic};
-use crate::engine::{Engine, Role};
+use super::{plan_error, real_by_nature, shown_cell, written_in, Plan};
+use crate::diag::Diagnostic;
+use crate::engine::Engine;
 use crate::funcs::Shape;
 use crate::spread::{monte_carlo, worst_case, McOptions, Measure};
 use crate::sweep::Series;
@@ -188,24 +188,8 @@ impl SpreadCols {
         let m = &*batch.model;
         let mut series: Vec<Series> = Vec::new();
         for n in names.iter().map(|n| n.trim()).filter(|n| !n.is_empty()) {
-            let (base, field) = match m.id(n) {
-                Some(_) => (n, None),
-                None => match n.split_once('.') {
-                    Some((b, f)) => (b, Some(f)),
-                    None => (n, None),
-                },
-            };
-            let id = match m.id(base) {
-                Some(id) if m.cells[id as usize].role == Role::Def => id,
-                _ => {
-                    let all = m.defs().map(|(_, c)| c.name.as_str());
-                    let mut d = plan_error(format!("--spread: the sheet has no cell `{n}`"));
-                    if let Some(s) = did_you_mean(n, all) {
-                        d = d.with_hint(format!("did you mean `{s}`?"));
-                    }
-                    return Err(d);
-                }
-            };
+            let (id, field) = shown_cell(m, n, "--spread")?;
+            let base = m.cells[id as usize].name.as_str();
             let c = &m.cells[id as usize];
             if c.error.is_some() {
                 return Err(plan_error(format!("--spread: `{n}` has an error in the sheet")));
