@@ -267,6 +267,19 @@ impl Analyses<'_> {
     pub fn json(&self, sheet: &str) -> Value {
         let plan = self.plan;
         let unit = |c: usize| base_symbol(plan.shown[c].series.quantity);
+        // What every analysis says of a cell first, then its own fields.
+        let cell_json = |c: usize, name: &str, nominal: f64, rest: Value| -> Value {
+            let mut v = json!({
+                "name": name,
+                "measure": self.measure_word(c),
+                "unit": unit(c),
+                "stated": fin(nominal),
+            });
+            if let (Some(o), Value::Object(r)) = (v.as_object_mut(), rest) {
+                o.extend(r);
+            }
+            v
+        };
         let inputs: Vec<Value> = plan
             .inputs
             .iter()
@@ -302,14 +315,15 @@ impl Analyses<'_> {
                 .iter()
                 .enumerate()
                 .map(|(c, cell)| {
-                    json!({
-                        "name": cell.name,
-                        "measure": self.measure_word(c),
-                        "unit": unit(c),
-                        "stated": fin(cell.nominal),
-                        "min": point(&cell.min),
-                        "max": point(&cell.max),
-                    })
+                    cell_json(
+                        c,
+                        &cell.name,
+                        cell.nominal,
+                        json!({
+                            "min": point(&cell.min),
+                            "max": point(&cell.max),
+                        }),
+                    )
                 })
                 .collect();
             let method = match w.method {
@@ -324,11 +338,7 @@ impl Analyses<'_> {
                 .iter()
                 .enumerate()
                 .map(|(c, cell)| {
-                    json!({
-                        "name": cell.name,
-                        "measure": self.measure_word(c),
-                        "unit": unit(c),
-                        "stated": fin(cell.nominal),
+                    cell_json(c, &cell.name, cell.nominal, json!({
                         "mean": fin(cell.mean),
                         "std_dev": fin(cell.std_dev),
                         "min": fin(cell.min),
@@ -339,7 +349,7 @@ impl Analyses<'_> {
                         "angle_mean_rad": cell.angle.map(|a| fin(a.0)),
                         "angle_std_dev_rad": cell.angle.map(|a| fin(a.1)),
                         "undefined": cell.undefined,
-                    })
+                    }))
                 })
                 .collect();
             root["monte_carlo"] = json!({
@@ -355,22 +365,23 @@ impl Analyses<'_> {
                 .iter()
                 .enumerate()
                 .map(|(c, cell)| {
-                    json!({
-                        "name": cell.name,
-                        "measure": self.measure_word(c),
-                        "unit": unit(c),
-                        "stated": fin(cell.nominal),
-                        "first_order_std_dev": fin(cell.gum_std),
-                        "inputs": cell.rows.iter().map(|r| json!({
-                            "input": plan.inputs[r.input].name,
-                            "direction": match r.dir { Direction::Angle => "angle", _ => "magnitude" },
-                            "magnitude": fin(r.mag),
-                            "angle_deg": r.angle.map(fin),
-                            "contribution": fin(r.contribution),
-                            "low": fin(r.low),
-                            "high": fin(r.high),
-                        })).collect::<Vec<_>>(),
-                    })
+                    cell_json(
+                        c,
+                        &cell.name,
+                        cell.nominal,
+                        json!({
+                            "first_order_std_dev": fin(cell.gum_std),
+                            "inputs": cell.rows.iter().map(|r| json!({
+                                "input": plan.inputs[r.input].name,
+                                "direction": match r.dir { Direction::Angle => "angle", _ => "magnitude" },
+                                "magnitude": fin(r.mag),
+                                "angle_deg": r.angle.map(fin),
+                                "contribution": fin(r.contribution),
+                                "low": fin(r.low),
+                                "high": fin(r.high),
+                            })).collect::<Vec<_>>(),
+                        }),
+                    )
                 })
                 .collect();
             root["sensitivities"] = json!({
