@@ -11,8 +11,9 @@
 //!   cargo bench --bench spread -- sens [REPEATS]
 //!       sensitivities of every computed cell of bench/feeder_tol20.ohm
 //!       (the feeder with twenty toleranced inputs) to every input, on
-//!       every core and on one thread; and the same from the sheet's text
-//!       (compiling it and making the plan included).
+//!       every core and on one thread, by forward mode; the same from the
+//!       sheet's text (compiling it and making the plan included); and by
+//!       the whole-program difference scheme.
 //!
 //! Prints one JSON object per line: medians of the repeats, wall-clock
 //! and CPU time (the process's, all threads), so that waiting for a core
@@ -22,7 +23,7 @@ use std::path::Path;
 use std::time::Instant;
 
 use ohmsheet::sheet::Sheet;
-use ohmsheet::spread::{monte_carlo, plan_for, sensitivities, McOptions, Plan};
+use ohmsheet::spread::{monte_carlo, plan_for, sensitivities, sensitivities_by, McOptions, Plan, Scheme};
 
 fn cpu_ns() -> f64 {
     let mut t = libc::timespec { tv_sec: 0, tv_nsec: 0 };
@@ -109,6 +110,8 @@ fn sens(repeats: usize) {
         let pl = pool(threads);
         let (wall, cpu, s) = pl.install(|| time(repeats, |_| sensitivities(&p)));
         let (wall_all, cpu_all, _) = pl.install(|| time(repeats, |_| sensitivities(&plan(&name, &t))));
+        // The whole-program difference scheme, side by side.
+        let (wall_d, cpu_d, _) = pl.install(|| time(repeats, |_| sensitivities_by(&p, Scheme::Differences)));
         println!(
             "{}",
             serde_json::json!({
@@ -121,6 +124,8 @@ fn sens(repeats: usize) {
                 "cpu_ms": cpu,
                 "with_compile_wall_ms": wall_all,
                 "with_compile_cpu_ms": cpu_all,
+                "differences_wall_ms": wall_d,
+                "differences_cpu_ms": cpu_d,
             })
         );
     }

@@ -64,6 +64,7 @@ mod session_pty;
 mod session_spread;
 mod spread;
 mod spread_checks;
+mod spread_forward;
 mod spread_plot_render;
 mod spread_reference;
 mod sweep;

@@ -255,3 +255,73 @@ fn a_zero_input_only_grows_and_still_contributes() {
     assert!((w.cells[0].min.value - 100.0 / 11.0).abs() < 1e-12);
     assert_eq!(w.cells[0].max.value, 10.0);
 }
+
+// A percentage of zero is zero: `Zs = 0 Ω within 5 %` would vary nothing
+// and give a spread of exactly nothing without a word. It is refused at
+// the band, in the sheet, through `--set`, and in a batch case that sets
+// the input to 0, each time with the absolute band to write instead; so
+// is an angle band on a zero value.
+#[test]
+fn a_percentage_or_angle_band_on_a_zero_value_is_refused() {
+    for src in [
+        "Zs = 0 Ω within 5 %\n",
+        "Zs = 0 Ω within -0 % .. +5 %\n",
+        "Vs = 0 V ∠ 0° within 0 % angle 2°\n",
+    ] {
+        let d = crate::common::errors(src);
+        assert_eq!(d[0].code, ohmsheet::diag::ErrorCode::BadInputTolerance, "{src}");
+        let hint = d[0].hint.clone().unwrap_or_default();
+        assert!(hint.contains("`within 0 .. +A`"), "{src}: {hint}");
+        // The caret is on the band, not the value.
+        let at = d[0].span.unwrap().start as usize;
+        assert!(at > src.find("within").unwrap(), "{src}: at byte {at}");
+    }
+    // A zero band on a zero value is no tolerance at all, and stands.
+    assert!(
+        plan("Zs = 0 Ω within 0 %\nZl = 10 Ω\nI = 1 V / (Zs + Zl)\n", &["I"])
+            .inputs
+            .len()
+            == 1
+    );
+    let dir = tempfile::tempdir().unwrap();
+    let sheet = dir.path().join("s.ohm");
+    std::fs::write(
+        &sheet,
+        "Vs = 100 V\nZs = 0.5 Ω within 5 %\nZl = 10 Ω\nI = Vs / (Zs + Zl)\n",
+    )
+    .unwrap();
+    let out = ohmsheet()
+        .args(["spread", sheet.to_str().unwrap(), "--set", "Zs=0 Ω", "--samples", "100"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("a percentage of zero is zero"), "{err}");
+    let cases = dir.path().join("cases.csv");
+    std::fs::write(&cases, "Zs\n0.2 Ω\n0 Ω\n").unwrap();
+    let res = dir.path().join("res.csv");
+    let out = ohmsheet()
+        .args([
+            "batch",
+            sheet.to_str().unwrap(),
+            "--cases",
+            cases.to_str().unwrap(),
+            "-o",
+        ])
+        .arg(&res)
+        .args(["--spread", "I", "--samples", "1000"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    let text = std::fs::read_to_string(&res).unwrap();
+    let rows: Vec<&str> = text.lines().collect();
+    // The first case has its spread: I = 100/(Zs + 10) with Zs ±5 % of
+    // 0.2 Ω, so the worst |I| is 100/10.19 A … 100/10.21 A (closed form).
+    let first: Vec<&str> = rows[1].split(',').collect();
+    let lo: f64 = first[5].parse().unwrap();
+    assert!((lo - 100.0 / 10.21).abs() < 1e-9, "{lo}");
+    // The second gives its value, the spread left empty, and the reason.
+    assert!(rows[2].ends_with(",,,,,,,,"), "{}", rows[2]);
+    let errs = std::fs::read_to_string(res.with_extension("errors.csv")).unwrap();
+    assert!(errs.contains("a percentage of a zero value is zero"), "{errs}");
+}

@@ -3,7 +3,7 @@
 //!   computed with numpy (tests/reference/gen_spread.py), with the extreme
 //!   at a corner, inside the box and on a ridge;
 //! - sensitivities against central differences at 50 digits (mpmath, same
-//!   script);
+//!   script): forward mode to 1e-12, the difference scheme to 1e-8;
 //! - the first-order standard deviation by the law of propagation of
 //!   uncertainty (JCGM 100:2008, the GUM, §5.1.2) against Monte Carlo,
 //!   within the Monte Carlo's own statistical bound;
@@ -11,7 +11,7 @@
 //!   exact interval of a uniform output;
 //! - with every tolerance zero, every analysis gives the stated value.
 
-use ohmsheet::spread::{monte_carlo, sensitivities, worst_case, McOptions};
+use ohmsheet::spread::{monte_carlo, sensitivities, sensitivities_by, worst_case, McOptions, Scheme};
 use proptest::prelude::*;
 use serde_json::Value;
 
@@ -82,44 +82,48 @@ fn sensitivities_agree_with_high_precision_differences() {
             n
         };
         let p = plan(c["sheet"].as_str().unwrap(), &cells);
-        let s = sensitivities(&p);
-        let mut n = 0;
-        for r in rows {
-            let cell = s.cells.iter().find(|x| x.name == r["cell"].as_str().unwrap()).unwrap();
-            let dir = r["direction"].as_str().unwrap();
-            let row = cell
-                .rows
-                .iter()
-                .find(|x| {
-                    p.inputs[x.input].name == r["input"].as_str().unwrap()
-                        && matches!(
-                            (x.dir, dir),
-                            (ohmsheet::engine::tolerance::Direction::Angle, "angle")
-                                | (ohmsheet::engine::tolerance::Direction::Magnitude, "magnitude")
-                        )
-                })
-                .unwrap();
-            let want = r["magnitude"].as_f64().unwrap();
-            assert!(
-                (row.mag - want).abs() <= 1e-8 * want.abs().max(1.0),
-                "{} to {} {dir}: {} against {want}",
-                cell.name,
-                r["input"],
-                row.mag
-            );
-            match (row.angle, r["angle"].as_f64()) {
-                (Some(a), Some(want)) => assert!(
-                    (a - want).abs() <= 1e-8 * want.abs().max(1.0),
-                    "{} angle to {} {dir}: {a} against {want}",
+        // Forward mode is exact to rounding; the documented difference
+        // scheme to its O(h⁴) truncation.
+        for (scheme, tol) in [(Scheme::Forward, 1e-12), (Scheme::Differences, 1e-8)] {
+            let s = sensitivities_by(&p, scheme);
+            let mut n = 0;
+            for r in rows {
+                let cell = s.cells.iter().find(|x| x.name == r["cell"].as_str().unwrap()).unwrap();
+                let dir = r["direction"].as_str().unwrap();
+                let row = cell
+                    .rows
+                    .iter()
+                    .find(|x| {
+                        p.inputs[x.input].name == r["input"].as_str().unwrap()
+                            && matches!(
+                                (x.dir, dir),
+                                (ohmsheet::engine::tolerance::Direction::Angle, "angle")
+                                    | (ohmsheet::engine::tolerance::Direction::Magnitude, "magnitude")
+                            )
+                    })
+                    .unwrap();
+                let want = r["magnitude"].as_f64().unwrap();
+                assert!(
+                    (row.mag - want).abs() <= tol * want.abs().max(1.0),
+                    "{scheme:?}: {} to {} {dir}: {} against {want}",
                     cell.name,
-                    r["input"]
-                ),
-                (None, None) => {}
-                other => panic!("angle present in one only: {other:?}"),
+                    r["input"],
+                    row.mag
+                );
+                match (row.angle, r["angle"].as_f64()) {
+                    (Some(a), Some(want)) => assert!(
+                        (a - want).abs() <= tol * want.abs().max(1.0),
+                        "{scheme:?}: {} angle to {} {dir}: {a} against {want}",
+                        cell.name,
+                        r["input"]
+                    ),
+                    (None, None) => {}
+                    other => panic!("angle present in one only: {other:?}"),
+                }
+                n += 1;
             }
-            n += 1;
+            assert!(n >= 15, "{n} rows");
         }
-        assert!(n >= 15, "{n} rows");
     }
 }
 

@@ -171,8 +171,17 @@ impl Spread {
 
     /// Why this tolerance cannot stand around `nominal` (a value other than
     /// the one the sheet states, e.g. a batch case's): an absolute band
-    /// that would take the magnitude below zero. `None` when it can.
+    /// that would take the magnitude below zero, or a percentage or angle
+    /// band on a zero value (which would move nothing). `None` when it can.
     pub fn refuses(&self, nominal: C64) -> Option<&'static str> {
+        if nominal.norm() == 0.0 {
+            if matches!(self.mag, Some(MagBand::Relative(b)) if !b.is_zero()) {
+                return Some("a percentage of a zero value is zero, so the band would move nothing; give the input an absolute band `0 .. +A`");
+            }
+            if self.angle.is_some_and(|b| !b.is_zero()) {
+                return Some("a zero value has no angle to vary; give the input an absolute band `0 .. +A`");
+            }
+        }
         match self.mag {
             Some(MagBand::Absolute(b)) if b.lo < -nominal.norm() => Some(if nominal.norm() == 0.0 {
                 "a zero value (a short) can only grow, and the band would take it below zero; give the input a band `0 .. +A`"

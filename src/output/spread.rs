@@ -224,11 +224,12 @@ impl Analyses<'_> {
             );
             for (c, cell) in sens.cells.iter().enumerate() {
                 out.push_str(&format!(
-                    "  {} ({}, stated {}; first-order standard deviation {}, JCGM 100:2008 §5.1.2)\n",
+                    "  {} ({}, stated {}; first-order standard deviation {}, JCGM 100:2008 §5.1.2; by {})\n",
                     cell.name,
                     self.measure_word(c),
                     self.fmt(c, cell.nominal),
-                    self.fmt(c, cell.gum_std)
+                    self.fmt(c, cell.gum_std),
+                    cell.method.describe()
                 ));
                 let complex = cell.measure == Measure::Magnitude;
                 let mut rows = vec![vec![
@@ -371,6 +372,7 @@ impl Analyses<'_> {
                         cell.nominal,
                         json!({
                             "first_order_std_dev": fin(cell.gum_std),
+                            "method": cell.method.key(),
                             "inputs": cell.rows.iter().map(|r| json!({
                                 "input": plan.inputs[r.input].name,
                                 "direction": match r.dir { Direction::Angle => "angle", _ => "magnitude" },

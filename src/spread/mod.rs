@@ -20,12 +20,13 @@
 //! real at every point of the box, its magnitude otherwise ([`Measure`]).
 
 pub mod checks;
+pub mod forward;
 mod sample;
 mod sens;
 mod worst;
 
 pub use sample::{coverage_interval, monte_carlo, order_statistic, Histogram, McCell, McOptions, McResult, Rng};
-pub use sens::{sensitivities, CellSens, SensResult, SensRow, FD_STEP};
+pub use sens::{sensitivities, sensitivities_by, CellSens, Scheme, SensMethod, SensResult, SensRow, FD_STEP};
 pub use worst::{worst_case, Extreme, Method, WorstCell, WorstResult, MAX_CORNERS};
 
 use num_complex::Complex64 as C64;

@@ -3,14 +3,16 @@
 //! standard deviation they give by the law of propagation of uncertainty
 //! (JCGM 100:2008, the GUM, §5.1.2).
 //!
-//! The scheme (documented in docs/tolerances.md): central differences in
-//! the input's relative magnitude ε (x → x·(1 + ε)) and angle θ
-//! (x → x·e^{jθ}, radians), at steps h = `FD_STEP` and h/2, combined by
-//! Richardson extrapolation, R = (4·D(h/2) − D(h))/3, whose error is
-//! O(h⁴). The four points of every direction are evaluated together in
-//! blocks of 64 through the compiled program. Where the program is not
-//! smooth (a `pick`, a standard size, a comparison) the result is the
-//! slope of the step across ±h, which says the cell jumps there.
+//! The derivatives, in the input's relative magnitude ε (x → x·(1 + ε))
+//! and angle θ (x → x·e^{jθ}, radians), come from forward-mode
+//! differentiation through the compiled program (`forward.rs`), exact to
+//! rounding; library functions and network solves on the way are
+//! differenced along their arguments. A program with an in-sheet search
+//! takes the scheme documented in docs/tolerances.md instead, and tests
+//! check it against forward mode: central differences at steps
+//! h = `FD_STEP` and h/2, combined by Richardson extrapolation,
+//! R = (4·D(h/2) − D(h))/3, whose error is O(h⁴), the four points of every
+//! direction evaluated together in blocks of 64.
 
 use num_complex::Complex64 as C64;
 
@@ -58,6 +60,38 @@ pub struct CellSens {
     /// The combined standard uncertainty to first order, √Σ u_i² (GUM
     /// §5.1.2, inputs uncorrelated).
     pub gum_std: f64,
+    /// How this cell's derivatives were found.
+    pub method: SensMethod,
+}
+
+/// How a cell's derivatives were found, as the outputs name it.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum SensMethod {
+    /// Forward-mode differentiation, exact to rounding.
+    Forward,
+    /// Forward mode, through a library function or network solve
+    /// differenced along its arguments.
+    ForwardDifferenced,
+    /// Central differences of the whole program.
+    Differences,
+}
+
+impl SensMethod {
+    pub fn describe(self) -> &'static str {
+        match self {
+            SensMethod::Forward => "forward-mode differentiation (exact)",
+            SensMethod::ForwardDifferenced => "forward-mode differentiation, library functions by central differences",
+            SensMethod::Differences => "central differences with Richardson extrapolation",
+        }
+    }
+    /// A short key for JSON and CSV.
+    pub fn key(self) -> &'static str {
+        match self {
+            SensMethod::Forward => "forward",
+            SensMethod::ForwardDifferenced => "forward+differences",
+            SensMethod::Differences => "differences",
+        }
+    }
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -65,8 +99,27 @@ pub struct SensResult {
     pub cells: Vec<CellSens>,
 }
 
-/// Sensitivities of every shown cell to every direction of every input.
+/// How the derivatives were found.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Scheme {
+    /// Forward-mode differentiation through the compiled program
+    /// (`forward.rs`): exact to rounding, library functions and network
+    /// solves differenced along their arguments.
+    Forward,
+    /// Richardson-extrapolated central differences of the whole program
+    /// (a sheet with an in-sheet search, or asked for).
+    Differences,
+}
+
+/// Sensitivities of every shown cell to every direction of every input,
+/// by forward-mode differentiation where the program allows it.
 pub fn sensitivities(plan: &Plan) -> SensResult {
+    sensitivities_by(plan, Scheme::Forward)
+}
+
+/// [`sensitivities`] by the scheme asked for (`Forward` falls back to
+/// `Differences` for a program with an in-sheet search).
+pub fn sensitivities_by(plan: &Plan, scheme: Scheme) -> SensResult {
     let nominal_vals = plan.input_values(&plan.nominal_point());
     // The directions: magnitude for every input, angle for those with an
     // angle band.
@@ -77,23 +130,30 @@ pub fn sensitivities(plan: &Plan) -> SensResult {
             dirs.push((k, Direction::Angle));
         }
     }
+    let tangents = match scheme {
+        Scheme::Forward => super::forward::tangents(plan, &dirs),
+        Scheme::Differences => None,
+    };
     let steps = [FD_STEP, -FD_STEP, FD_STEP / 2.0, -FD_STEP / 2.0];
     let mut sets: Vec<Vec<C64>> = vec![nominal_vals.clone()];
-    for &(k, dir) in &dirs {
-        let x = plan.inputs[k].nominal;
-        let along = zero_scale(&plan.inputs[k], dir);
-        for &h in &steps {
-            let mut v = nominal_vals.clone();
-            v[k] = match (dir, along) {
-                (Direction::Angle, _) => x * C64::from_polar(1.0, h),
-                // A zero value with an absolute band moves along the real
-                // axis: steps of h times the band.
-                (_, Some(s)) => C64::new(h * s, 0.0),
-                _ => x * (1.0 + h),
-            };
-            sets.push(v);
+    if tangents.is_none() {
+        for &(k, dir) in &dirs {
+            let x = plan.inputs[k].nominal;
+            let along = zero_scale(&plan.inputs[k], dir);
+            for &h in &steps {
+                let mut v = nominal_vals.clone();
+                v[k] = match (dir, along) {
+                    (Direction::Angle, _) => x * C64::from_polar(1.0, h),
+                    // A zero value with an absolute band moves along the real
+                    // axis: steps of h times the band.
+                    (_, Some(s)) => C64::new(h * s, 0.0),
+                    _ => x * (1.0 + h),
+                };
+                sets.push(v);
+            }
         }
     }
+    let first_end = sets.len();
     // The ends of each direction, every other input stated.
     let mut ends: Vec<(usize, usize)> = Vec::new(); // (first set, count) per dir
     for &(k, dir) in &dirs {
@@ -122,7 +182,11 @@ pub fn sensitivities(plan: &Plan) -> SensResult {
         }
         ends.push((start, sets.len() - start));
     }
+    debug_assert!(ends.first().is_none_or(|e| e.0 == first_end));
     let out = plan.evaluate_values(&sets);
+    // Below this, a relative sensitivity is rounding: the differences'
+    // accuracy, or a few ulps of the exact derivatives.
+    let floor = if tangents.is_some() { 1e-13 } else { 1e-9 };
     let cells = plan
         .shown
         .iter()
@@ -132,24 +196,39 @@ pub fn sensitivities(plan: &Plan) -> SensResult {
             let m0 = s.measure.of(y0);
             let mut rows = Vec::new();
             for (d, &(k, dir)) in dirs.iter().enumerate() {
-                let f = |j: usize| out[1 + 4 * d + j][c];
-                let rich = |g: &dyn Fn(C64) -> f64| {
-                    let d1 = (g(f(0)) - g(f(1))) / (2.0 * FD_STEP);
-                    let d2 = (g(f(2)) - g(f(3))) / FD_STEP;
-                    (4.0 * d2 - d1) / 3.0
-                };
                 // d m / d ε (or / d θ), and d arg / d ε for complex cells.
-                let dm = rich(&|z| s.measure.of(z));
-                let da = (s.measure == Measure::Magnitude)
-                    .then(|| rich(&|z| if y0.norm() > 0.0 { (z / y0).arg() } else { z.arg() }));
+                let (dm, da) = match &tangents {
+                    Some(t) => {
+                        let dy = t.d[c][d];
+                        let dm = match s.measure {
+                            Measure::Value => dy.re,
+                            Measure::Magnitude => super::forward::dabs(y0, dy),
+                        };
+                        (
+                            dm,
+                            (s.measure == Measure::Magnitude).then(|| super::forward::darg(y0, dy)),
+                        )
+                    }
+                    None => {
+                        let f = |j: usize| out[1 + 4 * d + j][c];
+                        let rich = |g: &dyn Fn(C64) -> f64| {
+                            let d1 = (g(f(0)) - g(f(1))) / (2.0 * FD_STEP);
+                            let d2 = (g(f(2)) - g(f(3))) / FD_STEP;
+                            (4.0 * d2 - d1) / 3.0
+                        };
+                        let dm = rich(&|z| s.measure.of(z));
+                        let da = (s.measure == Measure::Magnitude)
+                            .then(|| rich(&|z| if y0.norm() > 0.0 { (z / y0).arg() } else { z.arg() }));
+                        (dm, da)
+                    }
+                };
                 let input = &plan.inputs[k];
                 let x = input.nominal;
                 let zero_in = x.norm() == 0.0;
                 let rel = if zero_in || m0 == 0.0 { f64::NAN } else { dm / m0 };
-                // Below the scheme's accuracy (rounding of the measure over
-                // the step): no dependence.
-                let rel = if rel.abs() < 1e-9 { 0.0 } else { rel };
-                let da = da.map(|a| if a.abs() < 1e-9 { 0.0 } else { a });
+                // Below the scheme's accuracy: no dependence.
+                let rel = if rel.abs() < floor { 0.0 } else { rel };
+                let da = da.map(|a| if a.abs() < floor { 0.0 } else { a });
                 let per_deg = std::f64::consts::PI / 180.0;
                 let (mag, angle) = match dir {
                     // % per %: a ratio of relative changes.
@@ -198,6 +277,11 @@ pub fn sensitivities(plan: &Plan) -> SensResult {
                 nominal: m0,
                 rows,
                 gum_std,
+                method: match &tangents {
+                    Some(t) if t.exactness[c] == super::forward::Exactness::Exact => SensMethod::Forward,
+                    Some(_) => SensMethod::ForwardDifferenced,
+                    None => SensMethod::Differences,
+                },
             }
         })
         .collect();
@@ -225,7 +309,7 @@ fn input_std(input: &super::Input, dir: Direction) -> f64 {
 
 /// For a zero input with an absolute band on its magnitude, the scale of
 /// the steps along the real axis (the band's larger end).
-fn zero_scale(input: &super::Input, dir: Direction) -> Option<f64> {
+pub(super) fn zero_scale(input: &super::Input, dir: Direction) -> Option<f64> {
     match (dir, input.spread.mag) {
         (Direction::Magnitude, Some(MagBand::Absolute(b))) if input.nominal.norm() == 0.0 => {
             let s = b.lo.abs().max(b.hi.abs());

@@ -57,7 +57,15 @@ impl Lowerer<'_> {
                             )
                             .with_hint("give a tolerance on the value only: `within 5 %`"));
                         }
-                        Some(self.angle_band(b)?)
+                        let band = self.angle_band(b)?;
+                        if nominal.is_some_and(|v| v.norm() == 0.0) && !band.is_zero() {
+                            return Err(
+                                bad(b.span, format!("`{}` is zero, which has no angle to vary", cell.name)).with_hint(
+                                    "a zero value can only grow: give an absolute band on the value, `within 0 .. +A`",
+                                ),
+                            );
+                        }
+                        Some(band)
                     }
                     None => None,
                 };
@@ -136,6 +144,14 @@ impl Lowerer<'_> {
                     b.span,
                     "the band takes the magnitude below zero (more than −100 %)",
                 ));
+            }
+            if nominal.is_some_and(|v| v.norm() == 0.0) && !band.is_zero() {
+                return Err(Diagnostic::error(
+                    ErrorCode::BadInputTolerance,
+                    b.span,
+                    format!("`{}` is zero, and a percentage of zero is zero: this band would move nothing", cell.name),
+                )
+                .with_hint("a zero value can only grow: give an absolute band in the input's unit, `within 0 .. +A` (for a short, `within 0 Ω .. +0.5 Ω`)"));
             }
             Ok(MagBand::Relative(band))
         } else {

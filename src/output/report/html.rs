@@ -447,10 +447,11 @@ fn spread_html(o: &mut String, sp: &super::spread::SpreadSection, n: usize) {
         ));
         for c in sens {
             o.push_str(&format!(
-                "<p><strong>{}</strong> — stated {}; first-order standard deviation {}</p>\n",
+                "<p><strong>{}</strong> — stated {}; first-order standard deviation {}; derivatives by {}</p>\n",
                 esc(&c.cell),
                 esc(&c.stated),
-                esc(&c.first_order_std_dev)
+                esc(&c.first_order_std_dev),
+                esc(&c.method)
             ));
             let rows: Vec<Vec<String>> = c
                 .rows

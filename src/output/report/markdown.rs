@@ -426,10 +426,11 @@ fn spread_md(o: &mut String, sp: &super::spread::SpreadSection, n: usize, files:
         for c in sens {
             p("");
             p(&format!(
-                "**{}** — stated {}; first-order standard deviation {}",
+                "**{}** — stated {}; first-order standard deviation {}; derivatives by {}",
                 md_text(&c.cell),
                 md_text(&c.stated),
-                md_text(&c.first_order_std_dev)
+                md_text(&c.first_order_std_dev),
+                md_text(&c.method)
             ));
             p("");
             if c.complex {

@@ -79,6 +79,8 @@ pub struct SensPart {
     pub stated: String,
     /// The first-order standard deviation (GUM §5.1.2).
     pub first_order_std_dev: String,
+    /// How the derivatives were found, in words.
+    pub method: String,
     /// Whether rows carry the cell's angle.
     pub complex: bool,
     pub rows: Vec<SensLine>,
@@ -248,6 +250,7 @@ pub fn section(an: &Analyses, sheet: &str) -> SpreadSection {
                     cell: cell_name(&cell.name, cell.measure),
                     stated: an.fmt(c, cell.nominal),
                     first_order_std_dev: an.fmt(c, cell.gum_std),
+                    method: cell.method.describe().to_string(),
                     complex,
                     rows,
                     figure: Some(figures.len() - 1),
