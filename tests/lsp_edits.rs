@@ -27,15 +27,9 @@ use crate::common::lsp::{uri, Client};
 
 const CASES: u32 = 96;
 
+/// The proptest settings these properties run with.
 fn cfg(cases: u32) -> ProptestConfig {
-    ProptestConfig {
-        cases: std::env::var("PROPTEST_CASES")
-            .ok()
-            .and_then(|s| s.parse().ok())
-            .unwrap_or(cases),
-        failure_persistence: None,
-        ..ProptestConfig::default()
-    }
+    crate::common::proptest_cfg(cases)
 }
 
 const BASE: &str = "# a made-up bench ∠ Ω µ 😀\n\

@@ -5,15 +5,9 @@
 
 use proptest::prelude::*;
 
+/// The proptest settings these properties run with.
 fn cfg(cases: u32) -> ProptestConfig {
-    ProptestConfig {
-        cases: std::env::var("PROPTEST_CASES")
-            .ok()
-            .and_then(|s| s.parse().ok())
-            .unwrap_or(cases),
-        failure_persistence: None,
-        ..ProptestConfig::default()
-    }
+    crate::common::proptest_cfg(cases)
 }
 
 const VALID: &str = "\

@@ -28,15 +28,9 @@ use crate::common::{engine, value};
 
 const CASES: u32 = 128;
 
+/// The proptest settings these properties run with.
 fn cfg() -> ProptestConfig {
-    ProptestConfig {
-        cases: std::env::var("PROPTEST_CASES")
-            .ok()
-            .and_then(|s| s.parse().ok())
-            .unwrap_or(CASES),
-        failure_persistence: None,
-        ..ProptestConfig::default()
-    }
+    crate::common::proptest_cfg(CASES)
 }
 
 /// A magnitude from 1 µ to 1 G, spread evenly in decades.

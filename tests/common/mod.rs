@@ -90,3 +90,16 @@ macro_rules! assert_close {
         );
     }};
 }
+
+/// Proptest settings: `cases` cases unless `PROPTEST_CASES` says otherwise,
+/// and no failure files written into the tree.
+pub fn proptest_cfg(cases: u32) -> proptest::prelude::ProptestConfig {
+    proptest::prelude::ProptestConfig {
+        cases: std::env::var("PROPTEST_CASES")
+            .ok()
+            .and_then(|s| s.parse().ok())
+            .unwrap_or(cases),
+        failure_persistence: None,
+        ..proptest::prelude::ProptestConfig::default()
+    }
+}
