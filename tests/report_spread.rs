@@ -48,6 +48,11 @@ fn the_markdown_report_shows_all_three_analyses_with_the_caution() {
     assert!(sec.contains("### 4.3 Sensitivities"), "{sec}");
     assert!(sec.contains("| `R2` | 0.5 % per % | 4.737 V | 5.238 V |"), "{sec}");
     assert!(sec.contains("| `R1` | -0.5 % per % | 5.263 V | 4.762 V |"), "{sec}");
+    // How the derivatives were found.
+    assert!(
+        sec.contains("derivatives by forward-mode differentiation (exact)"),
+        "{sec}"
+    );
     assert!(
         sec.contains("![Ranking of the inputs for Vout](data:image/svg+xml"),
         "{sec}"

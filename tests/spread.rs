@@ -157,6 +157,8 @@ fn spread_writes_json_and_csv_with_the_seed() {
     assert!(v["caution"].as_str().unwrap().contains("qualified person"));
     let r2 = &v["sensitivities"]["cells"][0]["inputs"][0];
     assert!((r2["magnitude"].as_f64().unwrap().abs() - 0.25).abs() < 1e-9);
+    // Exact: no library function or search on the way.
+    assert_eq!(v["sensitivities"]["cells"][0]["method"], "forward");
     let out = ohmsheet()
         .args([
             "spread",

@@ -316,8 +316,10 @@ fn step(
                     .for_each(|o| *o = C64::new(f64::NAN, f64::NAN)),
             }
         }
-        Call(_) | Network(_) | Search(_) => unreachable!("handled above"),
-        _ => unreachable!("every op has a rule"),
+        // Calls and network solves are differenced above and a search is
+        // refused before any step; should one arrive here, its tangent is
+        // unknown, never made up.
+        _ => out.iter_mut().for_each(|o| *o = C64::new(f64::NAN, f64::NAN)),
     }
     // An infinite value (an open, a short's admittance, a division by
     // zero) stays infinite around the point: it does not move.
