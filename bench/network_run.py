@@ -20,39 +20,13 @@ Not part of `cargo test`.
 """
 
 import argparse
-import json
 import os
 import statistics
-import subprocess
 import sys
 
-ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
-
-
-def log(*a):
-    print(*a, file=sys.stderr, flush=True)
-
-
-def bench_exe():
-    out = subprocess.run(["cargo", "bench", "--bench", "network", "--no-run", "--message-format=json", "--quiet"],
-                         cwd=ROOT, check=True, capture_output=True, text=True).stdout
-    for line in out.splitlines():
-        try:
-            m = json.loads(line)
-        except json.JSONDecodeError:
-            continue
-        if m.get("reason") == "compiler-artifact" and m.get("target", {}).get("name") == "network" and m.get("executable"):
-            return m["executable"]
-    sys.exit("no benchmark executable")
-
-
-def lines(cmd):
-    log("$", " ".join(cmd))
-    out = subprocess.run(cmd, cwd=ROOT, check=True, capture_output=True, text=True).stdout
-    rows = [json.loads(l) for l in out.splitlines() if l.startswith("{")]
-    for r in rows:
-        log(json.dumps(r))
-    return rows
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from run import ROOT, bench_exe, log  # noqa: E402
+from run import bench_lines as lines  # noqa: E402
 
 
 def main():
@@ -60,7 +34,7 @@ def main():
     ap.add_argument("--cases", type=int, default=1_000_000)
     ap.add_argument("--repeats", type=int, default=3)
     a = ap.parse_args()
-    exe = bench_exe()
+    exe = bench_exe("network")
     batch = lines([exe, "batch", str(a.cases), str(a.repeats)])
     runs = [lines([sys.executable, "bench/network.py", "numpy", str(a.cases)])[0] for _ in range(a.repeats)]
     import numpy

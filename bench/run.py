@@ -41,6 +41,31 @@ def log(*a):
     print(*a, file=sys.stderr, flush=True)
 
 
+def bench_exe(name):
+    """The executable of `cargo bench --bench NAME`, built if need be."""
+    out = subprocess.run(["cargo", "bench", "--bench", name, "--no-run", "--message-format=json", "--quiet"],
+                         cwd=ROOT, check=True, capture_output=True, text=True).stdout
+    for line in out.splitlines():
+        try:
+            m = json.loads(line)
+        except json.JSONDecodeError:
+            continue
+        if m.get("reason") == "compiler-artifact" and m.get("target", {}).get("name") == name and m.get("executable"):
+            return m["executable"]
+    sys.exit(f"no benchmark executable for {name}")
+
+
+def bench_lines(cmd, hide=()):
+    """Run `cmd` from the repository root; its stdout's JSON lines, each
+    logged as it comes (without the keys in `hide`)."""
+    log("$", " ".join(cmd))
+    out = subprocess.run(cmd, cwd=ROOT, check=True, capture_output=True, text=True).stdout
+    rows = [json.loads(l) for l in out.splitlines() if l.startswith("{")]
+    for r in rows:
+        log(json.dumps({k: v for k, v in r.items() if k not in hide}))
+    return rows
+
+
 def ensure_venv():
     if not os.path.exists(PY):
         log("creating bench/.venv")

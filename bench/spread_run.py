@@ -21,37 +21,17 @@ bench/run.py). Prints JSON lines as they come (stderr) and markdown tables
 
 import argparse
 import datetime
-import json
 import math
 import os
 import statistics
-import subprocess
 import sys
 
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from run import PY, ROOT, ensure_venv, log  # noqa: E402
-
-
-def bench_exe():
-    out = subprocess.run(["cargo", "bench", "--bench", "spread", "--no-run", "--message-format=json", "--quiet"],
-                         cwd=ROOT, check=True, capture_output=True, text=True).stdout
-    for line in out.splitlines():
-        try:
-            m = json.loads(line)
-        except json.JSONDecodeError:
-            continue
-        if m.get("reason") == "compiler-artifact" and m.get("target", {}).get("name") == "spread" and m.get("executable"):
-            return m["executable"]
-    sys.exit("no benchmark executable")
+from run import PY, ROOT, bench_exe, bench_lines, ensure_venv, log  # noqa: E402
 
 
 def lines(cmd):
-    log("$", " ".join(cmd))
-    out = subprocess.run(cmd, cwd=ROOT, check=True, capture_output=True, text=True).stdout
-    rows = [json.loads(l) for l in out.splitlines() if l.startswith("{")]
-    for r in rows:
-        log(json.dumps({k: v for k, v in r.items() if k != "stats"}))
-    return rows
+    return bench_lines(cmd, hide=("stats",))
 
 
 def main():
@@ -60,7 +40,7 @@ def main():
     ap.add_argument("--repeats", type=int, default=5)
     a = ap.parse_args()
     ensure_venv()
-    exe = bench_exe()
+    exe = bench_exe("spread")
     load = os.getloadavg()
     # In turns: one run of each side per round, so drift hits both.
     ours, ours1, npy = [], [], []
