@@ -306,3 +306,46 @@ fn one_sided_agree(p: &Plan, input: usize, dir: Direction) -> bool {
     let scale = fwd.norm().max(back.norm()).max(y[0].norm()).max(1e-300);
     (fwd - back).norm() < 0.1 * scale && (fwd2 - back2).norm() < 0.1 * scale
 }
+
+// At the edges, against closed forms:
+// - a negative real on the branch cut of sqrt: √(−4·(1+ε)) = 2j·√(1+ε),
+//   0.5 % per %; turned by θ it stays on the upper side the value was
+//   taken on (principal value, DLMF §4.2), √(4·e^{j(π+θ)}) = 2·e^{j(π+θ)/2},
+//   so its angle moves 0.5° per degree;
+// - ln of −1: |ln(−(1+ε))| = |ln(1+ε) + jπ|, flat at ε = 0;
+// - a complex power from W and var, S = P + jQ: ∂ln|S|/∂ln P = P²/|S|²
+//   (0.64 for P = 80 kW, Q = 60 kvar), Q²/|S|² = 0.36 for Q;
+// - per-unit: I = 1 pu / z, −1 % per % of z;
+// - a negative reactive power keeps its sign: Qc = −300 kvar ± 10 %
+//   gives Qnet = Ql + Qc, ∂Qnet/∂ln|Qc| = Qc, so −300/200 = −1.5 % per %.
+#[test]
+fn forward_mode_at_the_edges() {
+    let p = plan(
+        "x = -4 within 1 % angle 2°\ny = sqrt(x)\nl = ln(-1 * abs(x) / 4)\n",
+        &["y", "l"],
+    );
+    let s = sensitivities(&p);
+    let row = |c: usize, dir: Direction| s.cells[c].rows.iter().find(|r| r.dir == dir).unwrap().clone();
+    assert!((row(0, Direction::Magnitude).mag - 0.5).abs() < 1e-15);
+    assert!((row(0, Direction::Angle).angle.unwrap() - 0.5).abs() < 1e-15);
+    assert_eq!(row(1, Direction::Magnitude).mag, 0.0);
+    let p = plan(
+        "P = 80 kW within 5 %\nQ = 60 kvar within 5 %\nS = P + j*Q\nz = 0.08 pu within 10 %\nI = 1 pu / z\n\
+         Ql = 500 kvar\nQc = -300 kvar within 10 %\nQnet = Ql + Qc\n",
+        &["S", "I", "Qnet"],
+    );
+    let s = sensitivities(&p);
+    let by = |c: usize, n: &str| {
+        s.cells[c]
+            .rows
+            .iter()
+            .find(|r| p.inputs[r.input].name == n)
+            .unwrap()
+            .mag
+    };
+    assert!((by(0, "P") - 0.64).abs() < 1e-15, "{}", by(0, "P"));
+    assert!((by(0, "Q") - 0.36).abs() < 1e-15, "{}", by(0, "Q"));
+    assert!((by(1, "z") + 1.0).abs() < 1e-15, "{}", by(1, "z"));
+    assert!((by(2, "Qc") + 1.5).abs() < 1e-15, "{}", by(2, "Qc"));
+    assert!(s.cells.iter().all(|c| c.method == SensMethod::Forward));
+}

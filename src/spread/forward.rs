@@ -24,7 +24,7 @@
 //! tangent of their arguments by a central difference of that one
 //! instruction, at steps h = `FD_STEP` and h/2 with Richardson
 //! extrapolation (error O(h⁴)); a cell reached through one is marked
-//! [`Exactness::Differenced`]. A program with an in-sheet search has no
+//! differenced (`Tangents::differenced`). A program with an in-sheet search has no
 //! forward mode here (the search's own inputs are not its operands):
 //! [`tangents`] returns `None` and the caller takes whole-program
 //! differences.
@@ -37,17 +37,6 @@ use crate::engine::ops::{self, Instr, Op};
 use crate::engine::program::Program;
 use crate::engine::tolerance::Direction;
 
-/// How a shown cell's derivatives were found.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Exactness {
-    /// Through the rules of every operation on the way: exact to rounding.
-    Exact,
-    /// Some of the way through a library function or a network solve,
-    /// whose derivative along its arguments is a Richardson-extrapolated
-    /// central difference.
-    Differenced,
-}
-
 /// The derivatives of the shown values along each direction.
 #[derive(Clone, Debug)]
 pub struct Tangents {
@@ -56,11 +45,13 @@ pub struct Tangents {
     pub values: Vec<C64>,
     /// `d[c][k]`: d (shown value c) / d t along direction k.
     pub d: Vec<Vec<C64>>,
-    pub exactness: Vec<Exactness>,
+    /// Whether the way to shown value c went through a library function
+    /// or network solve, whose derivative is a difference.
+    pub differenced: Vec<bool>,
 }
 
 /// The seed of direction `(input, dir)`: d x / d t at the stated value.
-pub fn seed(plan: &Plan, input: usize, dir: Direction) -> C64 {
+fn seed(plan: &Plan, input: usize, dir: Direction) -> C64 {
     let i = &plan.inputs[input];
     let x = i.nominal;
     match (dir, super::sens::zero_scale(i, dir)) {
@@ -97,7 +88,7 @@ pub fn tangents(plan: &Plan, dirs: &[(usize, Direction)]) -> Option<Tangents> {
     }
     let mut values = Vec::with_capacity(plan.shown.len());
     let mut d = Vec::with_capacity(plan.shown.len());
-    let mut exactness = Vec::with_capacity(plan.shown.len());
+    let mut differenced = Vec::with_capacity(plan.shown.len());
     for sh in &plan.shown {
         let k = sh.series.slot as usize;
         let tan = |slot: usize| &t[slot * nd..(slot + 1) * nd];
@@ -105,11 +96,7 @@ pub fn tangents(plan: &Plan, dirs: &[(usize, Direction)]) -> Option<Tangents> {
             None => {
                 values.push(s[k]);
                 d.push(tan(k).to_vec());
-                exactness.push(if diffd[k] {
-                    Exactness::Differenced
-                } else {
-                    Exactness::Exact
-                });
+                differenced.push(diffd[k]);
             }
             Some(tol) => {
                 // margin = allowed − |lhs − rhs|, allowed = f·|rhs| or |t|.
@@ -126,12 +113,11 @@ pub fn tangents(plan: &Plan, dirs: &[(usize, Direction)]) -> Option<Tangents> {
                     })
                     .collect();
                 d.push(dd);
-                let any = diffd[k] || diffd[k + 1] || diffd[k + 2];
-                exactness.push(if any { Exactness::Differenced } else { Exactness::Exact });
+                differenced.push(diffd[k] || diffd[k + 1] || diffd[k + 2]);
             }
         }
     }
-    Some(Tangents { values, d, exactness })
+    Some(Tangents { values, d, differenced })
 }
 
 /// d|z| along dz (0 at z = 0, the symmetric derivative).
@@ -417,7 +403,7 @@ mod tests {
         let t = tangents(&p, &[(0, Direction::Magnitude)]).unwrap();
         assert_eq!(t.d[0][0], C64::new(18.0, 0.0));
         assert!((t.d[1][0].re - 3.0 * 3f64.exp()).abs() < 1e-13 * 60.0);
-        assert_eq!(t.exactness, vec![Exactness::Exact; 2]);
+        assert_eq!(t.differenced, vec![false; 2]);
     }
 
     // |V·e^{jθ}| does not move with θ; its angle moves one for one.

@@ -278,7 +278,7 @@ pub fn sensitivities_by(plan: &Plan, scheme: Scheme) -> SensResult {
                 rows,
                 gum_std,
                 method: match &tangents {
-                    Some(t) if t.exactness[c] == super::forward::Exactness::Exact => SensMethod::Forward,
+                    Some(t) if !t.differenced[c] => SensMethod::Forward,
                     Some(_) => SensMethod::ForwardDifferenced,
                     None => SensMethod::Differences,
                 },
