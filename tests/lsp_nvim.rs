@@ -17,6 +17,37 @@ use crate::common::outside;
 
 const DEMO: &str = "sheets-demo/motor-bus-thevenin.ohm";
 
+/// Headless Neovim with a throw-away home in `home` (no user config,
+/// history or swap files), its standard streams shut (a pipe nobody reads
+/// could fill and stall it).
+fn nvim_in(nvim: &std::path::Path, home: &std::path::Path) -> Command {
+    let mut c = Command::new(nvim);
+    c.env("HOME", home)
+        .env("XDG_CONFIG_HOME", home)
+        .env("XDG_DATA_HOME", home)
+        .env("XDG_STATE_HOME", home)
+        .current_dir(home)
+        .stdin(Stdio::null())
+        .stdout(Stdio::null())
+        .stderr(Stdio::null());
+    c
+}
+
+/// Wait for `child` to end, killing it and failing the test after `secs`.
+fn wait_for(mut child: std::process::Child, secs: u64) -> std::process::ExitStatus {
+    let deadline = Instant::now() + Duration::from_secs(secs);
+    loop {
+        if let Some(s) = child.try_wait().unwrap() {
+            return s;
+        }
+        if Instant::now() > deadline {
+            let _ = child.kill();
+            panic!("nvim did not finish within {secs} s");
+        }
+        std::thread::sleep(Duration::from_millis(50));
+    }
+}
+
 /// The numbers in a text (`6.383 + j13.87 mΩ` → 6.383, 13.87).
 fn numbers(s: &str) -> Vec<f64> {
     let mut v = Vec::new();
@@ -67,33 +98,15 @@ fn neovim_shows_diagnostics_values_completion_hover_and_definition() {
     std::fs::copy(DEMO, &sheet).unwrap();
     let out = dir.path().join("got.json");
     let script = std::fs::canonicalize("tests/nvim/lsp_session.lua").unwrap();
-    let mut child = Command::new(nvim)
+    let child = nvim_in(nvim.as_ref(), dir.path())
         .args(["--headless", "-u", "NONE", "-i", "NONE", "-n", "-c"])
         .arg(format!("luafile {}", script.display()))
         .env("OHMSHEET_NVIM_SHEET", &sheet)
         .env("OHMSHEET_NVIM_OUT", &out)
         .env("OHMSHEET_BIN", assert_cmd::cargo::cargo_bin("ohmsheet"))
-        .env("HOME", dir.path())
-        .env("XDG_CONFIG_HOME", dir.path())
-        .env("XDG_DATA_HOME", dir.path())
-        .env("XDG_STATE_HOME", dir.path())
-        .current_dir(dir.path())
-        .stdin(Stdio::null())
-        .stdout(Stdio::null())
-        .stderr(Stdio::piped())
         .spawn()
         .expect("nvim starts");
-    let deadline = Instant::now() + Duration::from_secs(240);
-    let status = loop {
-        if let Some(s) = child.try_wait().unwrap() {
-            break s;
-        }
-        if Instant::now() > deadline {
-            let _ = child.kill();
-            panic!("nvim did not finish within 240 s");
-        }
-        std::thread::sleep(Duration::from_millis(50));
-    };
+    let status = wait_for(child, 240);
     let text = std::fs::read_to_string(&out).unwrap_or_default();
     let got: Value = serde_json::from_str(&text).unwrap_or(Value::Null);
     assert!(
@@ -254,31 +267,16 @@ end
 vim.cmd("qall!")"#,
         out = out.display()
     );
-    let mut child = Command::new(nvim)
+    let child = nvim_in(nvim.as_ref(), dir.path())
         .args(["--headless", "-i", "NONE", "-n", "-u"])
         .arg(&config)
         .arg(&sheet)
         .arg("-c")
         .arg(probe)
         .env("PATH", path)
-        .env("HOME", dir.path())
-        .env("XDG_CONFIG_HOME", dir.path())
-        .env("XDG_DATA_HOME", dir.path())
-        .env("XDG_STATE_HOME", dir.path())
-        .current_dir(dir.path())
-        .stdin(Stdio::null())
-        .stdout(Stdio::null())
-        .stderr(Stdio::null())
         .spawn()
         .expect("nvim starts");
-    let deadline = Instant::now() + Duration::from_secs(180);
-    while child.try_wait().unwrap().is_none() {
-        if Instant::now() > deadline {
-            let _ = child.kill();
-            panic!("nvim did not finish within 180 s");
-        }
-        std::thread::sleep(Duration::from_millis(50));
-    }
+    wait_for(child, 180);
     let text = std::fs::read_to_string(&out).unwrap_or_default();
     let got: Value = serde_json::from_str(&text).unwrap_or(Value::Null);
     assert!(got["failure"].is_null() && !got.is_null(), "{text}");

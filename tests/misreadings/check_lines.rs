@@ -7,17 +7,9 @@
 use ohmsheet::diag::ErrorCode;
 
 fn first_error(src: &str) -> (usize, usize, String, String) {
-    let sheet = ohmsheet::sheet::Sheet::from_text("test.ohm", src);
-    let m = ohmsheet::engine::compile(&sheet);
-    let d = m
-        .diagnostics
-        .iter()
-        .find(|d| d.is_error())
-        .unwrap_or_else(|| panic!("expected an error in:\n{src}"));
+    let (d, line, col) = super::first_error_at(src);
     assert_eq!(d.code, ErrorCode::Syntax, "{src}");
-    let span = d.span.expect("located");
-    let (line, col) = m.sources.get(span.file).line_col(span.start as usize);
-    (line, col, d.label.clone(), d.hint.clone().unwrap_or_default())
+    (line, col, d.label, d.hint.unwrap_or_default())
 }
 
 #[test]

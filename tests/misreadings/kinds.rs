@@ -19,16 +19,8 @@ use proptest::prelude::*;
 /// The first error of a sheet that must fail: its code, line and column
 /// (1-based), message and hint.
 fn first_error(src: &str) -> (ErrorCode, usize, usize, String, String) {
-    let sheet = ohmsheet::sheet::Sheet::from_text("test.ohm", src);
-    let m = ohmsheet::engine::compile(&sheet);
-    let d = m
-        .diagnostics
-        .iter()
-        .find(|d| d.is_error())
-        .unwrap_or_else(|| panic!("expected an error in:\n{src}"));
-    let span = d.span.expect("located");
-    let (line, col) = m.sources.get(span.file).line_col(span.start as usize);
-    (d.code, line, col, d.message.clone(), d.hint.clone().unwrap_or_default())
+    let (d, line, col) = super::first_error_at(src);
+    (d.code, line, col, d.message, d.hint.unwrap_or_default())
 }
 
 fn shown(src: &str, name: &str) -> String {
